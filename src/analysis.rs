@@ -1,0 +1,386 @@
+//! A whole study: every storm through every condition, then the checks an
+//! engineer's report needs: limits at points, pond limits, and the TR-55
+//! graphical-method cross-check of every catchment.
+
+use crate::graphical_peak::{self, StormType};
+use crate::model::{ElementKind, Limit, Pond, Study, Target};
+use crate::network::{self, StormResult};
+use crate::rainfall::NrcsType;
+use crate::runoff;
+use crate::warning::Warning;
+use rayon::prelude::*;
+
+/// One limit check at a point.
+#[derive(Debug, Clone)]
+pub struct Comparison {
+    /// Point index.
+    pub point: usize,
+    /// Storm index.
+    pub storm: usize,
+    /// Condition index checked.
+    pub condition: usize,
+    /// Baseline peak at the point, cfs.
+    pub baseline_peak_cfs: f64,
+    /// Condition's peak, cfs.
+    pub peak_cfs: f64,
+    /// The limit, cfs.
+    pub limit_cfs: f64,
+    /// Whether the peak is within the limit.
+    pub pass: bool,
+}
+
+/// One pond limit or overtopping check.
+#[derive(Debug, Clone)]
+pub struct PondCheck {
+    /// Element index of the pond.
+    pub element: usize,
+    /// Storm index.
+    pub storm: usize,
+    /// Condition index.
+    pub condition: usize,
+    /// What was checked: "freeboard", "drain time", "overtopping".
+    pub what: &'static str,
+    /// Value found (ft or h; NaN when the pond never drained).
+    pub value: f64,
+    /// Limit (ft or h).
+    pub limit: f64,
+    /// Whether it holds.
+    pub pass: bool,
+}
+
+/// TR-55 chapter 4 graphical peak beside the hydrograph peak.
+#[derive(Debug, Clone)]
+pub struct GraphicalCheck {
+    /// Element index of the catchment.
+    pub element: usize,
+    /// Storm index.
+    pub storm: usize,
+    /// Ia/P used (after clamping).
+    pub ia_over_p: f64,
+    /// Unit peak discharge, csm/in.
+    pub qu_csm_per_in: f64,
+    /// Graphical-method peak, cfs.
+    pub graphical_peak_cfs: f64,
+    /// Hydrograph peak, cfs.
+    pub hydrograph_peak_cfs: f64,
+    /// Whether Tc or Ia/P were clamped to the table's range.
+    pub clamped: bool,
+}
+
+/// Everything a run computes.
+#[derive(Debug, Clone)]
+pub struct Analysis {
+    /// One result per storm, every condition.
+    pub storms: Vec<StormResult>,
+    /// Limit checks at points.
+    pub comparisons: Vec<Comparison>,
+    /// Pond checks.
+    pub pond_checks: Vec<PondCheck>,
+    /// Graphical cross-checks.
+    pub graphical: Vec<GraphicalCheck>,
+    /// Warnings found while simulating.
+    pub warnings: Vec<Warning>,
+}
+
+impl Analysis {
+    /// Whether any limit failed or a pond overtopped.
+    pub fn any_failure(&self) -> bool {
+        self.comparisons.iter().any(|c| !c.pass) || self.pond_checks.iter().any(|c| !c.pass)
+    }
+}
+
+/// Runs every storm in parallel with the study's own ponds.
+pub fn run_storms_parallel(study: &Study) -> Vec<StormResult> {
+    let all: Vec<usize> = (0..study.conditions.len()).collect();
+    (0..study.storms.len())
+        .into_par_iter()
+        .map(|s| network::simulate_storm(study, s, &all))
+        .collect()
+}
+
+/// Area draining to a point in a condition, ac.
+pub fn area_to_point_ac(study: &Study, point: usize, condition: usize) -> f64 {
+    study
+        .elements
+        .iter()
+        .enumerate()
+        .filter(|(_, e)| e.conditions[condition])
+        .filter_map(|(i, e)| match &e.kind {
+            ElementKind::Catchment(c) if reaches(study, i, point) => Some(c.area_ac),
+            _ => None,
+        })
+        .sum()
+}
+
+/// Whether element `i` drains (eventually) to point `p`.
+pub fn reaches(study: &Study, i: usize, p: usize) -> bool {
+    let mut at = i;
+    for _ in 0..=study.elements.len() {
+        match study.elements[at].to {
+            Target::Point(q) => return q == p,
+            Target::Element(j) => at = j,
+        }
+    }
+    false
+}
+
+/// Peak at a point, cfs.
+pub fn point_peak(storms: &[StormResult], storm: usize, condition: usize, point: usize) -> f64 {
+    storms
+        .iter()
+        .find(|s| s.storm == storm)
+        .and_then(|s| s.condition(condition))
+        .and_then(|c| c.points.get(point))
+        .map(|q| network::peak(q).0)
+        .unwrap_or(0.0)
+}
+
+/// The limit in cfs for a point, storm and condition, or None when not checked.
+pub fn limit_cfs(study: &Study, storms: &[StormResult], point: usize, storm: usize, condition: usize) -> Option<f64> {
+    match study.points[point].limits.get(storm)? {
+        Limit::None => None,
+        Limit::Absolute { flow_cfs } => Some(*flow_cfs),
+        Limit::PerArea { cfs_per_ac } => Some(cfs_per_ac * area_to_point_ac(study, point, condition)),
+        Limit::Relative {
+            fraction,
+            condition: lc,
+            storm: ls,
+        } => Some(fraction * point_peak(storms, ls.unwrap_or(storm), *lc, point)),
+    }
+}
+
+/// Limit checks at every point for every storm and non-baseline condition.
+pub fn compare(study: &Study, storms: &[StormResult]) -> Vec<Comparison> {
+    let mut out = Vec::new();
+    for s in storms {
+        for p in 0..study.points.len() {
+            let base = point_peak(storms, s.storm, study.baseline, p);
+            for c in &s.conditions {
+                if c.condition == study.baseline {
+                    continue;
+                }
+                let Some(limit) = limit_cfs(study, storms, p, s.storm, c.condition) else {
+                    continue;
+                };
+                let peak = point_peak(storms, s.storm, c.condition, p);
+                out.push(Comparison {
+                    point: p,
+                    storm: s.storm,
+                    condition: c.condition,
+                    baseline_peak_cfs: base,
+                    peak_cfs: peak,
+                    limit_cfs: limit,
+                    pass: peak <= limit * (1.0 + 1e-9) + 1e-12,
+                });
+            }
+        }
+    }
+    out
+}
+
+/// The pond of element `i`.
+fn pond_of(study: &Study, i: usize) -> Option<&Pond> {
+    match &study.elements[i].kind {
+        ElementKind::Pond(p) => Some(p),
+        _ => None,
+    }
+}
+
+/// Pond limit checks (freeboard, drain time) and overtopping, per storm and condition.
+pub fn pond_checks(study: &Study, storms: &[StormResult]) -> Vec<PondCheck> {
+    let mut out = Vec::new();
+    for s in storms {
+        for c in &s.conditions {
+            for (i, e) in c.elements.iter().enumerate() {
+                let (Some(pr), Some(p)) = (e.as_ref().and_then(|e| e.pond.as_ref()), pond_of(study, i)) else {
+                    continue;
+                };
+                let base = PondCheck {
+                    element: i,
+                    storm: s.storm,
+                    condition: c.condition,
+                    what: "overtopping",
+                    value: pr.summary.peak_stage_ft,
+                    limit: p.top_ft.unwrap_or(f64::INFINITY),
+                    pass: !pr.summary.overtopped,
+                };
+                if p.top_ft.is_some() {
+                    out.push(base.clone());
+                }
+                if let (Some(minf), Some(fb)) = (p.min_freeboard_ft, pr.summary.freeboard_ft) {
+                    out.push(PondCheck {
+                        what: "freeboard",
+                        value: fb,
+                        limit: minf,
+                        pass: fb >= minf - 1e-9,
+                        ..base.clone()
+                    });
+                }
+                if let Some(maxd) = p.max_drain_time_h {
+                    let d = pr.summary.drain_time_h.unwrap_or(f64::NAN);
+                    out.push(PondCheck {
+                        what: "drain time",
+                        value: d,
+                        limit: maxd,
+                        pass: d <= maxd + 1e-9,
+                        ..base
+                    });
+                }
+            }
+        }
+    }
+    out
+}
+
+/// Maps the rainfall module's type to the graphical method's.
+pub fn storm_type(t: NrcsType) -> StormType {
+    match t {
+        NrcsType::I => StormType::I,
+        NrcsType::IA => StormType::IA,
+        NrcsType::II => StormType::II,
+        NrcsType::III => StormType::III,
+    }
+}
+
+/// TR-55 chapter 4 graphical peaks (Fp = 1) for every catchment and NRCS storm.
+pub fn graphical_checks(study: &Study, storms: &[StormResult]) -> Vec<GraphicalCheck> {
+    let mut out = Vec::new();
+    for s in storms {
+        let storm = &study.storms[s.storm];
+        let Some(t) = storm.nrcs() else { continue };
+        for (i, e) in study.elements.iter().enumerate() {
+            let ElementKind::Catchment(c) = &e.kind else { continue };
+            let p = storm.depth_in();
+            let s20 = runoff::retention_in(c.cn);
+            let q = runoff::runoff_depth_in(p, s20, 0.2);
+            let ia_p = if p > 0.0 { 0.2 * s20 / p } else { 1.0 };
+            let up = graphical_peak::unit_peak_csm_per_in(storm_type(t), ia_p, c.tc_h);
+            let g = graphical_peak::peak_cfs(up.qu_csm_per_in, c.area_ac / 640.0, q, 1.0);
+            let hydro = s
+                .conditions
+                .iter()
+                .find_map(|cr| cr.elements.get(i).and_then(|x| x.as_ref()))
+                .map(|r| network::peak(&r.outflow_cfs).0)
+                .unwrap_or(0.0);
+            out.push(GraphicalCheck {
+                element: i,
+                storm: s.storm,
+                ia_over_p: up.ia_over_p_used,
+                qu_csm_per_in: up.qu_csm_per_in,
+                graphical_peak_cfs: if g.is_finite() { g } else { 0.0 },
+                hydrograph_peak_cfs: hydro,
+                clamped: up.tc_clamped || up.ia_over_p_clamped,
+            });
+        }
+    }
+    out
+}
+
+/// Runs the whole design-storm analysis of a study.
+pub fn analyse(study: &Study) -> Analysis {
+    let storms = run_storms_parallel(study);
+    finish(study, storms)
+}
+
+/// The checks and warnings for a set of storm results.
+pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
+    let comparisons = compare(study, &storms);
+    let pond_checks = pond_checks(study, &storms);
+    let graphical = graphical_checks(study, &storms);
+    let mut warnings = Vec::new();
+    for g in &graphical {
+        let (h, gp) = (g.hydrograph_peak_cfs, g.graphical_peak_cfs);
+        let lambda_std = matches!(&study.elements[g.element].kind, ElementKind::Catchment(c) if c.lambda == runoff::Lambda::Standard);
+        if lambda_std && h > 0.0 && gp > 0.0 && ((h - gp).abs() / gp) > 0.25 {
+            let f = crate::units::Quantity::Flow.output_factor(study.units);
+            let u = crate::units::Quantity::Flow.output_unit(study.units);
+            warnings.push(Warning::GraphicalPeakDiffers {
+                catchment: study.elements[g.element].name.clone(),
+                storm: study.storms[g.storm].name.clone(),
+                hydrograph: format!("{} {u}", crate::units::sig(h * f, 3)),
+                graphical: format!("{} {u}", crate::units::sig(gp * f, 3)),
+            });
+        }
+    }
+    for s in &storms {
+        for c in &s.conditions {
+            for (i, e) in c.elements.iter().enumerate() {
+                let Some(pr) = e.as_ref().and_then(|e| e.pond.as_ref()) else { continue };
+                let pond = &study.elements[i].name;
+                if pr.summary.overtopped {
+                    warnings.push(Warning::Overtopped {
+                        pond: pond.clone(),
+                        storm: study.storms[s.storm].name.clone(),
+                        condition: study.conditions[c.condition].clone(),
+                    });
+                }
+                if pr.summary.never_filled_above_lowest_outlet {
+                    warnings.push(Warning::PondNeverFills {
+                        pond: pond.clone(),
+                        storm: study.storms[s.storm].name.clone(),
+                        condition: study.conditions[c.condition].clone(),
+                    });
+                }
+            }
+        }
+    }
+    // Orifices never submerged in any storm.
+    for i in 0..study.elements.len() {
+        let Some(p) = pond_of(study, i) else { continue };
+        for (k, o) in p.outlets.iter().enumerate() {
+            let crown = match o {
+                crate::hydraulics::Outlet::CircularOrifice { invert_ft, diameter_ft, .. } => invert_ft + diameter_ft,
+                crate::hydraulics::Outlet::RectangularOrifice { invert_ft, height_ft, .. } => invert_ft + height_ft,
+                _ => continue,
+            };
+            let max_stage = storms
+                .iter()
+                .flat_map(|s| s.conditions.iter())
+                .filter_map(|c| c.elements.get(i).and_then(|x| x.as_ref()).and_then(|x| x.pond.as_ref()))
+                .map(|pr| pr.summary.peak_stage_ft)
+                .fold(f64::NEG_INFINITY, f64::max);
+            if max_stage.is_finite() && max_stage < crown {
+                warnings.push(Warning::OrificeNeverSubmerged {
+                    pond: study.elements[i].name.clone(),
+                    outlet: k,
+                });
+            }
+        }
+    }
+    Analysis {
+        storms,
+        comparisons,
+        pond_checks,
+        graphical,
+        warnings,
+    }
+}
+
+/// Whether element `i`'s flow passes through element `j` on its way down.
+pub fn reaches_through(study: &Study, i: usize, j: usize) -> bool {
+    let mut at = i;
+    for _ in 0..=study.elements.len() {
+        if at == j {
+            return true;
+        }
+        match study.elements[at].to {
+            Target::Point(_) => return false,
+            Target::Element(k) => at = k,
+        }
+    }
+    false
+}
+
+/// Area draining through element `j` in a condition, ac (its own area for a catchment).
+pub fn area_to_element_ac(study: &Study, j: usize, condition: usize) -> f64 {
+    study
+        .elements
+        .iter()
+        .enumerate()
+        .filter(|(_, e)| e.conditions[condition])
+        .filter_map(|(i, e)| match &e.kind {
+            ElementKind::Catchment(c) if reaches_through(study, i, j) => Some(c.area_ac),
+            _ => None,
+        })
+        .sum()
+}

@@ -1,0 +1,9 @@
+//! The commands, one entry function each.
+
+pub mod check;
+pub mod init;
+pub mod run;
+
+pub use check::{check, estimate};
+pub use init::init;
+pub use run::run;

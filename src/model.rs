@@ -1,0 +1,424 @@
+//! The validated study: storms, catchments, ponds, inflows, points and
+//! records, in internal units, with every cross-reference resolved.
+//!
+//! Nothing here knows about TOML. A `Study` is only built by
+//! `scenario::load`, which checks everything once; the simulation then
+//! needs no further checks.
+
+use crate::hydraulics::Outlet;
+use crate::pond::StageStorage;
+use crate::rainfall::{MassCurve, NrcsType};
+use crate::runoff::Lambda;
+use crate::timing::Segment;
+use crate::unit_hydrograph::Shape;
+use crate::units::UnitSystem;
+use crate::warning::Warning;
+use std::path::PathBuf;
+
+/// A validated study.
+#[derive(Debug, Clone)]
+pub struct Study {
+    /// Free-text title.
+    pub title: String,
+    /// Unit system of input and results.
+    pub units: UnitSystem,
+    /// Computation step of design storms, h.
+    pub step_h: f64,
+    /// Whether the step was given in the scenario (else chosen by the rule).
+    pub step_given: bool,
+    /// Condition names; index 0 is not special, see `baseline`.
+    pub conditions: Vec<String>,
+    /// Index of the baseline condition.
+    pub baseline: usize,
+    /// 2-year 24-hour rainfall, in (when given).
+    pub p2_in: Option<f64>,
+    /// Design storms.
+    pub storms: Vec<Storm>,
+    /// Catchments, ponds and inflows.
+    pub elements: Vec<Element>,
+    /// Points of comparison.
+    pub points: Vec<Point>,
+    /// Long records.
+    pub records: Vec<Record>,
+    /// Warnings found while loading.
+    pub warnings: Vec<Warning>,
+    /// Provenance of the inputs.
+    pub provenance: Provenance,
+    /// Outlet dimensions to be sized.
+    pub sizing: Vec<SizedDim>,
+    /// Memory cap for one run, bytes.
+    pub memory_limit_bytes: u64,
+}
+
+/// What was read, for the report's provenance.
+#[derive(Debug, Clone, Default)]
+pub struct Provenance {
+    /// The scenario file as resolved.
+    pub scenario: PathBuf,
+    /// SHA-256 of the scenario text, hex.
+    pub scenario_sha256: String,
+    /// Every other input file read, as resolved.
+    pub inputs: Vec<PathBuf>,
+    /// The scenario text, for rewriting a sized copy.
+    pub scenario_text: String,
+    /// Byte spans of the file paths in the scenario, with the resolved path.
+    pub path_spans: Vec<(std::ops::Range<usize>, PathBuf)>,
+}
+
+/// A design storm.
+#[derive(Debug, Clone)]
+pub struct Storm {
+    /// Name.
+    pub name: String,
+    /// How its rain is given.
+    pub rain: StormRain,
+}
+
+/// The rain of a design storm.
+#[derive(Debug, Clone)]
+pub enum StormRain {
+    /// A dimensionless mass curve scaled to a depth and duration.
+    Pattern {
+        /// The curve.
+        curve: MassCurve,
+        /// The NRCS type, when it is one of the four patterns.
+        nrcs: Option<NrcsType>,
+        /// Pattern key as written.
+        key: String,
+        /// Depth, in.
+        depth_in: f64,
+        /// Duration, h.
+        duration_h: f64,
+    },
+    /// A gauge record: rain per interval, the first starting at t = 0.
+    Gauge {
+        /// File, as resolved.
+        path: PathBuf,
+        /// Depth per interval, in.
+        depth_in: Vec<f64>,
+        /// Interval, h.
+        interval_h: f64,
+        /// Start of the first interval, seconds since 1970-01-01 (naive).
+        start_s: i64,
+    },
+}
+
+impl Storm {
+    /// Total rain depth, in.
+    pub fn depth_in(&self) -> f64 {
+        match &self.rain {
+            StormRain::Pattern { depth_in, .. } => *depth_in,
+            StormRain::Gauge { depth_in, .. } => depth_in.iter().sum(),
+        }
+    }
+
+    /// When the rain ends, h from the storm start.
+    pub fn rain_end_h(&self) -> f64 {
+        match &self.rain {
+            StormRain::Pattern { duration_h, .. } => *duration_h,
+            StormRain::Gauge {
+                depth_in, interval_h, ..
+            } => depth_in.len() as f64 * interval_h,
+        }
+    }
+
+    /// The NRCS type, if the storm uses one of the four 24-h patterns.
+    pub fn nrcs(&self) -> Option<NrcsType> {
+        match &self.rain {
+            StormRain::Pattern { nrcs, .. } => *nrcs,
+            StormRain::Gauge { .. } => None,
+        }
+    }
+
+    /// Rain per step, in, over `n_steps` steps.
+    pub fn rain_at_step(&self, step_h: f64, n_steps: usize) -> Vec<f64> {
+        match &self.rain {
+            StormRain::Pattern {
+                curve,
+                depth_in,
+                duration_h,
+                ..
+            } => crate::rainfall::hyetograph(curve, *depth_in, *duration_h, step_h, n_steps),
+            StormRain::Gauge {
+                depth_in, interval_h, ..
+            } => crate::rainfall::resample_gauge(depth_in, *interval_h, step_h, n_steps),
+        }
+    }
+}
+
+/// Where an element sends its flow.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Target {
+    /// Another element (a pond).
+    Element(usize),
+    /// A point.
+    Point(usize),
+}
+
+/// A catchment, pond or inflow hydrograph.
+#[derive(Debug, Clone)]
+pub struct Element {
+    /// Name.
+    pub name: String,
+    /// Membership by condition index.
+    pub conditions: Vec<bool>,
+    /// Where it drains.
+    pub to: Target,
+    /// Pure translation on the way to `to`, h.
+    pub lag_h: f64,
+    /// What it is.
+    pub kind: ElementKind,
+}
+
+/// The kinds of network element.
+#[derive(Debug, Clone)]
+pub enum ElementKind {
+    /// Rain falls on it and runs off.
+    Catchment(Catchment),
+    /// Storage routed through outlets.
+    Pond(Pond),
+    /// A hydrograph computed elsewhere.
+    Inflow(Inflow),
+}
+
+impl Element {
+    /// Kind word for results: catchment, pond, inflow.
+    pub fn kind_word(&self) -> &'static str {
+        match self.kind {
+            ElementKind::Catchment(_) => "catchment",
+            ElementKind::Pond(_) => "pond",
+            ElementKind::Inflow(_) => "inflow",
+        }
+    }
+}
+
+/// One cover row of a catchment's worksheet.
+#[derive(Debug, Clone)]
+pub struct CoverRow {
+    /// Description: the land key and soil, or "given".
+    pub label: String,
+    /// Curve number.
+    pub cn: f64,
+    /// Area, ac.
+    pub area_ac: f64,
+    /// Whether the cover is pervious (for the CN > 98 warning).
+    pub pervious: bool,
+}
+
+/// A validated catchment.
+#[derive(Debug, Clone)]
+pub struct Catchment {
+    /// Area, ac.
+    pub area_ac: f64,
+    /// Cover rows (empty when `cn` was given directly).
+    pub covers: Vec<CoverRow>,
+    /// Composite curve number (for Ia = 0.2 S), unrounded.
+    pub cn: f64,
+    /// Initial-abstraction ratio.
+    pub lambda: Lambda,
+    /// Retention used with the ratio, in.
+    pub retention_in: f64,
+    /// Flow path segments (empty when `tc` was given directly).
+    pub segments: Vec<Segment>,
+    /// Time of concentration, h.
+    pub tc_h: f64,
+    /// Peak rate factor.
+    pub prf: f64,
+    /// Unit-hydrograph shape.
+    pub shape: Shape,
+}
+
+/// A validated pond.
+#[derive(Debug, Clone)]
+pub struct Pond {
+    /// Stage-storage relation.
+    pub storage: StageStorage,
+    /// How the storage was given: "stage-area (conic frustum)", "stage-volume", "basin".
+    pub storage_kind: &'static str,
+    /// Outlets, in the scenario's order.
+    pub outlets: Vec<Outlet>,
+    /// Initial water surface, ft (None: the lowest outlet, or the bottom).
+    pub start_ft: Option<f64>,
+    /// Top of embankment, ft.
+    pub top_ft: Option<f64>,
+    /// Embankment crest length for overtopping, ft.
+    pub top_length_ft: f64,
+    /// Least freeboard allowed, ft.
+    pub min_freeboard_ft: Option<f64>,
+    /// Longest drain time allowed, h.
+    pub max_drain_time_h: Option<f64>,
+    /// Stage grid spacing for the routing table, ft.
+    pub grid_step_ft: f64,
+}
+
+/// A validated inflow hydrograph.
+#[derive(Debug, Clone)]
+pub struct Inflow {
+    /// (h, cfs) rows.
+    pub table: Vec<(f64, f64)>,
+    /// Storm it belongs to (None: every storm).
+    pub storm: Option<usize>,
+    /// The file it came from, if any.
+    pub file: Option<PathBuf>,
+}
+
+impl Inflow {
+    /// Flow at time t (h), linear between rows and zero outside them.
+    pub fn flow_at(&self, t_h: f64) -> f64 {
+        match (self.table.first(), self.table.last()) {
+            (Some(a), Some(b)) if t_h >= a.0 && t_h <= b.0 => crate::interp::linear(&self.table, t_h),
+            _ => 0.0,
+        }
+    }
+
+    /// Last time with a table row, h.
+    pub fn end_h(&self) -> f64 {
+        self.table.last().map(|r| r.0).unwrap_or(0.0)
+    }
+}
+
+/// A peak-flow limit at a point.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Limit {
+    /// Not checked.
+    None,
+    /// A fraction of a condition's peak in a storm (None: the same storm).
+    Relative {
+        /// 1.0 for "existing", 0.5 for "50% existing".
+        fraction: f64,
+        /// Condition index.
+        condition: usize,
+        /// Storm index, or the storm being checked.
+        storm: Option<usize>,
+    },
+    /// A flow, cfs.
+    Absolute {
+        /// cfs.
+        flow_cfs: f64,
+    },
+    /// Per acre draining to the point in the checked condition, cfs/ac.
+    PerArea {
+        /// cfs per ac.
+        cfs_per_ac: f64,
+    },
+}
+
+/// Flow-duration control settings at a point.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DurationControl {
+    /// Lower flow: fraction of the baseline's Qn.
+    pub from: (f64, f64),
+    /// Upper flow: fraction of the baseline's Qn.
+    pub to: (f64, f64),
+    /// Relative tolerance.
+    pub tolerance: f64,
+    /// Text as written, for reports.
+    pub text: String,
+}
+
+/// A point of comparison.
+#[derive(Debug, Clone)]
+pub struct Point {
+    /// Name.
+    pub name: String,
+    /// Limit per storm index.
+    pub limits: Vec<Limit>,
+    /// Limit text per storm index, as written.
+    pub limit_text: Vec<String>,
+    /// Flow-duration control.
+    pub durations: Option<DurationControl>,
+}
+
+/// How soil moisture is kept between events in a long record.
+#[derive(Debug, Clone, PartialEq)]
+pub enum MoistureMode {
+    /// CN per event, events split by dry gaps.
+    Event {
+        /// Dry gap, h.
+        dry_gap_h: f64,
+        /// Adjust each event's CN by the 5-day antecedent rain.
+        antecedent: bool,
+        /// Growing-season months.
+        growing_months: [bool; 12],
+    },
+    /// Soil-moisture accounting with evapotranspiration.
+    Continuous {
+        /// Potential evapotranspiration per month, in/day.
+        pet_in_per_day: [f64; 12],
+    },
+}
+
+/// A long gauge record for continuous simulation.
+#[derive(Debug, Clone)]
+pub struct Record {
+    /// Name.
+    pub name: String,
+    /// Gauge file, as resolved.
+    pub path: PathBuf,
+    /// Rain per interval, in.
+    pub depth_in: Vec<f64>,
+    /// Gauge interval, h.
+    pub interval_h: f64,
+    /// Computation step, h.
+    pub step_h: f64,
+    /// Start of the first interval, s since 1970-01-01 (naive).
+    pub start_s: i64,
+    /// Moisture accounting.
+    pub moisture: MoistureMode,
+}
+
+/// Which outlet field a sizing range sets.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SizedField {
+    /// Orifice or riser diameter.
+    Diameter,
+    /// Rectangular orifice width.
+    Width,
+    /// Rectangular orifice height.
+    Height,
+    /// Weir length.
+    Length,
+    /// V-notch angle.
+    Angle,
+    /// Crest elevation.
+    Crest,
+    /// Invert elevation.
+    Invert,
+}
+
+impl SizedField {
+    /// Key as written in scenarios.
+    pub fn key(self) -> &'static str {
+        match self {
+            SizedField::Diameter => "diameter",
+            SizedField::Width => "width",
+            SizedField::Height => "height",
+            SizedField::Length => "length",
+            SizedField::Angle => "angle",
+            SizedField::Crest => "crest",
+            SizedField::Invert => "invert",
+        }
+    }
+
+    /// Whether a lower value is a larger opening.
+    pub fn is_elevation(self) -> bool {
+        matches!(self, SizedField::Crest | SizedField::Invert)
+    }
+}
+
+/// An outlet dimension given as a range, to be solved.
+#[derive(Debug, Clone)]
+pub struct SizedDim {
+    /// Element index of the pond.
+    pub element: usize,
+    /// Outlet index within the pond.
+    pub outlet: usize,
+    /// Which field.
+    pub field: SizedField,
+    /// Range, internal units (ft or degrees).
+    pub min: f64,
+    /// Range, internal units.
+    pub max: f64,
+    /// Byte span of the range in the scenario, for the sized copy.
+    pub span: std::ops::Range<usize>,
+}

@@ -1,0 +1,424 @@
+//! The drainage network: one storm through every element of each
+//! condition, upstream first, into the points.
+//!
+//! A catchment turns rain into excess (curve number) and excess into a
+//! hydrograph (unit hydrograph); an inflow gives its hydrograph directly;
+//! a pond routes the sum of what reaches it. Each element's outflow, shifted
+//! by its `lag`, is added to what reaches its `to`. Every condition of a
+//! storm shares one time base: values at `t = k * step`, k = 0..=n.
+
+use crate::model::{Element, ElementKind, Pond, Study, Target};
+use crate::pond::{self, PondSummary, PondTable, Routed};
+use crate::runoff;
+use crate::timing;
+use crate::unit_hydrograph;
+
+/// Hours of simulation allowed after the last rain or inflow (contract: 7 days).
+pub const TAIL_H: f64 = 7.0 * 24.0;
+
+/// Results of one storm for the conditions simulated.
+#[derive(Debug, Clone)]
+pub struct StormResult {
+    /// Storm index.
+    pub storm: usize,
+    /// Step, h.
+    pub step_h: f64,
+    /// Rain per step, in (`rain_in[j]` falls in `[j, j+1) * step`).
+    pub rain_in: Vec<f64>,
+    /// One result per simulated condition.
+    pub conditions: Vec<ConditionResult>,
+}
+
+impl StormResult {
+    /// Number of values in each series (steps + 1).
+    pub fn len(&self) -> usize {
+        self.rain_in.len() + 1
+    }
+
+    /// Whether the run has no steps.
+    pub fn is_empty(&self) -> bool {
+        self.rain_in.is_empty()
+    }
+
+    /// The result of a condition, if simulated.
+    pub fn condition(&self, c: usize) -> Option<&ConditionResult> {
+        self.conditions.iter().find(|r| r.condition == c)
+    }
+}
+
+/// One condition in one storm.
+#[derive(Debug, Clone)]
+pub struct ConditionResult {
+    /// Condition index.
+    pub condition: usize,
+    /// Per element index; `None` when the element is not in this condition.
+    pub elements: Vec<Option<ElementResult>>,
+    /// Flow reaching each point, cfs.
+    pub points: Vec<Vec<f64>>,
+}
+
+/// What one element produced.
+#[derive(Debug, Clone)]
+pub struct ElementResult {
+    /// Flow leaving the element (before its lag), cfs.
+    pub outflow_cfs: Vec<f64>,
+    /// Catchment runoff details.
+    pub runoff: Option<RunoffResult>,
+    /// Pond routing details.
+    pub pond: Option<PondResult>,
+}
+
+/// A catchment's event totals.
+#[derive(Debug, Clone, Copy)]
+pub struct RunoffResult {
+    /// Rain, in.
+    pub rain_in: f64,
+    /// Runoff (excess), in.
+    pub runoff_in: f64,
+}
+
+/// A pond's routed series and summary.
+#[derive(Debug, Clone)]
+pub struct PondResult {
+    /// Inflow, cfs.
+    pub inflow_cfs: Vec<f64>,
+    /// Stage, ft.
+    pub stage_ft: Vec<f64>,
+    /// Storage above the lowest stage, ft3.
+    pub storage_ft3: Vec<f64>,
+    /// Peaks, volumes, freeboard, drain time.
+    pub summary: PondSummary,
+    /// Start stage, ft.
+    pub start_ft: f64,
+}
+
+/// Peak value and its index.
+pub fn peak(values: &[f64]) -> (f64, usize) {
+    let mut best = (0.0, 0);
+    for (i, &v) in values.iter().enumerate() {
+        if v > best.0 {
+            best = (v, i);
+        }
+    }
+    best
+}
+
+/// Volume of a hydrograph (ft3), trapezoidal in time.
+pub fn volume_ft3(flow_cfs: &[f64], step_h: f64) -> f64 {
+    let dt = step_h * 3600.0;
+    let n = flow_cfs.len();
+    if n < 2 {
+        return 0.0;
+    }
+    let inner: f64 = flow_cfs.iter().sum::<f64>() - 0.5 * (flow_cfs[0] + flow_cfs[n - 1]);
+    inner * dt
+}
+
+/// The starting stage of a pond: `start`, else the lowest outlet, else the bottom.
+pub fn start_stage_ft(p: &Pond) -> f64 {
+    let bottom = p.storage.bottom_ft();
+    p.start_ft.unwrap_or_else(|| {
+        p.outlets
+            .iter()
+            .map(|o| o.lowest_ft())
+            .fold(f64::INFINITY, f64::min)
+            .max(bottom)
+            .min(if p.outlets.is_empty() { bottom } else { f64::INFINITY })
+    })
+}
+
+/// Elements of a condition in upstream-first order.
+pub fn order(elements: &[Element], condition: usize) -> Vec<usize> {
+    let members: Vec<usize> = (0..elements.len()).filter(|&i| elements[i].conditions[condition]).collect();
+    let mut indeg = vec![0usize; elements.len()];
+    for &i in &members {
+        if let Target::Element(j) = elements[i].to {
+            indeg[j] += 1;
+        }
+    }
+    let mut ready: Vec<usize> = members.iter().copied().filter(|&i| indeg[i] == 0).collect();
+    let mut out = Vec::with_capacity(members.len());
+    while let Some(i) = ready.pop() {
+        out.push(i);
+        if let Target::Element(j) = elements[i].to {
+            indeg[j] -= 1;
+            if indeg[j] == 0 {
+                ready.push(j);
+            }
+        }
+    }
+    out
+}
+
+/// Adds `src` shifted later by `lag_h` into `dst` (linear interpolation
+/// for shifts that are not whole steps).
+pub fn add_lagged(dst: &mut [f64], src: &[f64], lag_h: f64, step_h: f64) {
+    let shift = lag_h / step_h;
+    let whole = shift.floor() as usize;
+    let frac = shift - whole as f64;
+    for (k, d) in dst.iter_mut().enumerate() {
+        if k < whole {
+            continue;
+        }
+        let i = k - whole;
+        let a = src.get(i).copied().unwrap_or(0.0);
+        let b = if i > 0 { src.get(i - 1).copied().unwrap_or(0.0) } else { 0.0 };
+        *d += a * (1.0 - frac) + b * frac;
+    }
+}
+
+/// Unit-hydrograph ordinates of a catchment at `step_h` (cfs per in).
+pub fn catchment_uh(c: &crate::model::Catchment, step_h: f64) -> Vec<f64> {
+    let tp = unit_hydrograph::time_to_peak_h(step_h, timing::lag_h(c.tc_h));
+    unit_hydrograph::ordinates_cfs_per_in(c.shape, c.area_ac, tp, step_h)
+}
+
+/// Number of steps simulated before trimming for a storm.
+pub fn horizon_steps(study: &Study, storm: usize) -> usize {
+    let s = &study.storms[storm];
+    let inflow_end = study
+        .elements
+        .iter()
+        .filter_map(|e| match &e.kind {
+            ElementKind::Inflow(i) if i.storm.is_none() || i.storm == Some(storm) => Some(i.end_h() + e.lag_h),
+            _ => None,
+        })
+        .fold(0.0, f64::max);
+    let end = s.rain_end_h().max(inflow_end) + TAIL_H;
+    (end / study.step_h).ceil().max(1.0) as usize
+}
+
+/// Bytes of series memory a storm run needs, for the memory cap.
+pub fn estimate_bytes(study: &Study, storm: usize) -> u64 {
+    let len = horizon_steps(study, storm) as u64 + 1;
+    let per_condition: u64 = study
+        .elements
+        .iter()
+        .map(|e| match e.kind {
+            ElementKind::Pond(_) => 5,
+            _ => 2,
+        })
+        .sum::<u64>()
+        + study.points.len() as u64;
+    len * 8 * (per_condition * study.conditions.len() as u64 + 2)
+}
+
+/// Simulates one storm for the given conditions and trims the run to where
+/// every flow has fallen below 0.1 % of its peak and every pond has drained.
+pub fn simulate_storm(study: &Study, storm: usize, conditions: &[usize]) -> StormResult {
+    let step_h = study.step_h;
+    let n = horizon_steps(study, storm);
+    let len = n + 1;
+    let rain = study.storms[storm].rain_at_step(step_h, n);
+    let mut results: Vec<ConditionResult> = conditions
+        .iter()
+        .map(|&c| simulate_condition(study, storm, c, &rain, len))
+        .collect();
+
+    // Trim: last index where any series is at least 0.1 % of its peak.
+    let rain_end = rain.iter().rposition(|&r| r > 0.0).map(|i| i + 1).unwrap_or(0);
+    let mut end = rain_end;
+    let tail = |s: &[f64]| -> usize {
+        let (p, _) = peak(s);
+        if p <= 0.0 {
+            return 0;
+        }
+        s.iter().rposition(|&v| v >= 0.001 * p).map(|i| i + 1).unwrap_or(0)
+    };
+    for r in &results {
+        for e in r.elements.iter().flatten() {
+            end = end.max(tail(&e.outflow_cfs));
+            if let Some(p) = &e.pond {
+                end = end.max(tail(&p.inflow_cfs));
+                let drained = drain_index(&p.storage_ft3, p.storage_ft3.first().copied().unwrap_or(0.0));
+                end = end.max(drained.unwrap_or(len - 1));
+            }
+        }
+        for p in &r.points {
+            end = end.max(tail(p));
+        }
+    }
+    let keep = (end + 1).min(len).max(2);
+    for r in &mut results {
+        for e in r.elements.iter_mut().flatten() {
+            e.outflow_cfs.truncate(keep);
+            if let Some(p) = &mut e.pond {
+                p.inflow_cfs.truncate(keep);
+                p.stage_ft.truncate(keep);
+                p.storage_ft3.truncate(keep);
+            }
+        }
+        for p in &mut r.points {
+            p.truncate(keep);
+        }
+    }
+    let mut rain = rain;
+    rain.truncate(keep - 1);
+    // Pond summaries on the trimmed run (drain time null if not within it).
+    for r in &mut results {
+        for (i, e) in r.elements.iter_mut().enumerate() {
+            let Some(er) = e.as_mut() else { continue };
+            let mut e_out = std::mem::take(&mut er.outflow_cfs);
+            if let (Some(pr), Some(el)) = (er.pond.as_mut(), study.elements.get(i)) {
+                let ElementKind::Pond(p) = &el.kind else {
+                    er.outflow_cfs = e_out;
+                    continue;
+                };
+                let routed = Routed {
+                    outflow_cfs: std::mem::take(&mut e_out),
+                    stage_ft: std::mem::take(&mut pr.stage_ft),
+                    storage_ft3: std::mem::take(&mut pr.storage_ft3),
+                };
+                pr.summary = pond::summarize_series(&pr.inflow_cfs, &routed, step_h * 3600.0, pr.start_ft, p.top_ft, &p.outlets);
+                e_out = routed.outflow_cfs;
+                pr.stage_ft = routed.stage_ft;
+                pr.storage_ft3 = routed.storage_ft3;
+            }
+            er.outflow_cfs = e_out;
+        }
+    }
+    StormResult {
+        storm,
+        step_h,
+        rain_in: rain,
+        conditions: results,
+    }
+}
+
+/// First index after the peak where storage above the start falls below 1 % of its peak.
+fn drain_index(storage: &[f64], start: f64) -> Option<usize> {
+    let (pk, pi) = storage.iter().enumerate().fold((f64::NEG_INFINITY, 0), |b, (i, &v)| if v > b.0 { (v, i) } else { b });
+    let rise = pk - start;
+    if rise <= 0.0 {
+        return Some(0);
+    }
+    storage.iter().enumerate().skip(pi).find(|(_, v)| **v - start < 0.01 * rise).map(|(i, _)| i)
+}
+
+fn simulate_condition(study: &Study, storm: usize, c: usize, rain: &[f64], len: usize) -> ConditionResult {
+    let step_h = study.step_h;
+    let ne = study.elements.len();
+    let mut inputs: Vec<Vec<f64>> = vec![Vec::new(); ne];
+    let mut elements: Vec<Option<ElementResult>> = vec![None; ne];
+    let mut points = vec![vec![0.0; len]; study.points.len()];
+    for i in order(&study.elements, c) {
+        let e = &study.elements[i];
+        let result = match &e.kind {
+            ElementKind::Catchment(cat) => {
+                let excess = runoff::excess_per_step_in(rain, cat.retention_in, cat.lambda.ratio());
+                let uh = catchment_uh(cat, step_h);
+                let q = unit_hydrograph::convolve(&excess, &uh, len);
+                ElementResult {
+                    outflow_cfs: q,
+                    runoff: Some(RunoffResult {
+                        rain_in: rain.iter().sum(),
+                        runoff_in: excess.iter().sum(),
+                    }),
+                    pond: None,
+                }
+            }
+            ElementKind::Inflow(inf) => {
+                let active = inf.storm.is_none() || inf.storm == Some(storm);
+                let q = (0..len).map(|k| if active { inf.flow_at(k as f64 * step_h) } else { 0.0 }).collect();
+                ElementResult {
+                    outflow_cfs: q,
+                    runoff: None,
+                    pond: None,
+                }
+            }
+            ElementKind::Pond(p) => {
+                let inflow = std::mem::take(&mut inputs[i]);
+                let inflow = if inflow.is_empty() { vec![0.0; len] } else { inflow };
+                route_pond(p, inflow, step_h)
+            }
+        };
+        match e.to {
+            Target::Point(pi) => add_lagged(&mut points[pi], &result.outflow_cfs, e.lag_h, step_h),
+            Target::Element(j) => {
+                if inputs[j].is_empty() {
+                    inputs[j] = vec![0.0; len];
+                }
+                add_lagged(&mut inputs[j], &result.outflow_cfs, e.lag_h, step_h);
+            }
+        }
+        elements[i] = Some(result);
+    }
+    ConditionResult {
+        condition: c,
+        elements,
+        points,
+    }
+}
+
+/// Builds the pond's routing table for an inflow and routes it.
+pub fn route_pond(p: &Pond, inflow: Vec<f64>, step_h: f64) -> ElementResult {
+    let dt_s = step_h * 3600.0;
+    let start = start_stage_ft(p);
+    let table = pond_table(p, &inflow, dt_s, start);
+    let routed = match &table {
+        Ok(t) => pond::route(t, &inflow, start),
+        Err(_) => Routed {
+            outflow_cfs: vec![0.0; inflow.len()],
+            stage_ft: vec![start; inflow.len()],
+            storage_ft3: vec![p.storage.volume_ft3(start); inflow.len()],
+        },
+    };
+    let summary = pond::summarize_series(&inflow, &routed, dt_s, start, p.top_ft, &p.outlets);
+    ElementResult {
+        outflow_cfs: routed.outflow_cfs,
+        runoff: None,
+        pond: Some(PondResult {
+            inflow_cfs: inflow,
+            stage_ft: routed.stage_ft,
+            storage_ft3: routed.storage_ft3,
+            summary,
+            start_ft: start,
+        }),
+    }
+}
+
+/// The stage-storage-discharge table of a pond for a given inflow.
+///
+/// # Errors
+/// When the storage-indication relation is not strictly increasing.
+pub fn pond_table(p: &Pond, inflow: &[f64], dt_s: f64, start_ft: f64) -> Result<PondTable, pond::PondError> {
+    let inflow_volume: f64 = inflow.iter().sum::<f64>() * dt_s;
+    let max_storage = p.storage.volume_ft3(start_ft) + inflow_volume * 1.02 + 1.0;
+    let embankment = p.top_ft.map(|top| pond::Embankment {
+        top_ft: top,
+        crest_length_ft: p.top_length_ft,
+        coefficient: 2.6,
+    });
+    PondTable::build(&p.storage, &p.outlets, embankment.as_ref(), dt_s, p.grid_step_ft, max_storage)
+}
+
+/// A readable stage-storage-discharge table of a pond: about 20 evenly
+/// spaced stages from the bottom to the top (or the highest table row),
+/// plus every outlet's invert, crown and crest. Rows are (stage ft,
+/// storage ft3, outflow cfs).
+pub fn rating_rows(p: &Pond) -> Vec<(f64, f64, f64)> {
+    let bottom = p.storage.bottom_ft();
+    let table_top = p.storage.rows().last().map(|r| r.0).unwrap_or(bottom + 1.0);
+    let top = p.top_ft.unwrap_or(table_top).max(table_top).max(bottom + 0.1);
+    let span = top - bottom;
+    let raw = span / 20.0;
+    let mag = 10f64.powf(raw.log10().floor());
+    let step = [1.0, 2.0, 2.5, 5.0, 10.0].iter().map(|m| m * mag).find(|s| *s >= raw).unwrap_or(raw);
+    let mut stages: Vec<f64> = Vec::new();
+    let mut s = (bottom / step).ceil() * step;
+    stages.push(bottom);
+    while s <= top + 1e-9 {
+        stages.push(s);
+        s += step;
+    }
+    for o in &p.outlets {
+        stages.extend(o.key_stages_ft().into_iter().filter(|k| *k >= bottom && *k <= top));
+    }
+    stages.push(top);
+    stages.sort_by(f64::total_cmp);
+    stages.dedup_by(|a, b| (*a - *b).abs() < 1e-6);
+    stages
+        .into_iter()
+        .map(|h| (h, p.storage.volume_ft3(h), crate::hydraulics::total_flow_cfs(&p.outlets, h)))
+        .collect()
+}

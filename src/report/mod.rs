@@ -1,0 +1,7 @@
+//! Exporters: result structures to bytes. One file per format; the files
+//! are written in one place (`output`).
+
+pub mod csv;
+pub mod markdown;
+pub mod plot;
+pub mod summary;

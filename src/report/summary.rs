@@ -1,0 +1,567 @@
+//! The results of a run in the scenario's units, as one serde structure:
+//! `summary.json` is this structure, and the Markdown report and plots read
+//! it too.
+
+use crate::analysis::Analysis;
+use crate::model::{ElementKind, Study};
+use crate::network;
+use crate::units::{Quantity, UnitSystem};
+use serde::Serialize;
+
+/// Units of the numbers in the summary.
+#[derive(Debug, Clone, Serialize)]
+pub struct Units {
+    /// Flow unit.
+    pub flow: &'static str,
+    /// Volume unit.
+    pub volume: &'static str,
+    /// Stage and length unit.
+    pub stage: &'static str,
+    /// Rain and runoff depth unit.
+    pub depth: &'static str,
+    /// Catchment area unit.
+    pub area: &'static str,
+    /// Time unit of results.
+    pub time: &'static str,
+}
+
+/// Where the results came from.
+#[derive(Debug, Clone, Serialize)]
+pub struct ProvenanceOut {
+    /// Program name.
+    pub program: &'static str,
+    /// Program version.
+    pub version: &'static str,
+    /// Run date and time (UTC, RFC 3339).
+    pub run_date: String,
+    /// Scenario file.
+    pub scenario: String,
+    /// SHA-256 of the scenario text.
+    pub scenario_sha256: String,
+    /// Every input file read.
+    pub inputs: Vec<String>,
+}
+
+/// One flow-path segment.
+#[derive(Debug, Clone, Serialize)]
+pub struct SegmentOut {
+    /// sheet | shallow | channel.
+    pub kind: &'static str,
+    /// Length.
+    pub length: f64,
+    /// Slope, ft/ft.
+    pub slope: f64,
+    /// Manning n (sheet, channel) or null.
+    pub n: Option<f64>,
+    /// Surface (shallow) or null.
+    pub surface: Option<String>,
+    /// Velocity (ft/s or m/s).
+    pub velocity: f64,
+    /// Travel time, h.
+    pub time_h: f64,
+}
+
+/// One cover row.
+#[derive(Debug, Clone, Serialize)]
+pub struct CoverOut {
+    /// Label.
+    pub cover: String,
+    /// Curve number.
+    pub cn: f64,
+    /// Area.
+    pub area: f64,
+}
+
+/// A catchment's derived parameters.
+#[derive(Debug, Clone, Serialize)]
+pub struct CatchmentOut {
+    /// Name.
+    pub name: String,
+    /// Condition(s), joined with ", " when several.
+    pub condition: String,
+    /// Every condition it belongs to.
+    pub conditions: Vec<String>,
+    /// Area.
+    pub area: f64,
+    /// Composite CN (Ia = 0.2 S basis), unrounded.
+    pub cn: f64,
+    /// Initial-abstraction ratio.
+    pub lambda: f64,
+    /// CN equivalent to the retention used (differs from `cn` for lambda 0.05).
+    pub cn_used: f64,
+    /// Retention S used (in or mm).
+    pub retention: f64,
+    /// Time of concentration, h.
+    pub tc_h: f64,
+    /// Lag, h.
+    pub lag_h: f64,
+    /// Time to peak of the unit hydrograph, h.
+    pub tp_h: f64,
+    /// Unit-hydrograph peak per unit depth (flow per in or per mm).
+    pub uh_peak_per_depth: f64,
+    /// Peak rate factor.
+    pub prf: f64,
+    /// Covers.
+    pub covers: Vec<CoverOut>,
+    /// Flow path.
+    pub flow_path: Vec<SegmentOut>,
+    /// Where it drains.
+    pub to: String,
+}
+
+/// One row of `events`: an element or point in a storm and condition.
+#[derive(Debug, Clone, Serialize)]
+pub struct EventOut {
+    /// Storm.
+    pub storm: String,
+    /// Condition.
+    pub condition: String,
+    /// Element or point.
+    pub element: String,
+    /// catchment | pond | inflow | point.
+    pub kind: &'static str,
+    /// Rain depth (catchments).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub rain_depth: Option<f64>,
+    /// Runoff depth (catchments).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub runoff_depth: Option<f64>,
+    /// Peak inflow (ponds).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub peak_inflow: Option<f64>,
+    /// Peak flow (outflow for ponds).
+    pub peak_flow: f64,
+    /// Time of the peak, h.
+    pub peak_time_h: f64,
+    /// Peak stage (ponds).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub peak_stage: Option<f64>,
+    /// Peak storage above the table's lowest stage (ponds).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub peak_storage: Option<f64>,
+    /// Runoff or outflow volume.
+    pub volume: f64,
+    /// Freeboard to the top (ponds with a top).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub freeboard: Option<f64>,
+    /// Whether the pond overtopped.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub overtopped: Option<bool>,
+    /// (inflow - outflow - change in storage) / inflow.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub mass_balance_error: Option<f64>,
+    /// Drain time, h (null when not drained within the run).
+    #[serde(skip_serializing_if = "is_not_pond")]
+    pub drain_time_h: Option<Option<f64>>,
+}
+
+fn is_not_pond(v: &Option<Option<f64>>) -> bool {
+    v.is_none()
+}
+
+/// One limit check.
+#[derive(Debug, Clone, Serialize)]
+pub struct ComparisonOut {
+    /// Point (or pond, for pond checks).
+    pub point: String,
+    /// Storm.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub storm: Option<String>,
+    /// Record (flow-duration control).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub record: Option<String>,
+    /// Baseline condition.
+    pub baseline: String,
+    /// Condition checked.
+    pub condition: String,
+    /// Baseline peak.
+    pub baseline_peak: f64,
+    /// Condition's peak.
+    pub peak: f64,
+    /// Limit.
+    pub limit: f64,
+    /// The limit as written.
+    pub limit_text: String,
+    /// Whether it holds.
+    pub pass: bool,
+    /// Extra detail for record checks.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub detail: Option<serde_json::Value>,
+}
+
+/// One pond limit check.
+#[derive(Debug, Clone, Serialize)]
+pub struct PondCheckOut {
+    /// Pond.
+    pub pond: String,
+    /// Storm or record.
+    pub storm: String,
+    /// Condition.
+    pub condition: String,
+    /// freeboard | drain time | overtopping.
+    pub check: &'static str,
+    /// Value found (stage units or h; null when never drained).
+    pub value: Option<f64>,
+    /// Limit.
+    pub limit: f64,
+    /// Whether it holds.
+    pub pass: bool,
+}
+
+/// One sized outlet dimension.
+#[derive(Debug, Clone, Serialize)]
+pub struct SizedOut {
+    /// Pond.
+    pub pond: String,
+    /// 0-based outlet index.
+    pub outlet: usize,
+    /// Field name.
+    pub field: &'static str,
+    /// Chosen value (length units, or degrees).
+    pub value: f64,
+    /// Range min.
+    pub min: f64,
+    /// Range max.
+    pub max: f64,
+    /// The storm whose limit governs.
+    pub governing_storm: Option<String>,
+    /// The point or pond limit that governs.
+    pub governing_check: Option<String>,
+    /// (limit - peak) / limit of the governing check.
+    pub margin: Option<f64>,
+    /// Whether the range could meet every limit.
+    pub feasible: bool,
+}
+
+/// TR-55 graphical cross-check.
+#[derive(Debug, Clone, Serialize)]
+pub struct GraphicalOut {
+    /// Catchment.
+    pub catchment: String,
+    /// Storm.
+    pub storm: String,
+    /// Ia/P used.
+    pub ia_over_p: f64,
+    /// Unit peak discharge, csm/in.
+    pub unit_peak_csm_per_in: f64,
+    /// Graphical peak.
+    pub graphical_peak: f64,
+    /// Hydrograph peak.
+    pub hydrograph_peak: f64,
+    /// Whether Tc or Ia/P were clamped.
+    pub clamped: bool,
+}
+
+/// A warning.
+#[derive(Debug, Clone, Serialize)]
+pub struct WarningOut {
+    /// Short code.
+    pub code: &'static str,
+    /// Full message.
+    pub message: String,
+}
+
+/// The whole `summary.json`.
+#[derive(Debug, Clone, Serialize)]
+pub struct Summary {
+    /// Title.
+    pub title: String,
+    /// Unit system.
+    pub unit_system: String,
+    /// Units.
+    pub units: Units,
+    /// Step, h.
+    pub step_h: f64,
+    /// Baseline condition.
+    pub baseline: String,
+    /// Conditions.
+    pub conditions: Vec<String>,
+    /// Catchments.
+    pub catchments: Vec<CatchmentOut>,
+    /// Events.
+    pub events: Vec<EventOut>,
+    /// Point comparisons.
+    pub comparisons: Vec<ComparisonOut>,
+    /// Pond limit checks.
+    pub pond_checks: Vec<PondCheckOut>,
+    /// TR-55 graphical cross-checks.
+    pub graphical_checks: Vec<GraphicalOut>,
+    /// Sized outlets.
+    pub sized: Vec<SizedOut>,
+    /// Long-record results.
+    pub records: Vec<serde_json::Value>,
+    /// Warnings.
+    pub warnings: Vec<WarningOut>,
+    /// Provenance.
+    pub provenance: ProvenanceOut,
+    /// Whether every limit holds and no pond overtops.
+    pub all_pass: bool,
+    /// The caution every report carries.
+    pub caution: &'static str,
+}
+
+/// The caution carried by every report.
+pub const CAUTION: &str = "Planning-level computations by published methods (TR-55, NEH 630). Check them against the local drainage code and have them reviewed and sealed by a licensed professional engineer before use. A pond with an embankment may fall under state dam-safety rules.";
+
+/// Output conversion helper.
+#[derive(Debug, Clone, Copy)]
+pub struct Out(pub UnitSystem);
+
+impl Out {
+    /// Flow.
+    pub fn flow(&self, cfs: f64) -> f64 {
+        cfs * Quantity::Flow.output_factor(self.0)
+    }
+    /// Volume.
+    pub fn volume(&self, ft3: f64) -> f64 {
+        ft3 * Quantity::Volume.output_factor(self.0)
+    }
+    /// Length or stage.
+    pub fn length(&self, ft: f64) -> f64 {
+        ft * Quantity::Length.output_factor(self.0)
+    }
+    /// Depth.
+    pub fn depth(&self, inch: f64) -> f64 {
+        inch * Quantity::Depth.output_factor(self.0)
+    }
+    /// Area.
+    pub fn area(&self, ac: f64) -> f64 {
+        ac * Quantity::Area.output_factor(self.0)
+    }
+    /// Unit label.
+    pub fn unit(&self, q: Quantity) -> &'static str {
+        q.output_unit(self.0)
+    }
+}
+
+/// Builds the summary from a study and its analysis.
+pub fn build(study: &Study, a: &Analysis, sized: Vec<SizedOut>, records: Vec<serde_json::Value>, extra_comparisons: Vec<ComparisonOut>, run_date: String) -> Summary {
+    let o = Out(study.units);
+    let step_h = study.step_h;
+    let mut catchments = Vec::new();
+    for e in &study.elements {
+        let ElementKind::Catchment(c) = &e.kind else { continue };
+        let conds: Vec<String> = study.conditions.iter().zip(&e.conditions).filter(|(_, m)| **m).map(|(n, _)| n.clone()).collect();
+        let p2 = study.p2_in.unwrap_or(1.0);
+        let lag = crate::timing::lag_h(c.tc_h);
+        let tp = crate::unit_hydrograph::time_to_peak_h(step_h, lag);
+        let uh = network::catchment_uh(c, step_h);
+        catchments.push(CatchmentOut {
+            name: e.name.clone(),
+            condition: conds.join(", "),
+            conditions: conds,
+            area: o.area(c.area_ac),
+            cn: c.cn,
+            lambda: c.lambda.ratio(),
+            cn_used: crate::runoff::cn_from_retention_in(c.retention_in),
+            retention: o.depth(c.retention_in),
+            tc_h: c.tc_h,
+            lag_h: lag,
+            tp_h: tp,
+            uh_peak_per_depth: o.flow(network::peak(&uh).0) / o.depth(1.0),
+            prf: c.prf,
+            covers: c
+                .covers
+                .iter()
+                .map(|r| CoverOut {
+                    cover: r.label.clone(),
+                    cn: r.cn,
+                    area: o.area(r.area_ac),
+                })
+                .collect(),
+            flow_path: c
+                .segments
+                .iter()
+                .map(|s| {
+                    let t = s.travel(p2);
+                    let (n, surface) = match s {
+                        crate::timing::Segment::Sheet { n, .. } | crate::timing::Segment::Channel { n, .. } => (Some(*n), None),
+                        crate::timing::Segment::Shallow { surface, .. } => (None, Some(surface.clone())),
+                    };
+                    SegmentOut {
+                        kind: s.kind(),
+                        length: o.length(s.length_ft()),
+                        slope: s.slope(),
+                        n,
+                        surface,
+                        velocity: o.length(t.velocity_fps),
+                        time_h: t.time_h,
+                    }
+                })
+                .collect(),
+            to: target_name(study, e.to),
+        });
+    }
+
+    let mut events = Vec::new();
+    for s in &a.storms {
+        let sname = &study.storms[s.storm].name;
+        for c in &s.conditions {
+            let cname = &study.conditions[c.condition];
+            for (i, er) in c.elements.iter().enumerate() {
+                let Some(er) = er else { continue };
+                let e = &study.elements[i];
+                let (pk, pi) = network::peak(&er.outflow_cfs);
+                let mut ev = EventOut {
+                    storm: sname.clone(),
+                    condition: cname.clone(),
+                    element: e.name.clone(),
+                    kind: e.kind_word(),
+                    rain_depth: None,
+                    runoff_depth: None,
+                    peak_inflow: None,
+                    peak_flow: o.flow(pk),
+                    peak_time_h: pi as f64 * step_h,
+                    peak_stage: None,
+                    peak_storage: None,
+                    volume: o.volume(network::volume_ft3(&er.outflow_cfs, step_h)),
+                    freeboard: None,
+                    overtopped: None,
+                    mass_balance_error: None,
+                    drain_time_h: None,
+                };
+                if let Some(r) = &er.runoff {
+                    ev.rain_depth = Some(o.depth(r.rain_in));
+                    ev.runoff_depth = Some(o.depth(r.runoff_in));
+                }
+                if let Some(p) = &er.pond {
+                    let sm = &p.summary;
+                    ev.peak_inflow = Some(o.flow(sm.peak_inflow_cfs));
+                    ev.peak_stage = Some(o.length(sm.peak_stage_ft));
+                    ev.peak_storage = Some(o.volume(sm.peak_storage_ft3));
+                    ev.volume = o.volume(sm.outflow_volume_ft3);
+                    ev.freeboard = sm.freeboard_ft.map(|f| o.length(f));
+                    ev.overtopped = Some(sm.overtopped);
+                    ev.mass_balance_error = Some(sm.mass_balance_error);
+                    ev.drain_time_h = Some(sm.drain_time_h);
+                }
+                events.push(ev);
+            }
+            for (pi, q) in c.points.iter().enumerate() {
+                let (pk, k) = network::peak(q);
+                events.push(EventOut {
+                    storm: sname.clone(),
+                    condition: cname.clone(),
+                    element: study.points[pi].name.clone(),
+                    kind: "point",
+                    rain_depth: None,
+                    runoff_depth: None,
+                    peak_inflow: None,
+                    peak_flow: o.flow(pk),
+                    peak_time_h: k as f64 * step_h,
+                    peak_stage: None,
+                    peak_storage: None,
+                    volume: o.volume(network::volume_ft3(q, step_h)),
+                    freeboard: None,
+                    overtopped: None,
+                    mass_balance_error: None,
+                    drain_time_h: None,
+                });
+            }
+        }
+    }
+
+    let mut comparisons: Vec<ComparisonOut> = a
+        .comparisons
+        .iter()
+        .map(|c| ComparisonOut {
+            point: study.points[c.point].name.clone(),
+            storm: Some(study.storms[c.storm].name.clone()),
+            record: None,
+            baseline: study.conditions[study.baseline].clone(),
+            condition: study.conditions[c.condition].clone(),
+            baseline_peak: o.flow(c.baseline_peak_cfs),
+            peak: o.flow(c.peak_cfs),
+            limit: o.flow(c.limit_cfs),
+            limit_text: study.points[c.point].limit_text.get(c.storm).cloned().unwrap_or_default(),
+            pass: c.pass,
+            detail: None,
+        })
+        .collect();
+    comparisons.extend(extra_comparisons);
+
+    let pond_checks = a
+        .pond_checks
+        .iter()
+        .map(|c| {
+            let is_time = c.what == "drain time";
+            let conv = |v: f64| if is_time { v } else { o.length(v) };
+            PondCheckOut {
+                pond: study.elements[c.element].name.clone(),
+                storm: study.storms[c.storm].name.clone(),
+                condition: study.conditions[c.condition].clone(),
+                check: c.what,
+                value: c.value.is_finite().then(|| conv(c.value)),
+                limit: conv(c.limit),
+                pass: c.pass,
+            }
+        })
+        .collect();
+
+    let graphical_checks = a
+        .graphical
+        .iter()
+        .map(|g| GraphicalOut {
+            catchment: study.elements[g.element].name.clone(),
+            storm: study.storms[g.storm].name.clone(),
+            ia_over_p: g.ia_over_p,
+            unit_peak_csm_per_in: g.qu_csm_per_in,
+            graphical_peak: o.flow(g.graphical_peak_cfs),
+            hydrograph_peak: o.flow(g.hydrograph_peak_cfs),
+            clamped: g.clamped,
+        })
+        .collect();
+
+    let warnings = study
+        .warnings
+        .iter()
+        .chain(&a.warnings)
+        .map(|w| WarningOut {
+            code: w.code(),
+            message: w.to_string(),
+        })
+        .collect();
+
+    let all_pass = comparisons.iter().all(|c| c.pass) && !a.pond_checks.iter().any(|c| !c.pass) && sized.iter().all(|s| s.feasible);
+    Summary {
+        title: study.title.clone(),
+        unit_system: study.units.to_string(),
+        units: Units {
+            flow: o.unit(Quantity::Flow),
+            volume: o.unit(Quantity::Volume),
+            stage: o.unit(Quantity::Length),
+            depth: o.unit(Quantity::Depth),
+            area: o.unit(Quantity::Area),
+            time: "h",
+        },
+        step_h,
+        baseline: study.conditions[study.baseline].clone(),
+        conditions: study.conditions.clone(),
+        catchments,
+        events,
+        comparisons,
+        pond_checks,
+        graphical_checks,
+        sized,
+        records,
+        warnings,
+        provenance: ProvenanceOut {
+            program: "runnel",
+            version: env!("CARGO_PKG_VERSION"),
+            run_date,
+            scenario: study.provenance.scenario.display().to_string(),
+            scenario_sha256: study.provenance.scenario_sha256.clone(),
+            inputs: study.provenance.inputs.iter().map(|p| p.display().to_string()).collect(),
+        },
+        all_pass,
+        caution: CAUTION,
+    }
+}
+
+/// Name of a target.
+pub fn target_name(study: &Study, t: crate::model::Target) -> String {
+    match t {
+        crate::model::Target::Element(i) => study.elements[i].name.clone(),
+        crate::model::Target::Point(i) => study.points[i].name.clone(),
+    }
+}

@@ -1,0 +1,193 @@
+//! Warnings: things that are legal but suspect. They are collected during
+//! loading and simulation, printed on stderr after the results, and written
+//! to `summary.json` and `summary.md`.
+
+use std::fmt;
+
+/// A warning with an actionable hint in its `Display`.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Warning {
+    /// Sheet flow longer than the NEH 630 ch. 15 (2010) guidance.
+    SheetFlowLong {
+        /// Catchment.
+        catchment: String,
+        /// 1-based segment.
+        segment: usize,
+        /// Length as written in results' units.
+        length: String,
+    },
+    /// Tc under the TR-55 minimum of 0.1 h.
+    TcShort {
+        /// Catchment.
+        catchment: String,
+        /// Tc, h.
+        tc_h: f64,
+    },
+    /// Computation step over 0.25 Tp.
+    StepCoarse {
+        /// Catchment.
+        catchment: String,
+        /// Step, h.
+        step_h: f64,
+        /// Tp, h.
+        tp_h: f64,
+    },
+    /// A curve number under 30 (TR-55 Table 2-2 note 4).
+    CnLow {
+        /// Catchment.
+        catchment: String,
+        /// The CN.
+        cn: f64,
+    },
+    /// A pervious cover with CN over 98.
+    CnHighPervious {
+        /// Catchment.
+        catchment: String,
+        /// The cover's label.
+        cover: String,
+        /// The CN.
+        cn: f64,
+    },
+    /// A design storm shorter than a catchment's Tc.
+    StormShorterThanTc {
+        /// Storm.
+        storm: String,
+        /// Catchment.
+        catchment: String,
+        /// Storm duration, h.
+        duration_h: f64,
+        /// Tc, h.
+        tc_h: f64,
+    },
+    /// A condition never reaches a point.
+    PointNotReached {
+        /// Point.
+        point: String,
+        /// Condition.
+        condition: String,
+    },
+    /// An outlet lies above the top of embankment.
+    OutletAboveTop {
+        /// Pond.
+        pond: String,
+        /// 0-based outlet index.
+        outlet: usize,
+    },
+    /// A pond that never fills above its lowest outlet in a storm.
+    PondNeverFills {
+        /// Pond.
+        pond: String,
+        /// Storm.
+        storm: String,
+        /// Condition.
+        condition: String,
+    },
+    /// An orifice whose crown is never submerged in any storm.
+    OrificeNeverSubmerged {
+        /// Pond.
+        pond: String,
+        /// 0-based outlet index.
+        outlet: usize,
+    },
+    /// The water rose over the embankment top.
+    Overtopped {
+        /// Pond.
+        pond: String,
+        /// Storm or record.
+        storm: String,
+        /// Condition.
+        condition: String,
+    },
+    /// The hydrograph peak and the TR-55 graphical peak differ by more than 25 %.
+    GraphicalPeakDiffers {
+        /// Catchment.
+        catchment: String,
+        /// Storm.
+        storm: String,
+        /// Hydrograph peak (results' units).
+        hydrograph: String,
+        /// Graphical peak (results' units).
+        graphical: String,
+    },
+    /// Anything else, worded in full.
+    Note(String),
+}
+
+impl Warning {
+    /// A short stable code for scripts.
+    pub fn code(&self) -> &'static str {
+        match self {
+            Warning::SheetFlowLong { .. } => "sheet-flow-long",
+            Warning::TcShort { .. } => "tc-short",
+            Warning::StepCoarse { .. } => "step-coarse",
+            Warning::CnLow { .. } => "cn-low",
+            Warning::CnHighPervious { .. } => "cn-high-pervious",
+            Warning::StormShorterThanTc { .. } => "storm-shorter-than-tc",
+            Warning::PointNotReached { .. } => "point-not-reached",
+            Warning::OutletAboveTop { .. } => "outlet-above-top",
+            Warning::PondNeverFills { .. } => "pond-never-fills",
+            Warning::OrificeNeverSubmerged { .. } => "orifice-never-submerged",
+            Warning::Overtopped { .. } => "overtopped",
+            Warning::GraphicalPeakDiffers { .. } => "graphical-peak-differs",
+            Warning::Note(_) => "note",
+        }
+    }
+}
+
+impl fmt::Display for Warning {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Warning::SheetFlowLong { catchment, segment, length } => write!(
+                f,
+                "catchment \"{catchment}\", flow segment {segment}: sheet flow of {length} is longer than 100 ft; NEH 630 ch. 15 (2010) says sheet flow seldom runs more than 100 ft (TR-55 1986 allowed 300 ft) - consider ending it sooner and continuing as shallow flow"
+            ),
+            Warning::TcShort { catchment, tc_h } => write!(
+                f,
+                "catchment \"{catchment}\": Tc = {tc_h:.3} h is under the TR-55 minimum of 0.1 h; it is used as computed"
+            ),
+            Warning::StepCoarse { catchment, step_h, tp_h } => write!(
+                f,
+                "catchment \"{catchment}\": the step of {:.1} min is more than 0.25 Tp (Tp = {:.1} min); the unit hydrograph is poorly resolved - set a smaller `step`",
+                step_h * 60.0,
+                tp_h * 60.0
+            ),
+            Warning::CnLow { catchment, cn } => write!(
+                f,
+                "catchment \"{catchment}\": CN {cn:.1} is under 30; TR-55 (Table 2-2 note 4) uses CN = 30 for runoff computations - check the cover"
+            ),
+            Warning::CnHighPervious { catchment, cover, cn } => write!(
+                f,
+                "catchment \"{catchment}\", cover \"{cover}\": CN {cn:.1} over 98 for a pervious cover is unusual - check the cover"
+            ),
+            Warning::StormShorterThanTc { storm, catchment, duration_h, tc_h } => write!(
+                f,
+                "storm \"{storm}\" lasts {duration_h:.2} h, less than the Tc of catchment \"{catchment}\" ({tc_h:.2} h); the whole catchment never contributes at once - the design storm may be too short"
+            ),
+            Warning::PointNotReached { point, condition } => write!(
+                f,
+                "point \"{point}\": nothing in condition \"{condition}\" drains to it; its flow there is zero"
+            ),
+            Warning::OutletAboveTop { pond, outlet } => write!(
+                f,
+                "pond \"{pond}\", outlet {outlet}: it sits above the top of embankment and can only act once the pond overtops"
+            ),
+            Warning::PondNeverFills { pond, storm, condition } => write!(
+                f,
+                "pond \"{pond}\" ({condition}, {storm}): the water never rises above the lowest outlet; the outlets do not act in this storm"
+            ),
+            Warning::OrificeNeverSubmerged { pond, outlet } => write!(
+                f,
+                "pond \"{pond}\", outlet {outlet}: the orifice is never submerged in any storm, so it always flows as a weir"
+            ),
+            Warning::Overtopped { pond, storm, condition } => write!(
+                f,
+                "pond \"{pond}\" overtops in {storm} ({condition}): the water rises over the top of embankment - the embankment is treated as a broad-crested weir; enlarge the pond or the spillway"
+            ),
+            Warning::GraphicalPeakDiffers { catchment, storm, hydrograph, graphical } => write!(
+                f,
+                "catchment \"{catchment}\", {storm}: the hydrograph peak {hydrograph} and the TR-55 graphical-method peak {graphical} differ by more than 25 % - check Tc, CN and the step"
+            ),
+            Warning::Note(s) => f.write_str(s),
+        }
+    }
+}
