@@ -1,1 +1,99 @@
-fn main(){}
+//! Throughput benchmarks (`cargo bench`): the demo study, routing, gauge
+//! parsing, sizing and a whole `runnel run` with its plots.
+
+use std::path::{Path, PathBuf};
+
+fn main() {
+    divan::main();
+}
+
+fn example() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/wrenfield-commons.toml")
+}
+
+/// The demo study: 4 storms x 2 conditions, every series (no files written).
+#[divan::bench(sample_count = 20)]
+fn demo_study_compute(b: divan::Bencher) {
+    let study = runnel::scenario::load(&example()).unwrap_or_else(|e| panic!("{e}"));
+    b.bench_local(|| runnel::analysis::analyse(divan::black_box(&study)));
+}
+
+/// The whole `runnel run` of the demo, PNGs and all, into a temporary folder.
+#[divan::bench(sample_count = 5)]
+fn demo_run_with_plots(b: divan::Bencher) {
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let out = dir.path().join("demo");
+    b.bench_local(|| runnel::cli::run(&example(), Some(&out), false).map(|o| o.failed));
+}
+
+/// Storage-indication routing of 10 million steps through a 1000-row table.
+#[divan::bench(sample_count = 5)]
+fn route_10_million_steps(b: divan::Bencher) {
+    let storage = runnel::pond::StageStorage::from_stage_area(&[
+        (100.0, 5000.0),
+        (105.0, 15000.0),
+        (110.0, 30000.0),
+    ])
+    .unwrap_or_else(|e| panic!("{e}"));
+    let outlets = [
+        runnel::hydraulics::Outlet::CircularOrifice {
+            invert_ft: 100.0,
+            diameter_ft: 0.5,
+            cd: 0.61,
+        },
+        runnel::hydraulics::Outlet::SharpCrestedWeir {
+            crest_ft: 103.0,
+            length_ft: 4.0,
+            coefficient: 3.33,
+            contractions: 0,
+        },
+    ];
+    let table = runnel::pond::PondTable::build(&storage, &outlets, None, 300.0, 0.01, 250_000.0)
+        .unwrap_or_else(|e| panic!("{e}"));
+    let n: usize = 10_000_000;
+    let inflow: Vec<f64> = (0..n)
+        .map(|k| 20.0 * ((k as f64 / 5000.0).sin().max(0.0)).powi(4))
+        .collect();
+    let mut out = runnel::pond::Routed::default();
+    b.counter(divan::counter::ItemsCount::new(n))
+        .bench_local(|| {
+            runnel::pond::route_into(&table, divan::black_box(&inflow), 100.0, &mut out)
+        });
+}
+
+/// Parsing a dense 5-minute gauge CSV of 10.5 million rows (100 years).
+#[divan::bench(sample_count = 3)]
+fn parse_gauge_10_5_million_rows(b: divan::Bencher) {
+    let mut text = String::from("time,depth\n");
+    let n = 10_500_000usize;
+    let start = runnel::gauge::days_from_civil(1925, 1, 1) * 86_400;
+    for k in 1..=n {
+        let t = start + k as i64 * 300;
+        let d = if k % 97 < 5 { "0.02" } else { "0" };
+        text.push_str(&runnel::gauge::format_timestamp(t)[..16].replace('T', " "));
+        text.push(',');
+        text.push_str(d);
+        text.push('\n');
+    }
+    let opts = runnel::gauge::GaugeOptions {
+        interval_s: None,
+        missing_zero: false,
+        max_intervals: 50_000_000,
+    };
+    b.counter(divan::counter::ItemsCount::new(n))
+        .bench_local(|| {
+            runnel::gauge::parse_gauge(divan::black_box(text.as_bytes()), &opts)
+                .map(|s| s.depth.len())
+        });
+}
+
+/// Sizing two outlet dimensions over four storms.
+#[divan::bench(sample_count = 5)]
+fn size_two_dimensions_four_storms(b: divan::Bencher) {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data/sizing-two-dims.toml");
+    let study = runnel::scenario::load(&path).unwrap_or_else(|e| panic!("{e}"));
+    b.bench_local(|| {
+        let mut s = study.clone();
+        runnel::sizing::solve(&mut s).map(|z| z.outputs.len())
+    });
+}

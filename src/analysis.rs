@@ -136,11 +136,19 @@ pub fn point_peak(storms: &[StormResult], storm: usize, condition: usize, point:
 }
 
 /// The limit in cfs for a point, storm and condition, or None when not checked.
-pub fn limit_cfs(study: &Study, storms: &[StormResult], point: usize, storm: usize, condition: usize) -> Option<f64> {
+pub fn limit_cfs(
+    study: &Study,
+    storms: &[StormResult],
+    point: usize,
+    storm: usize,
+    condition: usize,
+) -> Option<f64> {
     match study.points[point].limits.get(storm)? {
         Limit::None => None,
         Limit::Absolute { flow_cfs } => Some(*flow_cfs),
-        Limit::PerArea { cfs_per_ac } => Some(cfs_per_ac * area_to_point_ac(study, point, condition)),
+        Limit::PerArea { cfs_per_ac } => {
+            Some(cfs_per_ac * area_to_point_ac(study, point, condition))
+        }
         Limit::Relative {
             fraction,
             condition: lc,
@@ -192,7 +200,9 @@ pub fn pond_checks(study: &Study, storms: &[StormResult]) -> Vec<PondCheck> {
     for s in storms {
         for c in &s.conditions {
             for (i, e) in c.elements.iter().enumerate() {
-                let (Some(pr), Some(p)) = (e.as_ref().and_then(|e| e.pond.as_ref()), pond_of(study, i)) else {
+                let (Some(pr), Some(p)) =
+                    (e.as_ref().and_then(|e| e.pond.as_ref()), pond_of(study, i))
+                else {
                     continue;
                 };
                 let base = PondCheck {
@@ -249,7 +259,9 @@ pub fn graphical_checks(study: &Study, storms: &[StormResult]) -> Vec<GraphicalC
         let storm = &study.storms[s.storm];
         let Some(t) = storm.nrcs() else { continue };
         for (i, e) in study.elements.iter().enumerate() {
-            let ElementKind::Catchment(c) = &e.kind else { continue };
+            let ElementKind::Catchment(c) = &e.kind else {
+                continue;
+            };
             let p = storm.depth_in();
             let s20 = runoff::retention_in(c.cn);
             let q = runoff::runoff_depth_in(p, s20, 0.2);
@@ -305,7 +317,9 @@ pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
     for s in &storms {
         for c in &s.conditions {
             for (i, e) in c.elements.iter().enumerate() {
-                let Some(pr) = e.as_ref().and_then(|e| e.pond.as_ref()) else { continue };
+                let Some(pr) = e.as_ref().and_then(|e| e.pond.as_ref()) else {
+                    continue;
+                };
                 let pond = &study.elements[i].name;
                 if pr.summary.overtopped {
                     warnings.push(Warning::Overtopped {
@@ -329,14 +343,27 @@ pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
         let Some(p) = pond_of(study, i) else { continue };
         for (k, o) in p.outlets.iter().enumerate() {
             let crown = match o {
-                crate::hydraulics::Outlet::CircularOrifice { invert_ft, diameter_ft, .. } => invert_ft + diameter_ft,
-                crate::hydraulics::Outlet::RectangularOrifice { invert_ft, height_ft, .. } => invert_ft + height_ft,
+                crate::hydraulics::Outlet::CircularOrifice {
+                    invert_ft,
+                    diameter_ft,
+                    ..
+                } => invert_ft + diameter_ft,
+                crate::hydraulics::Outlet::RectangularOrifice {
+                    invert_ft,
+                    height_ft,
+                    ..
+                } => invert_ft + height_ft,
                 _ => continue,
             };
             let max_stage = storms
                 .iter()
                 .flat_map(|s| s.conditions.iter())
-                .filter_map(|c| c.elements.get(i).and_then(|x| x.as_ref()).and_then(|x| x.pond.as_ref()))
+                .filter_map(|c| {
+                    c.elements
+                        .get(i)
+                        .and_then(|x| x.as_ref())
+                        .and_then(|x| x.pond.as_ref())
+                })
                 .map(|pr| pr.summary.peak_stage_ft)
                 .fold(f64::NEG_INFINITY, f64::max);
             if max_stage.is_finite() && max_stage < crown {

@@ -94,7 +94,11 @@ impl fmt::Display for InputError {
             let num = line.to_string();
             write!(f, "\n {} |\n {num} | {text}", " ".repeat(num.len()))?;
             if let Some(c) = self.column {
-                let pad: String = text.chars().take(c.saturating_sub(1)).map(|ch| if ch == '\t' { '\t' } else { ' ' }).collect();
+                let pad: String = text
+                    .chars()
+                    .take(c.saturating_sub(1))
+                    .map(|ch| if ch == '\t' { '\t' } else { ' ' })
+                    .collect();
                 write!(f, "\n {} | {pad}^", " ".repeat(num.len()))?;
             }
         }
@@ -148,7 +152,10 @@ impl Error {
     /// The process exit code the contract gives this error.
     pub fn exit_code(&self) -> i32 {
         match self {
-            Error::Input(_) | Error::Read { .. } | Error::TooLarge { .. } | Error::Compute { .. } => 2,
+            Error::Input(_)
+            | Error::Read { .. }
+            | Error::TooLarge { .. }
+            | Error::Compute { .. } => 2,
             Error::Write { .. } => 3,
         }
     }
@@ -187,13 +194,21 @@ impl SourceText {
         let offset = offset.min(self.text.len());
         let line = self.line_starts.partition_point(|&s| s <= offset).max(1);
         let start = self.line_starts.get(line - 1).copied().unwrap_or(0);
-        let col = self.text.get(start..offset).map(|s| s.chars().count()).unwrap_or(0) + 1;
+        let col = self
+            .text
+            .get(start..offset)
+            .map(|s| s.chars().count())
+            .unwrap_or(0)
+            + 1;
         (line, col)
     }
 
     /// The text of a 1-based line, without its end.
     pub fn line_text(&self, line: usize) -> Option<String> {
-        self.text.lines().nth(line.checked_sub(1)?).map(|s| s.trim_end_matches('\r').to_string())
+        self.text
+            .lines()
+            .nth(line.checked_sub(1)?)
+            .map(|s| s.trim_end_matches('\r').to_string())
     }
 
     /// An error at a byte offset of this file.
@@ -226,9 +241,15 @@ mod tests {
     #[test]
     fn display_starts_with_file_line_column() {
         let s = SourceText::new(Path::new("x.toml"), "area = \"5 ft\"\n".into());
-        let e = s.error_at(7, "not an area").context("catchment \"A\", area").expected("\"8.4 ac\"");
+        let e = s
+            .error_at(7, "not an area")
+            .context("catchment \"A\", area")
+            .expected("\"8.4 ac\"");
         let text = e.to_string();
-        assert!(text.starts_with("x.toml:1:8: catchment \"A\", area: not an area"), "{text}");
+        assert!(
+            text.starts_with("x.toml:1:8: catchment \"A\", area: not an area"),
+            "{text}"
+        );
         assert!(text.contains("expected: \"8.4 ac\""));
     }
 }

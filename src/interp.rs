@@ -16,7 +16,11 @@ pub fn linear(points: &[(f64, f64)], x: f64) -> f64 {
     let i = points.partition_point(|p| p.0 <= x);
     let (x0, y0) = points[i - 1];
     let (x1, y1) = points[i];
-    if x1 > x0 { y0 + (y1 - y0) * (x - x0) / (x1 - x0) } else { y1 }
+    if x1 > x0 {
+        y0 + (y1 - y0) * (x - x0) / (x1 - x0)
+    } else {
+        y1
+    }
 }
 
 #[cfg(test)]

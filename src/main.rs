@@ -52,7 +52,16 @@ enum Command {
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
-        Command::Run { scenario, out, quiet } => runnel::cli::run(&scenario, out.as_deref(), !quiet && std::io::stderr().is_terminal()).map(|o| {
+        Command::Run {
+            scenario,
+            out,
+            quiet,
+        } => runnel::cli::run(
+            &scenario,
+            out.as_deref(),
+            !quiet && std::io::stderr().is_terminal(),
+        )
+        .map(|o| {
             for l in &o.lines {
                 println!("{l}");
             }

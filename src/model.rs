@@ -117,7 +117,9 @@ impl Storm {
         match &self.rain {
             StormRain::Pattern { duration_h, .. } => *duration_h,
             StormRain::Gauge {
-                depth_in, interval_h, ..
+                depth_in,
+                interval_h,
+                ..
             } => depth_in.len() as f64 * interval_h,
         }
     }
@@ -140,7 +142,9 @@ impl Storm {
                 ..
             } => crate::rainfall::hyetograph(curve, *depth_in, *duration_h, step_h, n_steps),
             StormRain::Gauge {
-                depth_in, interval_h, ..
+                depth_in,
+                interval_h,
+                ..
             } => crate::rainfall::resample_gauge(depth_in, *interval_h, step_h, n_steps),
         }
     }
@@ -266,7 +270,9 @@ impl Inflow {
     /// Flow at time t (h), linear between rows and zero outside them.
     pub fn flow_at(&self, t_h: f64) -> f64 {
         match (self.table.first(), self.table.last()) {
-            (Some(a), Some(b)) if t_h >= a.0 && t_h <= b.0 => crate::interp::linear(&self.table, t_h),
+            (Some(a), Some(b)) if t_h >= a.0 && t_h <= b.0 => {
+                crate::interp::linear(&self.table, t_h)
+            }
             _ => 0.0,
         }
     }

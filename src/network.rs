@@ -123,13 +123,19 @@ pub fn start_stage_ft(p: &Pond) -> f64 {
             .map(|o| o.lowest_ft())
             .fold(f64::INFINITY, f64::min)
             .max(bottom)
-            .min(if p.outlets.is_empty() { bottom } else { f64::INFINITY })
+            .min(if p.outlets.is_empty() {
+                bottom
+            } else {
+                f64::INFINITY
+            })
     })
 }
 
 /// Elements of a condition in upstream-first order.
 pub fn order(elements: &[Element], condition: usize) -> Vec<usize> {
-    let members: Vec<usize> = (0..elements.len()).filter(|&i| elements[i].conditions[condition]).collect();
+    let members: Vec<usize> = (0..elements.len())
+        .filter(|&i| elements[i].conditions[condition])
+        .collect();
     let mut indeg = vec![0usize; elements.len()];
     for &i in &members {
         if let Target::Element(j) = elements[i].to {
@@ -162,7 +168,11 @@ pub fn add_lagged(dst: &mut [f64], src: &[f64], lag_h: f64, step_h: f64) {
         }
         let i = k - whole;
         let a = src.get(i).copied().unwrap_or(0.0);
-        let b = if i > 0 { src.get(i - 1).copied().unwrap_or(0.0) } else { 0.0 };
+        let b = if i > 0 {
+            src.get(i - 1).copied().unwrap_or(0.0)
+        } else {
+            0.0
+        };
         *d += a * (1.0 - frac) + b * frac;
     }
 }
@@ -180,7 +190,9 @@ pub fn horizon_steps(study: &Study, storm: usize) -> usize {
         .elements
         .iter()
         .filter_map(|e| match &e.kind {
-            ElementKind::Inflow(i) if i.storm.is_none() || i.storm == Some(storm) => Some(i.end_h() + e.lag_h),
+            ElementKind::Inflow(i) if i.storm.is_none() || i.storm == Some(storm) => {
+                Some(i.end_h() + e.lag_h)
+            }
             _ => None,
         })
         .fold(0.0, f64::max);
@@ -216,21 +228,31 @@ pub fn simulate_storm(study: &Study, storm: usize, conditions: &[usize]) -> Stor
         .collect();
 
     // Trim: last index where any series is at least 0.1 % of its peak.
-    let rain_end = rain.iter().rposition(|&r| r > 0.0).map(|i| i + 1).unwrap_or(0);
+    let rain_end = rain
+        .iter()
+        .rposition(|&r| r > 0.0)
+        .map(|i| i + 1)
+        .unwrap_or(0);
     let mut end = rain_end;
     let tail = |s: &[f64]| -> usize {
         let (p, _) = peak(s);
         if p <= 0.0 {
             return 0;
         }
-        s.iter().rposition(|&v| v >= 0.001 * p).map(|i| i + 1).unwrap_or(0)
+        s.iter()
+            .rposition(|&v| v >= 0.001 * p)
+            .map(|i| i + 1)
+            .unwrap_or(0)
     };
     for r in &results {
         for e in r.elements.iter().flatten() {
             end = end.max(tail(&e.outflow_cfs));
             if let Some(p) = &e.pond {
                 end = end.max(tail(&p.inflow_cfs));
-                let drained = drain_index(&p.storage_ft3, p.storage_ft3.first().copied().unwrap_or(0.0));
+                let drained = drain_index(
+                    &p.storage_ft3,
+                    p.storage_ft3.first().copied().unwrap_or(0.0),
+                );
                 end = end.max(drained.unwrap_or(len - 1));
             }
         }
@@ -269,7 +291,14 @@ pub fn simulate_storm(study: &Study, storm: usize, conditions: &[usize]) -> Stor
                     stage_ft: std::mem::take(&mut pr.stage_ft),
                     storage_ft3: std::mem::take(&mut pr.storage_ft3),
                 };
-                pr.summary = pond::summarize_series(&pr.inflow_cfs, &routed, step_h * 3600.0, pr.start_ft, p.top_ft, &p.outlets);
+                pr.summary = pond::summarize_series(
+                    &pr.inflow_cfs,
+                    &routed,
+                    step_h * 3600.0,
+                    pr.start_ft,
+                    p.top_ft,
+                    &p.outlets,
+                );
                 e_out = routed.outflow_cfs;
                 pr.stage_ft = routed.stage_ft;
                 pr.storage_ft3 = routed.storage_ft3;
@@ -287,15 +316,30 @@ pub fn simulate_storm(study: &Study, storm: usize, conditions: &[usize]) -> Stor
 
 /// First index after the peak where storage above the start falls below 1 % of its peak.
 fn drain_index(storage: &[f64], start: f64) -> Option<usize> {
-    let (pk, pi) = storage.iter().enumerate().fold((f64::NEG_INFINITY, 0), |b, (i, &v)| if v > b.0 { (v, i) } else { b });
+    let (pk, pi) =
+        storage.iter().enumerate().fold(
+            (f64::NEG_INFINITY, 0),
+            |b, (i, &v)| if v > b.0 { (v, i) } else { b },
+        );
     let rise = pk - start;
     if rise <= 0.0 {
         return Some(0);
     }
-    storage.iter().enumerate().skip(pi).find(|(_, v)| **v - start < 0.01 * rise).map(|(i, _)| i)
+    storage
+        .iter()
+        .enumerate()
+        .skip(pi)
+        .find(|(_, v)| **v - start < 0.01 * rise)
+        .map(|(i, _)| i)
 }
 
-fn simulate_condition(study: &Study, storm: usize, c: usize, rain: &[f64], len: usize) -> ConditionResult {
+fn simulate_condition(
+    study: &Study,
+    storm: usize,
+    c: usize,
+    rain: &[f64],
+    len: usize,
+) -> ConditionResult {
     let step_h = study.step_h;
     let ne = study.elements.len();
     let mut inputs: Vec<Vec<f64>> = vec![Vec::new(); ne];
@@ -319,7 +363,15 @@ fn simulate_condition(study: &Study, storm: usize, c: usize, rain: &[f64], len: 
             }
             ElementKind::Inflow(inf) => {
                 let active = inf.storm.is_none() || inf.storm == Some(storm);
-                let q = (0..len).map(|k| if active { inf.flow_at(k as f64 * step_h) } else { 0.0 }).collect();
+                let q = (0..len)
+                    .map(|k| {
+                        if active {
+                            inf.flow_at(k as f64 * step_h)
+                        } else {
+                            0.0
+                        }
+                    })
+                    .collect();
                 ElementResult {
                     outflow_cfs: q,
                     runoff: None,
@@ -328,7 +380,11 @@ fn simulate_condition(study: &Study, storm: usize, c: usize, rain: &[f64], len: 
             }
             ElementKind::Pond(p) => {
                 let inflow = std::mem::take(&mut inputs[i]);
-                let inflow = if inflow.is_empty() { vec![0.0; len] } else { inflow };
+                let inflow = if inflow.is_empty() {
+                    vec![0.0; len]
+                } else {
+                    inflow
+                };
                 route_pond(p, inflow, step_h)
             }
         };
@@ -381,7 +437,12 @@ pub fn route_pond(p: &Pond, inflow: Vec<f64>, step_h: f64) -> ElementResult {
 ///
 /// # Errors
 /// When the storage-indication relation is not strictly increasing.
-pub fn pond_table(p: &Pond, inflow: &[f64], dt_s: f64, start_ft: f64) -> Result<PondTable, pond::PondError> {
+pub fn pond_table(
+    p: &Pond,
+    inflow: &[f64],
+    dt_s: f64,
+    start_ft: f64,
+) -> Result<PondTable, pond::PondError> {
     let inflow_volume: f64 = inflow.iter().sum::<f64>() * dt_s;
     let max_storage = p.storage.volume_ft3(start_ft) + inflow_volume * 1.02 + 1.0;
     let embankment = p.top_ft.map(|top| pond::Embankment {
@@ -389,7 +450,14 @@ pub fn pond_table(p: &Pond, inflow: &[f64], dt_s: f64, start_ft: f64) -> Result<
         crest_length_ft: p.top_length_ft,
         coefficient: 2.6,
     });
-    PondTable::build(&p.storage, &p.outlets, embankment.as_ref(), dt_s, p.grid_step_ft, max_storage)
+    PondTable::build(
+        &p.storage,
+        &p.outlets,
+        embankment.as_ref(),
+        dt_s,
+        p.grid_step_ft,
+        max_storage,
+    )
 }
 
 /// A readable stage-storage-discharge table of a pond: about 20 evenly
@@ -399,11 +467,19 @@ pub fn pond_table(p: &Pond, inflow: &[f64], dt_s: f64, start_ft: f64) -> Result<
 pub fn rating_rows(p: &Pond) -> Vec<(f64, f64, f64)> {
     let bottom = p.storage.bottom_ft();
     let table_top = p.storage.rows().last().map(|r| r.0).unwrap_or(bottom + 1.0);
-    let top = p.top_ft.unwrap_or(table_top).max(table_top).max(bottom + 0.1);
+    let top = p
+        .top_ft
+        .unwrap_or(table_top)
+        .max(table_top)
+        .max(bottom + 0.1);
     let span = top - bottom;
     let raw = span / 20.0;
     let mag = 10f64.powf(raw.log10().floor());
-    let step = [1.0, 2.0, 2.5, 5.0, 10.0].iter().map(|m| m * mag).find(|s| *s >= raw).unwrap_or(raw);
+    let step = [1.0, 2.0, 2.5, 5.0, 10.0]
+        .iter()
+        .map(|m| m * mag)
+        .find(|s| *s >= raw)
+        .unwrap_or(raw);
     let mut stages: Vec<f64> = Vec::new();
     let mut s = (bottom / step).ceil() * step;
     stages.push(bottom);
@@ -412,13 +488,23 @@ pub fn rating_rows(p: &Pond) -> Vec<(f64, f64, f64)> {
         s += step;
     }
     for o in &p.outlets {
-        stages.extend(o.key_stages_ft().into_iter().filter(|k| *k >= bottom && *k <= top));
+        stages.extend(
+            o.key_stages_ft()
+                .into_iter()
+                .filter(|k| *k >= bottom && *k <= top),
+        );
     }
     stages.push(top);
     stages.sort_by(f64::total_cmp);
     stages.dedup_by(|a, b| (*a - *b).abs() < 1e-6);
     stages
         .into_iter()
-        .map(|h| (h, p.storage.volume_ft3(h), crate::hydraulics::total_flow_cfs(&p.outlets, h)))
+        .map(|h| {
+            (
+                h,
+                p.storage.volume_ft3(h),
+                crate::hydraulics::total_flow_cfs(&p.outlets, h),
+            )
+        })
         .collect()
 }

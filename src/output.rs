@@ -18,7 +18,10 @@ pub struct Staging {
 }
 
 fn sibling(target: &Path, tag: &str) -> PathBuf {
-    let name = target.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_else(|| "output".into());
+    let name = target
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "output".into());
     let parent = target.parent().map(Path::to_path_buf).unwrap_or_default();
     parent.join(format!(".{name}.{tag}-{}", std::process::id()))
 }
@@ -29,7 +32,11 @@ impl Staging {
     /// # Errors
     /// When the parent cannot be created or written.
     pub fn new(target: &Path) -> Result<Self, Error> {
-        let parent = target.parent().filter(|p| !p.as_os_str().is_empty()).map(Path::to_path_buf).unwrap_or_else(|| PathBuf::from("."));
+        let parent = target
+            .parent()
+            .filter(|p| !p.as_os_str().is_empty())
+            .map(Path::to_path_buf)
+            .unwrap_or_else(|| PathBuf::from("."));
         std::fs::create_dir_all(&parent).map_err(|e| Error::Write {
             path: parent.clone(),
             message: e.to_string(),
@@ -111,7 +118,13 @@ impl Drop for Staging {
 pub fn slug(name: &str) -> String {
     let s: String = name
         .chars()
-        .map(|c| if c.is_ascii_alphanumeric() || c == '-' || c == '_' || c == '.' { c.to_ascii_lowercase() } else { '-' })
+        .map(|c| {
+            if c.is_ascii_alphanumeric() || c == '-' || c == '_' || c == '.' {
+                c.to_ascii_lowercase()
+            } else {
+                '-'
+            }
+        })
         .collect();
     let s = s.trim_matches('-').to_string();
     if s.is_empty() { "x".into() } else { s }
@@ -129,14 +142,27 @@ mod tests {
         std::fs::write(target.join("summary.json"), "old").unwrap_or_else(|e| panic!("{e}"));
         {
             let s = Staging::new(&target).unwrap_or_else(|e| panic!("{e}"));
-            s.write("summary.json", b"half").unwrap_or_else(|e| panic!("{e}"));
+            s.write("summary.json", b"half")
+                .unwrap_or_else(|e| panic!("{e}"));
         }
-        assert_eq!(std::fs::read_to_string(target.join("summary.json")).unwrap_or_default(), "old");
+        assert_eq!(
+            std::fs::read_to_string(target.join("summary.json")).unwrap_or_default(),
+            "old"
+        );
         let s = Staging::new(&target).unwrap_or_else(|e| panic!("{e}"));
-        s.write("summary.json", b"new").unwrap_or_else(|e| panic!("{e}"));
+        s.write("summary.json", b"new")
+            .unwrap_or_else(|e| panic!("{e}"));
         s.commit().unwrap_or_else(|e| panic!("{e}"));
-        assert_eq!(std::fs::read_to_string(target.join("summary.json")).unwrap_or_default(), "new");
-        assert_eq!(std::fs::read_dir(dir.path()).map(|d| d.count()).unwrap_or(0), 1);
+        assert_eq!(
+            std::fs::read_to_string(target.join("summary.json")).unwrap_or_default(),
+            "new"
+        );
+        assert_eq!(
+            std::fs::read_dir(dir.path())
+                .map(|d| d.count())
+                .unwrap_or(0),
+            1
+        );
     }
 
     #[test]

@@ -118,7 +118,9 @@ pub enum MassCurveError {
         f: f64,
     },
     /// Times or depths go backwards.
-    #[error("row {row}: [{t}, {f}] goes backwards from the row before; times must increase and depths must not decrease")]
+    #[error(
+        "row {row}: [{t}, {f}] goes backwards from the row before; times must increase and depths must not decrease"
+    )]
     Decreasing {
         /// 1-based row.
         row: usize,
@@ -188,7 +190,13 @@ impl MassCurve {
 /// step ends `t = k * step` (k = 1..n) and differenced, so element `j` holds
 /// the rain of the interval `[j * step, (j + 1) * step)`. Rain stops at the
 /// storm's end; `n_steps` may run past it (the rest are zeros).
-pub fn hyetograph(curve: &MassCurve, depth: f64, duration_h: f64, step_h: f64, n_steps: usize) -> Vec<f64> {
+pub fn hyetograph(
+    curve: &MassCurve,
+    depth: f64,
+    duration_h: f64,
+    step_h: f64,
+    n_steps: usize,
+) -> Vec<f64> {
     let mut out = Vec::with_capacity(n_steps);
     let mut prev = 0.0;
     for k in 1..=n_steps {

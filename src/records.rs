@@ -17,7 +17,7 @@ use crate::report::plot;
 use crate::report::summary::{ComparisonOut, Out};
 use crate::stats;
 use crate::unit_hydrograph;
-use crate::units::{sig, Quantity};
+use crate::units::{Quantity, sig};
 use serde::Serialize;
 use std::fmt::Write;
 
@@ -166,7 +166,11 @@ struct Stats {
 
 fn series_stats(values: &[f64], start_s: i64, step_s: i64, step_h: f64) -> Stats {
     let (peak, peak_index) = network::peak(values);
-    let annual = if values.len() > 1 { stats::annual_maxima(start_s, step_s, &values[1..]) } else { Vec::new() };
+    let annual = if values.len() > 1 {
+        stats::annual_maxima(start_s, step_s, &values[1..])
+    } else {
+        Vec::new()
+    };
     Stats {
         peak,
         peak_index,
@@ -175,8 +179,30 @@ fn series_stats(values: &[f64], start_s: i64, step_s: i64, step_h: f64) -> Stats
     }
 }
 
+/// Who a record entry is about.
+struct Subject<'a> {
+    cond: &'a str,
+    element: &'a str,
+    kind: &'static str,
+    area_ac: f64,
+}
+
 /// Builds the frequency and duration parts of a record entry.
-fn entry(study: &Study, r: &Record, cond: &str, element: &str, kind: &'static str, values: &[f64], st: &Stats, rain_in: f64, area_ac: f64, o: &Out, flow_conv: &dyn Fn(f64) -> f64) -> RecordOut {
+fn entry(
+    r: &Record,
+    who: Subject<'_>,
+    values: &[f64],
+    st: &Stats,
+    rain_in: f64,
+    o: &Out,
+) -> RecordOut {
+    let Subject {
+        cond,
+        element,
+        kind,
+        area_ac,
+    } = who;
+    let flow_conv = |q: f64| o.flow(q);
     let step_s = (r.step_h * 3600.0).round() as i64;
     let n = values.len().saturating_sub(1);
     let mut annual_peaks = Vec::new();
@@ -200,11 +226,16 @@ fn entry(study: &Study, r: &Record, cond: &str, element: &str, kind: &'static st
     }
     let fit = stats::fit_lp3(&fit_values);
     let frequency = match &fit {
-        Some(f) => RETURN_PERIODS.iter().map(|&t| FreqOut { return_period: t, flow: flow_conv(f.quantile(t)) }).collect(),
+        Some(f) => RETURN_PERIODS
+            .iter()
+            .map(|&t| FreqOut {
+                return_period: t,
+                flow: flow_conv(f.quantile(t)),
+            })
+            .collect(),
         None => Vec::new(),
     };
     let fdc = stats::flow_duration(values, &EXCEEDANCES);
-    let _ = study;
     RecordOut {
         record: r.name.clone(),
         condition: cond.to_string(),
@@ -214,7 +245,11 @@ fn entry(study: &Study, r: &Record, cond: &str, element: &str, kind: &'static st
         end: gauge::format_timestamp(r.start_s + n as i64 * step_s),
         steps: n,
         rain_depth: o.depth(rain_in),
-        runoff_depth: if area_ac > 0.0 { o.depth(st.volume_ft3 / (area_ac * crate::units::FT2_PER_AC) * 12.0) } else { 0.0 },
+        runoff_depth: if area_ac > 0.0 {
+            o.depth(st.volume_ft3 / (area_ac * crate::units::FT2_PER_AC) * 12.0)
+        } else {
+            0.0
+        },
         volume: o.volume(st.volume_ft3),
         peak_flow: flow_conv(st.peak),
         peak_time: gauge::format_timestamp(r.start_s + st.peak_index as i64 * step_s),
@@ -223,7 +258,14 @@ fn entry(study: &Study, r: &Record, cond: &str, element: &str, kind: &'static st
         zero_years: zero,
         frequency,
         lp3: fit.as_ref().map(|f| [f.mean_log10, f.std_log10, f.skew]),
-        flow_duration: EXCEEDANCES.iter().zip(fdc).map(|(&e, q)| DurOut { exceedance: e, flow: flow_conv(q) }).collect(),
+        flow_duration: EXCEEDANCES
+            .iter()
+            .zip(fdc)
+            .map(|(&e, q)| DurOut {
+                exceedance: e,
+                flow: flow_conv(q),
+            })
+            .collect(),
         events: None,
         stage_duration: None,
         annual_max_stage: None,
@@ -238,7 +280,6 @@ fn entry(study: &Study, r: &Record, cond: &str, element: &str, kind: &'static st
 pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
     let mut res = RecordsResult::default();
     let o = Out(study.units);
-    let fconv = |q: f64| o.flow(q);
     for r in &study.records {
         let step_h = r.step_h;
         let step_s = (step_h * 3600.0).round() as i64;
@@ -248,7 +289,8 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
         let len = n + 1;
         let month_of = |k: usize| gauge::month_of(r.start_s + k as i64 * step_s);
         let bar = (progress && n > 2_000_000).then(|| {
-            let b = indicatif::ProgressBar::new((study.conditions.len() * study.elements.len()) as u64);
+            let b =
+                indicatif::ProgressBar::new((study.conditions.len() * study.elements.len()) as u64);
             b.set_message(format!("record {}", r.name));
             b
         });
@@ -264,24 +306,65 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                 match &e.kind {
                     ElementKind::Catchment(cat) => {
                         let events = match &r.moisture {
-                            MoistureMode::Event { dry_gap_h, antecedent, growing_months } => {
+                            MoistureMode::Event {
+                                dry_gap_h,
+                                antecedent,
+                                growing_months,
+                            } => {
                                 let opts = moisture::EventOptions {
-                                    dry_gap_steps: moisture::dry_gap_steps_for(*dry_gap_h, step_h).unwrap_or(1),
-                                    antecedent: antecedent.then(|| moisture::AntecedentRule { growing_months: *growing_months, ..Default::default() }),
+                                    dry_gap_steps: moisture::dry_gap_steps_for(*dry_gap_h, step_h)
+                                        .unwrap_or(1),
+                                    antecedent: antecedent.then(|| moisture::AntecedentRule {
+                                        growing_months: *growing_months,
+                                        ..Default::default()
+                                    }),
                                 };
-                                moisture::event_excess_into(&rain, step_h, cat.cn, cat.lambda, &opts, &month_of, &mut excess).map_err(|e| Error::Compute { message: format!("record \"{}\": {e}", r.name) })?
+                                moisture::event_excess_into(
+                                    &rain,
+                                    step_h,
+                                    cat.cn,
+                                    cat.lambda,
+                                    &opts,
+                                    &month_of,
+                                    &mut excess,
+                                )
+                                .map_err(|e| Error::Compute {
+                                    message: format!("record \"{}\": {e}", r.name),
+                                })?
                             }
                             MoistureMode::Continuous { .. } => {
                                 return Err(Error::Compute {
-                                    message: format!("record \"{}\": {}", r.name, moisture::MoistureError::ContinuousUnavailable),
+                                    message: format!(
+                                        "record \"{}\": {}",
+                                        r.name,
+                                        moisture::MoistureError::ContinuousUnavailable
+                                    ),
                                 });
                             }
                         };
-                        let tp = unit_hydrograph::time_to_peak_h(step_h, crate::timing::lag_h(cat.tc_h));
-                        let uh = unit_hydrograph::ordinates_cfs_per_in(cat.shape, cat.area_ac, tp, step_h);
+                        let tp =
+                            unit_hydrograph::time_to_peak_h(step_h, crate::timing::lag_h(cat.tc_h));
+                        let uh = unit_hydrograph::ordinates_cfs_per_in(
+                            cat.shape,
+                            cat.area_ac,
+                            tp,
+                            step_h,
+                        );
                         unit_hydrograph::convolve_into(&excess, &uh, &mut out);
                         let st = series_stats(&out, r.start_s, step_s, step_h);
-                        rec_entry = entry(study, r, cname, &e.name, "catchment", &out, &st, rain_total, cat.area_ac, &o, &fconv);
+                        rec_entry = entry(
+                            r,
+                            Subject {
+                                cond: cname,
+                                element: &e.name,
+                                kind: "catchment",
+                                area_ac: cat.area_ac,
+                            },
+                            &out,
+                            &st,
+                            rain_total,
+                            &o,
+                        );
                         rec_entry.runoff_depth = o.depth(excess.iter().sum());
                         rec_entry.events = Some(events);
                     }
@@ -289,11 +372,27 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         // An inflow hydrograph belongs to design storms; over a record it adds nothing.
                         let _ = inf;
                         let st = series_stats(&out, r.start_s, step_s, step_h);
-                        rec_entry = entry(study, r, cname, &e.name, "inflow", &out, &st, rain_total, 0.0, &o, &fconv);
+                        rec_entry = entry(
+                            r,
+                            Subject {
+                                cond: cname,
+                                element: &e.name,
+                                kind: "inflow",
+                                area_ac: 0.0,
+                            },
+                            &out,
+                            &st,
+                            rain_total,
+                            &o,
+                        );
                     }
                     ElementKind::Pond(p) => {
                         let inflow = std::mem::take(&mut inputs[i]);
-                        let inflow = if inflow.is_empty() { vec![0.0; len] } else { inflow };
+                        let inflow = if inflow.is_empty() {
+                            vec![0.0; len]
+                        } else {
+                            inflow
+                        };
                         let dt_s = step_h * 3600.0;
                         let start = network::start_stage_ft(p);
                         // Table up to the largest 30-day inflow volume above the start (a generous bound).
@@ -308,22 +407,77 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                             best = best.max(run);
                         }
                         let max_storage = p.storage.volume_ft3(start) + best * dt_s * 1.05 + 1.0;
-                        let embankment = p.top_ft.map(|top| pond::Embankment { top_ft: top, crest_length_ft: p.top_length_ft, coefficient: 2.6 });
-                        let table = pond::PondTable::build(&p.storage, &p.outlets, embankment.as_ref(), dt_s, p.grid_step_ft, max_storage).map_err(|e| Error::Compute { message: format!("pond \"{}\": {e}", study.elements[i].name) })?;
-                        let mut routed = pond::Routed { outflow_cfs: Vec::new(), stage_ft: Vec::new(), storage_ft3: Vec::new() };
+                        let embankment = p.top_ft.map(|top| pond::Embankment {
+                            top_ft: top,
+                            crest_length_ft: p.top_length_ft,
+                            coefficient: 2.6,
+                        });
+                        let table = pond::PondTable::build(
+                            &p.storage,
+                            &p.outlets,
+                            embankment.as_ref(),
+                            dt_s,
+                            p.grid_step_ft,
+                            max_storage,
+                        )
+                        .map_err(|e| Error::Compute {
+                            message: format!("pond \"{}\": {e}", study.elements[i].name),
+                        })?;
+                        let mut routed = pond::Routed {
+                            outflow_cfs: Vec::new(),
+                            stage_ft: Vec::new(),
+                            storage_ft3: Vec::new(),
+                        };
                         pond::route_into(&table, &inflow, start, &mut routed);
                         out = std::mem::take(&mut routed.outflow_cfs);
                         let st = series_stats(&out, r.start_s, step_s, step_h);
                         let area = crate::analysis::area_to_element_ac(study, i, c);
-                        rec_entry = entry(study, r, cname, &e.name, "pond", &out, &st, rain_total, area, &o, &fconv);
+                        rec_entry = entry(
+                            r,
+                            Subject {
+                                cond: cname,
+                                element: &e.name,
+                                kind: "pond",
+                                area_ac: area,
+                            },
+                            &out,
+                            &st,
+                            rain_total,
+                            &o,
+                        );
                         let sd = stats::flow_duration(&routed.stage_ft, &EXCEEDANCES);
-                        rec_entry.stage_duration = Some(EXCEEDANCES.iter().zip(sd).map(|(&x, s)| StageDurOut { exceedance: x, stage: o.length(s) }).collect());
-                        let am = if routed.stage_ft.len() > 1 { stats::annual_maxima(r.start_s, step_s, &routed.stage_ft[1..]) } else { Vec::new() };
-                        rec_entry.annual_max_stage = Some(am.iter().map(|a| AnnualStage { year: a.year, peak_stage: o.length(a.peak) }).collect());
+                        rec_entry.stage_duration = Some(
+                            EXCEEDANCES
+                                .iter()
+                                .zip(sd)
+                                .map(|(&x, s)| StageDurOut {
+                                    exceedance: x,
+                                    stage: o.length(s),
+                                })
+                                .collect(),
+                        );
+                        let am = if routed.stage_ft.len() > 1 {
+                            stats::annual_maxima(r.start_s, step_s, &routed.stage_ft[1..])
+                        } else {
+                            Vec::new()
+                        };
+                        rec_entry.annual_max_stage = Some(
+                            am.iter()
+                                .map(|a| AnnualStage {
+                                    year: a.year,
+                                    peak_stage: o.length(a.peak),
+                                })
+                                .collect(),
+                        );
                         let vin = network::volume_ft3(&inflow, step_h);
                         let vout = network::volume_ft3(&out, step_h);
-                        let ds = routed.storage_ft3.last().copied().unwrap_or(0.0) - routed.storage_ft3.first().copied().unwrap_or(0.0);
-                        rec_entry.mass_balance_error = Some(if vin > 0.0 { (vin - vout - ds) / vin } else { 0.0 });
+                        let ds = routed.storage_ft3.last().copied().unwrap_or(0.0)
+                            - routed.storage_ft3.first().copied().unwrap_or(0.0);
+                        rec_entry.mass_balance_error = Some(if vin > 0.0 {
+                            (vin - vout - ds) / vin
+                        } else {
+                            0.0
+                        });
                     }
                 }
                 res.entries.push(rec_entry);
@@ -351,7 +505,19 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                 }
                 let st = series_stats(p, r.start_s, step_s, step_h);
                 let area = crate::analysis::area_to_point_ac(study, pi, c);
-                res.entries.push(entry(study, r, cname, &study.points[pi].name, "point", p, &st, rain_total, area, &o, &fconv));
+                res.entries.push(entry(
+                    r,
+                    Subject {
+                        cond: cname,
+                        element: &study.points[pi].name,
+                        kind: "point",
+                        area_ac: area,
+                    },
+                    p,
+                    &st,
+                    rain_total,
+                    &o,
+                ));
             }
             point_series.push(points);
         }
@@ -360,14 +526,30 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
         }
         // Flow-duration control and plots per point.
         for (pi, pt) in study.points.iter().enumerate() {
-            let base_entry = res.entries.iter().find(|e| e.record == r.name && e.kind == "point" && e.element == pt.name && e.condition == study.conditions[study.baseline]).cloned();
+            let base_entry = res
+                .entries
+                .iter()
+                .find(|e| {
+                    e.record == r.name
+                        && e.kind == "point"
+                        && e.element == pt.name
+                        && e.condition == study.conditions[study.baseline]
+                })
+                .cloned();
             if let (Some(dc), Some(be)) = (&pt.durations, &base_entry) {
-                let lp3 = be.lp3.map(|[m, s, g]| stats::Lp3Fit { mean_log10: m, std_log10: s, skew: g, n: be.annual_peaks.len() });
+                let lp3 = be.lp3.map(|[m, s, g]| stats::Lp3Fit {
+                    mean_log10: m,
+                    std_log10: s,
+                    skew: g,
+                    n: be.annual_peaks.len(),
+                });
                 if let Some(fit) = lp3 {
                     let from = dc.from.0 * fit.quantile(dc.from.1);
                     let to = dc.to.0 * fit.quantile(dc.to.1);
                     let (lo, hi) = (from.min(to), from.max(to));
-                    let levels: Vec<f64> = (0..100).map(|k| (lo.ln() + (hi.ln() - lo.ln()) * k as f64 / 99.0).exp()).collect();
+                    let levels: Vec<f64> = (0..100)
+                        .map(|k| (lo.ln() + (hi.ln() - lo.ln()) * k as f64 / 99.0).exp())
+                        .collect();
                     let base_series = &point_series[study.baseline][pi];
                     let tb = stats::times_above_levels(base_series, &levels);
                     for (c, cname) in study.conditions.iter().enumerate() {
@@ -378,8 +560,16 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         let mut worst = (f64::NEG_INFINITY, 0usize);
                         let mut pass = true;
                         for (k, (&b, &x)) in tb.iter().zip(&tc).enumerate() {
-                            let excess = if b == 0 { if x > 0 { f64::INFINITY } else { 0.0 } } else { (x as f64 - b as f64) / b as f64 };
-                            let bad = if b == 0 { x > 0 } else { x as f64 > b as f64 * (1.0 + dc.tolerance) + 1e-9 };
+                            let excess = if b == 0 {
+                                if x > 0 { f64::INFINITY } else { 0.0 }
+                            } else {
+                                (x as f64 - b as f64) / b as f64
+                            };
+                            let bad = if b == 0 {
+                                x > 0
+                            } else {
+                                x as f64 > b as f64 * (1.0 + dc.tolerance) + 1e-9
+                            };
                             if bad {
                                 pass = false;
                             }
@@ -387,7 +577,12 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                                 worst = (excess, k);
                             }
                         }
-                        let ce = res.entries.iter().find(|e| e.record == r.name && e.kind == "point" && e.element == pt.name && &e.condition == cname);
+                        let ce = res.entries.iter().find(|e| {
+                            e.record == r.name
+                                && e.kind == "point"
+                                && e.element == pt.name
+                                && &e.condition == cname
+                        });
                         let wl = levels.get(worst.1).copied().unwrap_or(0.0);
                         res.comparisons.push(ComparisonOut {
                             point: pt.name.clone(),
@@ -419,37 +614,108 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
             let per_day = ((24.0 / step_h).round() as usize).max(1);
             for (c, cname) in study.conditions.iter().enumerate() {
                 let s = &point_series[c][pi];
-                let ex: Vec<f64> = (0..60).map(|k| 10f64.powf(-4.0 + 4.0 * k as f64 / 59.0)).collect();
+                let ex: Vec<f64> = (0..60)
+                    .map(|k| 10f64.powf(-4.0 + 4.0 * k as f64 / 59.0))
+                    .collect();
                 let q = stats::flow_duration(s, &ex);
-                curves.push((cname.clone(), ex.into_iter().zip(q.into_iter().map(|v| o.flow(v))).collect()));
-                if let Some(en) = res.entries.iter().find(|e| e.record == r.name && e.kind == "point" && e.element == pt.name && &e.condition == cname) {
-                    let mut peaks: Vec<f64> = en.annual_peaks.iter().map(|a| a.peak_flow).filter(|v| *v > 0.0).collect();
+                curves.push((
+                    cname.clone(),
+                    ex.into_iter()
+                        .zip(q.into_iter().map(|v| o.flow(v)))
+                        .collect(),
+                ));
+                if let Some(en) = res.entries.iter().find(|e| {
+                    e.record == r.name
+                        && e.kind == "point"
+                        && e.element == pt.name
+                        && &e.condition == cname
+                }) {
+                    let mut peaks: Vec<f64> = en
+                        .annual_peaks
+                        .iter()
+                        .map(|a| a.peak_flow)
+                        .filter(|v| *v > 0.0)
+                        .collect();
                     peaks.sort_by(|a, b| b.total_cmp(a));
                     let m = peaks.len() as f64;
-                    observed.push((cname.clone(), peaks.iter().enumerate().map(|(i, &v)| ((m + 1.0) / (i as f64 + 1.0), v)).collect()));
+                    observed.push((
+                        cname.clone(),
+                        peaks
+                            .iter()
+                            .enumerate()
+                            .map(|(i, &v)| ((m + 1.0) / (i as f64 + 1.0), v))
+                            .collect(),
+                    ));
                     if let Some([mu, sd, g]) = en.lp3 {
-                        let f = stats::Lp3Fit { mean_log10: mu, std_log10: sd, skew: g, n: peaks.len() };
-                        let ts = [1.01, 1.1, 1.25, 1.5, 2.0, 3.0, 5.0, 10.0, 20.0, 25.0, 50.0, 100.0, 200.0];
-                        fitted.push((cname.clone(), ts.iter().map(|&t| (t, o.flow(f.quantile(t)))).collect()));
+                        let f = stats::Lp3Fit {
+                            mean_log10: mu,
+                            std_log10: sd,
+                            skew: g,
+                            n: peaks.len(),
+                        };
+                        let ts = [
+                            1.01, 1.1, 1.25, 1.5, 2.0, 3.0, 5.0, 10.0, 20.0, 25.0, 50.0, 100.0,
+                            200.0,
+                        ];
+                        fitted.push((
+                            cname.clone(),
+                            ts.iter().map(|&t| (t, o.flow(f.quantile(t)))).collect(),
+                        ));
                     }
                 }
-                daily.push((cname.clone(), s.chunks(per_day).map(|ch| o.flow(ch.iter().copied().fold(0.0, f64::max))).collect()));
+                daily.push((
+                    cname.clone(),
+                    s.chunks(per_day)
+                        .map(|ch| o.flow(ch.iter().copied().fold(0.0, f64::max)))
+                        .collect(),
+                ));
             }
             let (y, mo, d) = gauge::civil_from_days(r.start_s.div_euclid(86_400));
-            let title = format!("{} at {} - record {}", if study.title.is_empty() { "runnel" } else { &study.title }, pt.name, r.name);
-            let base = format!("record-{}-{}", output::slug(&r.name), output::slug(&pt.name));
+            let title = format!(
+                "{} at {} - record {}",
+                if study.title.is_empty() {
+                    "runnel"
+                } else {
+                    &study.title
+                },
+                pt.name,
+                r.name
+            );
+            let base = format!(
+                "record-{}-{}",
+                output::slug(&r.name),
+                output::slug(&pt.name)
+            );
             res.plots.push((
                 format!("record {} at {}", r.name, pt.name),
                 base,
                 PlotData {
-                    duration: plot::DurationPlot { title: format!("Flow duration - {title}"), flow_unit: fu.clone(), curves },
-                    frequency: plot::FrequencyPlot { title: format!("Annual peaks - {title}"), flow_unit: fu.clone(), observed, fitted },
-                    overview: plot::OverviewPlot { title: format!("Daily maximum flow - {title}"), flow_unit: fu.clone(), day_labels_start: (y, mo, d), daily_max: daily },
+                    duration: plot::DurationPlot {
+                        title: format!("Flow duration - {title}"),
+                        flow_unit: fu.clone(),
+                        curves,
+                    },
+                    frequency: plot::FrequencyPlot {
+                        title: format!("Annual peaks - {title}"),
+                        flow_unit: fu.clone(),
+                        observed,
+                        fitted,
+                    },
+                    overview: plot::OverviewPlot {
+                        title: format!("Daily maximum flow - {title}"),
+                        flow_unit: fu.clone(),
+                        day_labels_start: (y, mo, d),
+                        daily_max: daily,
+                    },
                 },
             ));
         }
     }
-    res.json = res.entries.iter().filter_map(|e| serde_json::to_value(e).ok()).collect();
+    res.json = res
+        .entries
+        .iter()
+        .filter_map(|e| serde_json::to_value(e).ok())
+        .collect();
     res.markdown = markdown(study, &res);
     Ok(res)
 }
@@ -458,10 +724,17 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
 ///
 /// # Errors
 /// When a plot cannot be drawn or written.
-pub fn write_plots(_study: &Study, res: &RecordsResult, stage: &Staging) -> Result<Vec<(String, String)>, Error> {
+pub fn write_plots(
+    _study: &Study,
+    res: &RecordsResult,
+    stage: &Staging,
+) -> Result<Vec<(String, String)>, Error> {
     let mut out = Vec::new();
     for (cap, base, p) in &res.plots {
-        let err = |e: plot::PlotError| Error::Write { path: stage.temp_dir().to_path_buf(), message: e.to_string() };
+        let err = |e: plot::PlotError| Error::Write {
+            path: stage.temp_dir().to_path_buf(),
+            message: e.to_string(),
+        };
         let f1 = format!("{base}-duration.png");
         stage.write(&f1, &plot::flow_duration_png(&p.duration).map_err(err)?)?;
         out.push((format!("{cap}: flow duration"), f1));
@@ -484,22 +757,73 @@ fn markdown(study: &Study, res: &RecordsResult) -> String {
     let du = o.unit(Quantity::Depth);
     let mut m = String::new();
     let _ = writeln!(m, "## Long records\n");
-    let _ = writeln!(m, "Event curve-number accounting (events split by dry gaps), unit hydrographs and storage-indication over the whole record. Frequency by log-Pearson Type III fitted to log10 annual peaks by moments with the station skew (Bulletin 17B frequency factors from the gamma inverse); Weibull plotting positions; complete calendar years only (>= 90 % of intervals).\n");
+    let _ = writeln!(
+        m,
+        "Event curve-number accounting (events split by dry gaps), unit hydrographs and storage-indication over the whole record. Frequency by log-Pearson Type III fitted to log10 annual peaks by moments with the station skew (Bulletin 17B frequency factors from the gamma inverse); Weibull plotting positions; complete calendar years only (>= 90 % of intervals).\n"
+    );
     for r in &study.records {
         let _ = writeln!(m, "### Record \"{}\"\n", r.name);
-        let _ = writeln!(m, "| condition | element | kind | rain [{du}] | runoff [{du}] | peak [{fu}] | when | Q2 | Q10 | Q100 | 1 % time | 0.1 % time |\n|---|---|---|---:|---:|---:|---|---:|---:|---:|---:|---:|");
+        let _ = writeln!(
+            m,
+            "| condition | element | kind | rain [{du}] | runoff [{du}] | peak [{fu}] | when | Q2 | Q10 | Q100 | 1 % time | 0.1 % time |\n|---|---|---|---:|---:|---:|---|---:|---:|---:|---:|---:|"
+        );
         for e in res.entries.iter().filter(|e| e.record == r.name) {
-            let q = |t: f64| e.frequency.iter().find(|f| (f.return_period - t).abs() < 1e-9).map(|f| sig(f.flow, 4)).unwrap_or_else(|| "-".into());
-            let d = |x: f64| e.flow_duration.iter().find(|f| (f.exceedance - x).abs() < 1e-12).map(|f| sig(f.flow, 4)).unwrap_or_else(|| "-".into());
-            let _ = writeln!(m, "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |", e.condition, e.element, e.kind, sig(e.rain_depth, 5), sig(e.runoff_depth, 5), sig(e.peak_flow, 4), e.peak_time, q(2.0), q(10.0), q(100.0), d(0.01), d(0.001));
+            let q = |t: f64| {
+                e.frequency
+                    .iter()
+                    .find(|f| (f.return_period - t).abs() < 1e-9)
+                    .map(|f| sig(f.flow, 4))
+                    .unwrap_or_else(|| "-".into())
+            };
+            let d = |x: f64| {
+                e.flow_duration
+                    .iter()
+                    .find(|f| (f.exceedance - x).abs() < 1e-12)
+                    .map(|f| sig(f.flow, 4))
+                    .unwrap_or_else(|| "-".into())
+            };
+            let _ = writeln!(
+                m,
+                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
+                e.condition,
+                e.element,
+                e.kind,
+                sig(e.rain_depth, 5),
+                sig(e.runoff_depth, 5),
+                sig(e.peak_flow, 4),
+                e.peak_time,
+                q(2.0),
+                q(10.0),
+                q(100.0),
+                d(0.01),
+                d(0.001)
+            );
         }
         let _ = writeln!(m);
-        let rows: Vec<_> = res.comparisons.iter().filter(|c| c.record.as_deref() == Some(&r.name)).collect();
+        let rows: Vec<_> = res
+            .comparisons
+            .iter()
+            .filter(|c| c.record.as_deref() == Some(&r.name))
+            .collect();
         if !rows.is_empty() {
-            let _ = writeln!(m, "Flow-duration control (time above each of 100 flows spaced evenly in log over the range; a condition fails where its time exceeds the baseline's by more than the tolerance, or where the baseline's time is zero):\n");
-            let _ = writeln!(m, "| point | condition | rule | worst flow [{fu}] | result |\n|---|---|---|---:|---|");
+            let _ = writeln!(
+                m,
+                "Flow-duration control (time above each of 100 flows spaced evenly in log over the range; a condition fails where its time exceeds the baseline's by more than the tolerance, or where the baseline's time is zero):\n"
+            );
+            let _ = writeln!(
+                m,
+                "| point | condition | rule | worst flow [{fu}] | result |\n|---|---|---|---:|---|"
+            );
             for c in rows {
-                let _ = writeln!(m, "| {} | {} | {} | {} | {} |", c.point, c.condition, c.limit_text, sig(c.limit, 4), if c.pass { "meets" } else { "**EXCEEDS**" });
+                let _ = writeln!(
+                    m,
+                    "| {} | {} | {} | {} | {} |",
+                    c.point,
+                    c.condition,
+                    c.limit_text,
+                    sig(c.limit, 4),
+                    if c.pass { "meets" } else { "**EXCEEDS**" }
+                );
             }
             let _ = writeln!(m);
         }

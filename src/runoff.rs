@@ -162,7 +162,13 @@ mod tests {
     #[test]
     fn initial_abstraction_matches_tr55_table_4_1() {
         // TR-55 (1986) Table 4-1 (transcribed): Ia = 0.2 S.
-        for &(cn, ia) in &[(40.0, 3.000), (60.0, 1.333), (75.0, 0.667), (90.0, 0.222), (98.0, 0.041)] {
+        for &(cn, ia) in &[
+            (40.0, 3.000),
+            (60.0, 1.333),
+            (75.0, 0.667),
+            (90.0, 0.222),
+            (98.0, 0.041),
+        ] {
             assert!((0.2 * retention_in(cn) - ia).abs() < 0.0006, "CN {cn}");
         }
     }
@@ -179,7 +185,13 @@ mod tests {
     fn hawkins_conversion_matches_reference_values() {
         // Hawkins et al. (2002) S0.05 = 1.33 S0.20^1.15 (from memory, corroborated);
         // CN values computed from it in the reference file, section 6.
-        for &(cn20, cn05) in &[(60.0, 45.9), (70.0, 58.5), (80.0, 72.4), (90.0, 86.9), (98.0, 97.9)] {
+        for &(cn20, cn05) in &[
+            (60.0, 45.9),
+            (70.0, 58.5),
+            (80.0, 72.4),
+            (90.0, 86.9),
+            (98.0, 97.9),
+        ] {
             let got = cn_from_retention_in(Lambda::Reduced.retention_in(cn20));
             assert!((got - cn05).abs() < 0.06, "CN {cn20}: {got}");
         }

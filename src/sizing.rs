@@ -51,20 +51,31 @@ impl Check {
         if self.limit.abs() < 1e-12 {
             return if self.pass() { 0.0 } else { -1.0 };
         }
-        if self.upper { (self.limit - self.value) / self.limit } else { (self.value - self.limit) / self.limit }
+        if self.upper {
+            (self.limit - self.value) / self.limit
+        } else {
+            (self.value - self.limit) / self.limit
+        }
     }
 }
 
 /// Sets the value of a sized dimension in the study.
 fn set(study: &mut Study, d: &SizedDim, v: f64) {
-    let ElementKind::Pond(p) = &mut study.elements[d.element].kind else { return };
-    let Some(o) = p.outlets.get_mut(d.outlet) else { return };
+    let ElementKind::Pond(p) = &mut study.elements[d.element].kind else {
+        return;
+    };
+    let Some(o) = p.outlets.get_mut(d.outlet) else {
+        return;
+    };
     match (o, d.field) {
-        (Outlet::CircularOrifice { diameter_ft, .. }, SizedField::Diameter) | (Outlet::Riser { diameter_ft, .. }, SizedField::Diameter) => *diameter_ft = v,
-        (Outlet::CircularOrifice { invert_ft, .. }, SizedField::Invert) | (Outlet::RectangularOrifice { invert_ft, .. }, SizedField::Invert) => *invert_ft = v,
+        (Outlet::CircularOrifice { diameter_ft, .. }, SizedField::Diameter)
+        | (Outlet::Riser { diameter_ft, .. }, SizedField::Diameter) => *diameter_ft = v,
+        (Outlet::CircularOrifice { invert_ft, .. }, SizedField::Invert)
+        | (Outlet::RectangularOrifice { invert_ft, .. }, SizedField::Invert) => *invert_ft = v,
         (Outlet::RectangularOrifice { width_ft, .. }, SizedField::Width) => *width_ft = v,
         (Outlet::RectangularOrifice { height_ft, .. }, SizedField::Height) => *height_ft = v,
-        (Outlet::SharpCrestedWeir { length_ft, .. }, SizedField::Length) | (Outlet::BroadCrestedWeir { length_ft, .. }, SizedField::Length) => *length_ft = v,
+        (Outlet::SharpCrestedWeir { length_ft, .. }, SizedField::Length)
+        | (Outlet::BroadCrestedWeir { length_ft, .. }, SizedField::Length) => *length_ft = v,
         (Outlet::SharpCrestedWeir { crest_ft, .. }, SizedField::Crest)
         | (Outlet::BroadCrestedWeir { crest_ft, .. }, SizedField::Crest)
         | (Outlet::VNotchWeir { crest_ft, .. }, SizedField::Crest)
@@ -76,7 +87,11 @@ fn set(study: &mut Study, d: &SizedDim, v: f64) {
 
 /// Opening fraction 0..1 to a value.
 fn value_at(d: &SizedDim, opening: f64) -> f64 {
-    if d.field.is_elevation() { d.max - opening * (d.max - d.min) } else { d.min + opening * (d.max - d.min) }
+    if d.field.is_elevation() {
+        d.max - opening * (d.max - d.min)
+    } else {
+        d.min + opening * (d.max - d.min)
+    }
 }
 
 /// Simulates the conditions that hold a sized pond, reusing the rest.
@@ -87,12 +102,21 @@ fn simulate(study: &Study, cache: &[StormResult], conditions: &[usize]) -> Vec<S
             let mut fresh = network::simulate_storm(study, s, conditions);
             let mut merged = cache[s].clone();
             for c in fresh.conditions.drain(..) {
-                if let Some(slot) = merged.conditions.iter_mut().find(|x| x.condition == c.condition) {
+                if let Some(slot) = merged
+                    .conditions
+                    .iter_mut()
+                    .find(|x| x.condition == c.condition)
+                {
                     *slot = c;
                 }
             }
             // Keep one time base: pad every series to the longest.
-            let len = merged.conditions.iter().flat_map(|c| c.points.iter().map(Vec::len)).max().unwrap_or(0);
+            let len = merged
+                .conditions
+                .iter()
+                .flat_map(|c| c.points.iter().map(Vec::len))
+                .max()
+                .unwrap_or(0);
             for c in &mut merged.conditions {
                 for p in &mut c.points {
                     p.resize(len, 0.0);
@@ -106,7 +130,9 @@ fn simulate(study: &Study, cache: &[StormResult], conditions: &[usize]) -> Vec<S
 /// Every check a pond's sizing must keep, evaluated on storm results.
 fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
     let mut out = Vec::new();
-    let ElementKind::Pond(p) = &study.elements[pond].kind else { return out };
+    let ElementKind::Pond(p) = &study.elements[pond].kind else {
+        return out;
+    };
     for s in storms {
         for c in &s.conditions {
             if !study.elements[pond].conditions[c.condition] {
@@ -119,14 +145,24 @@ fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
                 if let Some(limit) = analysis::limit_cfs(study, storms, pi, s.storm, c.condition) {
                     out.push(Check {
                         storm: s.storm,
-                        what: format!("point \"{}\" peak ({})", study.points[pi].name, study.conditions[c.condition]),
+                        what: format!(
+                            "point \"{}\" peak ({})",
+                            study.points[pi].name, study.conditions[c.condition]
+                        ),
                         value: analysis::point_peak(storms, s.storm, c.condition, pi),
                         limit,
                         upper: true,
                     });
                 }
             }
-            let Some(pr) = c.elements.get(pond).and_then(|e| e.as_ref()).and_then(|e| e.pond.as_ref()) else { continue };
+            let Some(pr) = c
+                .elements
+                .get(pond)
+                .and_then(|e| e.as_ref())
+                .and_then(|e| e.pond.as_ref())
+            else {
+                continue;
+            };
             if let Some(top) = p.top_ft {
                 out.push(Check {
                     storm: s.storm,
@@ -172,17 +208,32 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
     // Lowest outlet first (by its lowest elevation at the range's low end).
     dims.sort_by(|a, b| {
         let low = |d: &SizedDim| match &study.elements[d.element].kind {
-            ElementKind::Pond(p) => p.outlets.get(d.outlet).map(|o| o.lowest_ft()).unwrap_or(0.0) - if d.field.is_elevation() { d.max - d.min } else { 0.0 },
+            ElementKind::Pond(p) => {
+                p.outlets
+                    .get(d.outlet)
+                    .map(|o| o.lowest_ft())
+                    .unwrap_or(0.0)
+                    - if d.field.is_elevation() {
+                        d.max - d.min
+                    } else {
+                        0.0
+                    }
+            }
             _ => 0.0,
         };
         low(a).total_cmp(&low(b))
     });
-    let conditions: Vec<usize> = (0..study.conditions.len()).filter(|&c| dims.iter().any(|d| study.elements[d.element].conditions[c])).collect();
+    let conditions: Vec<usize> = (0..study.conditions.len())
+        .filter(|&c| dims.iter().any(|d| study.elements[d.element].conditions[c]))
+        .collect();
     for d in &dims {
         set(study, d, value_at(d, 0.0));
     }
     let all: Vec<usize> = (0..study.conditions.len()).collect();
-    let cache: Vec<StormResult> = (0..study.storms.len()).into_par_iter().map(|s| network::simulate_storm(study, s, &all)).collect();
+    let cache: Vec<StormResult> = (0..study.storms.len())
+        .into_par_iter()
+        .map(|s| network::simulate_storm(study, s, &all))
+        .collect();
     let feasible = |study: &Study, pond: usize| -> (bool, Vec<Check>) {
         let storms = simulate(study, &cache, &conditions);
         let ch = checks(study, &storms, pond);
@@ -209,7 +260,11 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
                     let (mut lo, mut hi) = (0.0f64, 1.0f64);
                     for _ in 0..60 {
                         let (vl, vh) = (value_at(d, lo), value_at(d, hi));
-                        let tol = if d.field.is_elevation() { (0.001 * (d.max - d.min)).max(1e-4) } else { 0.0005 * vl.abs().max(1e-6) };
+                        let tol = if d.field.is_elevation() {
+                            (0.001 * (d.max - d.min)).max(1e-4)
+                        } else {
+                            0.0005 * vl.abs().max(1e-6)
+                        };
                         if (vh - vl).abs() <= tol {
                             break;
                         }
@@ -254,7 +309,9 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
         let v = value_at(d, openings[k]);
         let (_, at_value) = feasible(study, d.element);
         let governing = if openings[k] < 1.0 {
-            let more = (openings[k] + 0.02_f64.max(0.02 * v.abs() / (d.max - d.min).abs().max(1e-9))).min(1.0);
+            let more = (openings[k]
+                + 0.02_f64.max(0.02 * v.abs() / (d.max - d.min).abs().max(1e-9)))
+            .min(1.0);
             set(study, d, value_at(d, more));
             let (_, beyond) = feasible(study, d.element);
             set(study, d, v);
@@ -264,11 +321,25 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
                 .filter(|(_, c)| !c.pass())
                 .min_by(|a, b| a.1.margin().total_cmp(&b.1.margin()))
                 .and_then(|(i, _)| at_value.get(i).cloned())
-                .or_else(|| at_value.iter().min_by(|a, b| a.margin().total_cmp(&b.margin())).cloned())
+                .or_else(|| {
+                    at_value
+                        .iter()
+                        .min_by(|a, b| a.margin().total_cmp(&b.margin()))
+                        .cloned()
+                })
         } else {
-            at_value.iter().min_by(|a, b| a.margin().total_cmp(&b.margin())).cloned()
+            at_value
+                .iter()
+                .min_by(|a, b| a.margin().total_cmp(&b.margin()))
+                .cloned()
         };
-        let conv = |x: f64| if d.field == SizedField::Angle { x } else { o.length(x) };
+        let conv = |x: f64| {
+            if d.field == SizedField::Angle {
+                x
+            } else {
+                o.length(x)
+            }
+        };
         outputs.push(SizedOut {
             pond: study.elements[d.element].name.clone(),
             outlet: d.outlet,
@@ -276,13 +347,25 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
             value: conv(v),
             min: conv(d.min),
             max: conv(d.max),
-            governing_storm: governing.as_ref().map(|c| study.storms[c.storm].name.clone()),
-            governing_check: governing.as_ref().map(|c| if openings[k] >= 1.0 && c.pass() { format!("{} (range max reached)", c.what) } else { c.what.clone() }),
+            governing_storm: governing
+                .as_ref()
+                .map(|c| study.storms[c.storm].name.clone()),
+            governing_check: governing.as_ref().map(|c| {
+                if openings[k] >= 1.0 && c.pass() {
+                    format!("{} (range max reached)", c.what)
+                } else {
+                    c.what.clone()
+                }
+            }),
             margin: governing.as_ref().map(Check::margin),
             feasible: !infeasible[k],
         });
         if infeasible[k] {
-            let failing: Vec<String> = at_value.iter().filter(|c| !c.pass()).map(|c| format!("{} in {}", c.what, study.storms[c.storm].name)).collect();
+            let failing: Vec<String> = at_value
+                .iter()
+                .filter(|c| !c.pass())
+                .map(|c| format!("{} in {}", c.what, study.storms[c.storm].name))
+                .collect();
             study.warnings.push(crate::warning::Warning::Note(format!(
                 "sizing of pond \"{}\" outlet {} {}: even the smallest opening in the range breaks a limit ({}); results are written at the smallest opening",
                 study.elements[d.element].name,
@@ -305,22 +388,47 @@ pub fn sized_scenario_text(study: &Study, out_dir: &Path, _scenario: &Path) -> S
     let lu = o.unit(crate::units::Quantity::Length);
     let mut edits: Vec<(std::ops::Range<usize>, String)> = Vec::new();
     for d in &study.sizing {
-        let ElementKind::Pond(p) = &study.elements[d.element].kind else { continue };
-        let Some(outlet) = p.outlets.get(d.outlet) else { continue };
+        let ElementKind::Pond(p) = &study.elements[d.element].kind else {
+            continue;
+        };
+        let Some(outlet) = p.outlets.get(d.outlet) else {
+            continue;
+        };
         let v = match (outlet, d.field) {
-            (Outlet::CircularOrifice { diameter_ft, .. } | Outlet::Riser { diameter_ft, .. }, SizedField::Diameter) => *diameter_ft,
-            (Outlet::CircularOrifice { invert_ft, .. } | Outlet::RectangularOrifice { invert_ft, .. }, SizedField::Invert) => *invert_ft,
+            (
+                Outlet::CircularOrifice { diameter_ft, .. } | Outlet::Riser { diameter_ft, .. },
+                SizedField::Diameter,
+            ) => *diameter_ft,
+            (
+                Outlet::CircularOrifice { invert_ft, .. }
+                | Outlet::RectangularOrifice { invert_ft, .. },
+                SizedField::Invert,
+            ) => *invert_ft,
             (Outlet::RectangularOrifice { width_ft, .. }, SizedField::Width) => *width_ft,
             (Outlet::RectangularOrifice { height_ft, .. }, SizedField::Height) => *height_ft,
-            (Outlet::SharpCrestedWeir { length_ft, .. } | Outlet::BroadCrestedWeir { length_ft, .. }, SizedField::Length) => *length_ft,
+            (
+                Outlet::SharpCrestedWeir { length_ft, .. }
+                | Outlet::BroadCrestedWeir { length_ft, .. },
+                SizedField::Length,
+            ) => *length_ft,
             (Outlet::VNotchWeir { angle_deg, .. }, SizedField::Angle) => *angle_deg,
             (o2, SizedField::Crest) => o2.lowest_ft(),
             _ => continue,
         };
-        let rep = if d.field == SizedField::Angle { format!("{v:.4}") } else { format!("\"{:.6} {lu}\"", o.length(v)) };
+        let rep = if d.field == SizedField::Angle {
+            format!("{v:.4}")
+        } else {
+            format!("\"{:.6} {lu}\"", o.length(v))
+        };
         edits.push((d.span.clone(), rep));
     }
-    let abs_out = if out_dir.is_absolute() { out_dir.to_path_buf() } else { std::env::current_dir().map(|d| d.join(out_dir)).unwrap_or_else(|_| out_dir.to_path_buf()) };
+    let abs_out = if out_dir.is_absolute() {
+        out_dir.to_path_buf()
+    } else {
+        std::env::current_dir()
+            .map(|d| d.join(out_dir))
+            .unwrap_or_else(|_| out_dir.to_path_buf())
+    };
     let base = std::fs::canonicalize(&abs_out).unwrap_or(abs_out);
     for (span, path) in &study.provenance.path_spans {
         let abs = std::fs::canonicalize(path).unwrap_or_else(|_| path.clone());
@@ -330,11 +438,17 @@ pub fn sized_scenario_text(study: &Study, out_dir: &Path, _scenario: &Path) -> S
     edits.sort_by_key(|e| std::cmp::Reverse(e.0.start));
     let mut out = text.clone();
     for (span, rep) in edits {
-        if span.end <= out.len() && out.is_char_boundary(span.start) && out.is_char_boundary(span.end) {
+        if span.end <= out.len()
+            && out.is_char_boundary(span.start)
+            && out.is_char_boundary(span.end)
+        {
             out.replace_range(span, &rep);
         }
     }
-    format!("# Written by runnel {} with every sized outlet dimension fixed at its chosen value.\n{out}", env!("CARGO_PKG_VERSION"))
+    format!(
+        "# Written by runnel {} with every sized outlet dimension fixed at its chosen value.\n{out}",
+        env!("CARGO_PKG_VERSION")
+    )
 }
 
 /// `path` relative to `base` (both absolute).

@@ -191,7 +191,9 @@ pub fn peak_cfs_per_in(prf: f64, area_ac: f64, tp_h: f64) -> f64 {
 pub fn ordinates_cfs_per_in(shape: Shape, area_ac: f64, tp_h: f64, step_h: f64) -> Vec<f64> {
     let base = shape.time_base_over_tp() * tp_h;
     let n = ((base / step_h).ceil() as usize).saturating_add(1).max(2);
-    let mut u: Vec<f64> = (0..n).map(|k| shape.ratio(k as f64 * step_h / tp_h)).collect();
+    let mut u: Vec<f64> = (0..n)
+        .map(|k| shape.ratio(k as f64 * step_h / tp_h))
+        .collect();
     let sum: f64 = u.iter().sum();
     // One inch over the area, ft3; spread over sum * step seconds.
     let volume_ft3 = area_ac * FT2_PER_AC / 12.0;
@@ -244,7 +246,12 @@ mod tests {
         // NEH 630 ch.16 Table 16-1 (transcribed): volume = 1 in over the area (±0.1 %)
         let area_ac = 320.0;
         let step_h = 0.05;
-        let u = ordinates_cfs_per_in(Shape::Standard, area_ac, time_to_peak_h(step_h, 0.6), step_h);
+        let u = ordinates_cfs_per_in(
+            Shape::Standard,
+            area_ac,
+            time_to_peak_h(step_h, 0.6),
+            step_h,
+        );
         let vol_ft3: f64 = u.iter().sum::<f64>() * step_h * 3600.0;
         let want = area_ac * 43_560.0 / 12.0;
         assert!(((vol_ft3 - want) / want).abs() < 0.001);
@@ -267,7 +274,15 @@ mod tests {
     #[test]
     fn gamma_shape_reproduces_table_16_5() {
         // NEH 630 ch.16 Table 16-5 (transcribed): m -> PRF
-        for &(m, prf) in &[(0.26, 101.0), (1.0, 238.0), (2.0, 349.0), (3.0, 433.0), (3.7, 484.0), (4.0, 504.0), (5.0, 566.0)] {
+        for &(m, prf) in &[
+            (0.26, 101.0),
+            (1.0, 238.0),
+            (2.0, 349.0),
+            (3.0, 433.0),
+            (3.7, 484.0),
+            (4.0, 504.0),
+            (5.0, 566.0),
+        ] {
             let got = gamma_prf(m);
             assert!((got - prf).abs() / prf < 0.005, "m={m}: {got} vs {prf}");
         }

@@ -157,27 +157,51 @@ enum Dim {
 const UNITS: &[(&[&str], Dim, f64)] = &[
     (&["ft", "feet", "foot"], Dim::Length, 1.0),
     (&["in", "inch", "inches"], Dim::Length, 1.0 / 12.0),
-    (&["m", "metre", "meter", "metres", "meters"], Dim::Length, 1.0 / M_PER_FT),
+    (
+        &["m", "metre", "meter", "metres", "meters"],
+        Dim::Length,
+        1.0 / M_PER_FT,
+    ),
     (&["mm"], Dim::Length, 0.001 / M_PER_FT),
     (&["cm"], Dim::Length, 0.01 / M_PER_FT),
     (&["km"], Dim::Length, 1000.0 / M_PER_FT),
     (&["mi", "mile", "miles"], Dim::Length, 5280.0),
     (&["ac", "acre", "acres"], Dim::Area, FT2_PER_AC),
-    (&["ha", "hectare", "hectares"], Dim::Area, M2_PER_HA / (M_PER_FT * M_PER_FT)),
+    (
+        &["ha", "hectare", "hectares"],
+        Dim::Area,
+        M2_PER_HA / (M_PER_FT * M_PER_FT),
+    ),
     (&["ft2", "sq ft", "sqft", "ft^2", "ft²"], Dim::Area, 1.0),
-    (&["m2", "m^2", "m²", "sq m"], Dim::Area, 1.0 / (M_PER_FT * M_PER_FT)),
-    (&["km2", "km^2", "km²"], Dim::Area, 1.0e6 / (M_PER_FT * M_PER_FT)),
+    (
+        &["m2", "m^2", "m²", "sq m"],
+        Dim::Area,
+        1.0 / (M_PER_FT * M_PER_FT),
+    ),
+    (
+        &["km2", "km^2", "km²"],
+        Dim::Area,
+        1.0e6 / (M_PER_FT * M_PER_FT),
+    ),
     (&["mi2", "mi^2", "mi²", "sq mi"], Dim::Area, 5280.0 * 5280.0),
     (&["ft3", "cu ft", "ft^3", "ft³", "cf"], Dim::Volume, 1.0),
     (&["m3", "m^3", "m³"], Dim::Volume, FT3_PER_M3),
     (&["ac-ft", "acre-ft", "af"], Dim::Volume, FT2_PER_AC),
-    (&["l", "litre", "liter", "litres", "liters"], Dim::Volume, 0.001 * FT3_PER_M3),
+    (
+        &["l", "litre", "liter", "litres", "liters"],
+        Dim::Volume,
+        0.001 * FT3_PER_M3,
+    ),
     (&["gal", "gallon", "gallons"], Dim::Volume, 0.133_680_555_6),
     (&["cfs", "ft3/s", "ft^3/s", "ft³/s"], Dim::Flow, 1.0),
     (&["m3/s", "cms", "m^3/s", "m³/s"], Dim::Flow, FT3_PER_M3),
     (&["l/s", "lps"], Dim::Flow, 0.001 * FT3_PER_M3),
     (&["gpm"], Dim::Flow, 0.133_680_555_6 / 60.0),
-    (&["s", "sec", "secs", "second", "seconds"], Dim::Time, 1.0 / 3600.0),
+    (
+        &["s", "sec", "secs", "second", "seconds"],
+        Dim::Time,
+        1.0 / 3600.0,
+    ),
     (&["min", "mins", "minute", "minutes"], Dim::Time, 1.0 / 60.0),
     (&["h", "hr", "hrs", "hour", "hours"], Dim::Time, 1.0),
     (&["d", "day", "days"], Dim::Time, 24.0),
@@ -238,7 +262,8 @@ pub fn split_number(text: &str) -> Result<(f64, &str), UnitError> {
                 || c == '+'
                 || c == '-'
                 || ((c == 'e' || c == 'E')
-                    && t[i + 1..].starts_with(|d: char| d.is_ascii_digit() || d == '-' || d == '+')
+                    && t[i + 1..]
+                        .starts_with(|d: char| d.is_ascii_digit() || d == '-' || d == '+')
                     && i > 0))
         })
         .map(|(i, _)| i)
@@ -260,7 +285,11 @@ pub fn split_number(text: &str) -> Result<(f64, &str), UnitError> {
 /// # Errors
 /// Unknown unit words, units of the wrong dimension, text that is not a
 /// number, and times without a unit.
-pub fn parse_quantity(text: &str, quantity: Quantity, system: UnitSystem) -> Result<f64, UnitError> {
+pub fn parse_quantity(
+    text: &str,
+    quantity: Quantity,
+    system: UnitSystem,
+) -> Result<f64, UnitError> {
     let (value, unit) = split_number(text)?;
     if unit.is_empty() {
         return match quantity.bare_factor(system) {
@@ -302,9 +331,11 @@ pub fn parse_quantity(text: &str, quantity: Quantity, system: UnitSystem) -> Res
 /// When the text is not a flow unit over an area unit.
 pub fn parse_flow_per_area(text: &str) -> Result<f64, UnitError> {
     let (value, unit) = split_number(text)?;
-    let (num, den) = unit.rsplit_once('/').ok_or_else(|| UnitError::UnknownUnit {
-        unit: unit.to_string(),
-    })?;
+    let (num, den) = unit
+        .rsplit_once('/')
+        .ok_or_else(|| UnitError::UnknownUnit {
+            unit: unit.to_string(),
+        })?;
     let (fd, ff) = lookup_unit(num).ok_or_else(|| UnitError::UnknownUnit {
         unit: num.to_string(),
     })?;
@@ -349,7 +380,10 @@ mod tests {
     #[test]
     fn bare_numbers_are_in_the_scenario_system() {
         // exact unit definitions (NIST SP 811), no hydrologic source needed
-        assert_eq!(parse_quantity("8.4", Quantity::Area, UnitSystem::Us), Ok(8.4));
+        assert_eq!(
+            parse_quantity("8.4", Quantity::Area, UnitSystem::Us),
+            Ok(8.4)
+        );
         let ha = parse_quantity("1", Quantity::Area, UnitSystem::Si).unwrap_or(0.0);
         assert!((ha - 2.471_053_8).abs() < 1e-6);
         let mm = parse_quantity("25.4", Quantity::Depth, UnitSystem::Si).unwrap_or(0.0);
@@ -363,7 +397,10 @@ mod tests {
         assert!((d - 1.5).abs() < 1e-12);
         let t = parse_quantity("5 min", Quantity::Time, UnitSystem::Us).unwrap_or(0.0);
         assert!((t - 5.0 / 60.0).abs() < 1e-12);
-        assert_eq!(parse_quantity("2 %", Quantity::Slope, UnitSystem::Us), Ok(0.02));
+        assert_eq!(
+            parse_quantity("2 %", Quantity::Slope, UnitSystem::Us),
+            Ok(0.02)
+        );
         let q = parse_quantity("1 m3/s", Quantity::Flow, UnitSystem::Us).unwrap_or(0.0);
         assert!((q - 35.314_666_7).abs() < 1e-6);
         let p = parse_quantity("86 mm", Quantity::Depth, UnitSystem::Us).unwrap_or(0.0);

@@ -137,7 +137,11 @@ impl Warning {
 impl fmt::Display for Warning {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
-            Warning::SheetFlowLong { catchment, segment, length } => write!(
+            Warning::SheetFlowLong {
+                catchment,
+                segment,
+                length,
+            } => write!(
                 f,
                 "catchment \"{catchment}\", flow segment {segment}: sheet flow of {length} is longer than 100 ft; NEH 630 ch. 15 (2010) says sheet flow seldom runs more than 100 ft (TR-55 1986 allowed 300 ft) - consider ending it sooner and continuing as shallow flow"
             ),
@@ -145,7 +149,11 @@ impl fmt::Display for Warning {
                 f,
                 "catchment \"{catchment}\": Tc = {tc_h:.3} h is under the TR-55 minimum of 0.1 h; it is used as computed"
             ),
-            Warning::StepCoarse { catchment, step_h, tp_h } => write!(
+            Warning::StepCoarse {
+                catchment,
+                step_h,
+                tp_h,
+            } => write!(
                 f,
                 "catchment \"{catchment}\": the step of {:.1} min is more than 0.25 Tp (Tp = {:.1} min); the unit hydrograph is poorly resolved - set a smaller `step`",
                 step_h * 60.0,
@@ -155,11 +163,20 @@ impl fmt::Display for Warning {
                 f,
                 "catchment \"{catchment}\": CN {cn:.1} is under 30; TR-55 (Table 2-2 note 4) uses CN = 30 for runoff computations - check the cover"
             ),
-            Warning::CnHighPervious { catchment, cover, cn } => write!(
+            Warning::CnHighPervious {
+                catchment,
+                cover,
+                cn,
+            } => write!(
                 f,
                 "catchment \"{catchment}\", cover \"{cover}\": CN {cn:.1} over 98 for a pervious cover is unusual - check the cover"
             ),
-            Warning::StormShorterThanTc { storm, catchment, duration_h, tc_h } => write!(
+            Warning::StormShorterThanTc {
+                storm,
+                catchment,
+                duration_h,
+                tc_h,
+            } => write!(
                 f,
                 "storm \"{storm}\" lasts {duration_h:.2} h, less than the Tc of catchment \"{catchment}\" ({tc_h:.2} h); the whole catchment never contributes at once - the design storm may be too short"
             ),
@@ -171,7 +188,11 @@ impl fmt::Display for Warning {
                 f,
                 "pond \"{pond}\", outlet {outlet}: it sits above the top of embankment and can only act once the pond overtops"
             ),
-            Warning::PondNeverFills { pond, storm, condition } => write!(
+            Warning::PondNeverFills {
+                pond,
+                storm,
+                condition,
+            } => write!(
                 f,
                 "pond \"{pond}\" ({condition}, {storm}): the water never rises above the lowest outlet; the outlets do not act in this storm"
             ),
@@ -179,11 +200,20 @@ impl fmt::Display for Warning {
                 f,
                 "pond \"{pond}\", outlet {outlet}: the orifice is never submerged in any storm, so it always flows as a weir"
             ),
-            Warning::Overtopped { pond, storm, condition } => write!(
+            Warning::Overtopped {
+                pond,
+                storm,
+                condition,
+            } => write!(
                 f,
                 "pond \"{pond}\" overtops in {storm} ({condition}): the water rises over the top of embankment - the embankment is treated as a broad-crested weir; enlarge the pond or the spillway"
             ),
-            Warning::GraphicalPeakDiffers { catchment, storm, hydrograph, graphical } => write!(
+            Warning::GraphicalPeakDiffers {
+                catchment,
+                storm,
+                hydrograph,
+                graphical,
+            } => write!(
                 f,
                 "catchment \"{catchment}\", {storm}: the hydrograph peak {hydrograph} and the TR-55 graphical-method peak {graphical} differ by more than 25 % - check Tc, CN and the step"
             ),

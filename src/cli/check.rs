@@ -8,7 +8,7 @@ use crate::network;
 use crate::report::markdown::describe_outlet;
 use crate::report::summary::{self, Out};
 use crate::storage_estimate;
-use crate::units::{sig, Quantity};
+use crate::units::{Quantity, sig};
 use std::fmt::Write;
 use std::path::Path;
 
@@ -20,36 +20,122 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
     let study = crate::scenario::load(scenario)?;
     crate::cli::run::check_memory(&study)?;
     let a = analysis::analyse(&study);
-    let s = summary::build(&study, &a, Vec::new(), Vec::new(), Vec::new(), String::new());
+    let s = summary::build(
+        &study,
+        &a,
+        Vec::new(),
+        Vec::new(),
+        Vec::new(),
+        String::new(),
+    );
     let o = Out(study.units);
-    let (fu, lu, vu, du, au) = (o.unit(Quantity::Flow), o.unit(Quantity::Length), o.unit(Quantity::Volume), o.unit(Quantity::Depth), o.unit(Quantity::Area));
+    let (fu, lu, vu, du, au) = (
+        o.unit(Quantity::Flow),
+        o.unit(Quantity::Length),
+        o.unit(Quantity::Volume),
+        o.unit(Quantity::Depth),
+        o.unit(Quantity::Area),
+    );
     let mut t = String::new();
     let _ = writeln!(t, "{}: scenario is valid", scenario.display());
-    let _ = writeln!(t, "units {}, step {:.2} min, baseline \"{}\", conditions: {}", s.unit_system, s.step_h * 60.0, s.baseline, s.conditions.join(", "));
+    let _ = writeln!(
+        t,
+        "units {}, step {:.2} min, baseline \"{}\", conditions: {}",
+        s.unit_system,
+        s.step_h * 60.0,
+        s.baseline,
+        s.conditions.join(", ")
+    );
     let _ = writeln!(t, "\nCatchments");
     for c in &s.catchments {
-        let _ = writeln!(t, "  {} ({}) {} {au} -> {}", c.name, c.condition, sig(c.area, 4), c.to);
+        let _ = writeln!(
+            t,
+            "  {} ({}) {} {au} -> {}",
+            c.name,
+            c.condition,
+            sig(c.area, 4),
+            c.to
+        );
         for r in &c.covers {
-            let _ = writeln!(t, "    cover {:<32} CN {:>5.1}  {} {au}", r.cover, r.cn, sig(r.area, 4));
+            let _ = writeln!(
+                t,
+                "    cover {:<32} CN {:>5.1}  {} {au}",
+                r.cover,
+                r.cn,
+                sig(r.area, 4)
+            );
         }
-        let _ = writeln!(t, "    composite CN {:.2}{}", c.cn, if (c.lambda - 0.05).abs() < 1e-9 { format!(" (lambda 0.05: equivalent CN {:.2})", c.cn_used) } else { String::new() });
+        let _ = writeln!(
+            t,
+            "    composite CN {:.2}{}",
+            c.cn,
+            if (c.lambda - 0.05).abs() < 1e-9 {
+                format!(" (lambda 0.05: equivalent CN {:.2})", c.cn_used)
+            } else {
+                String::new()
+            }
+        );
         for (i, g) in c.flow_path.iter().enumerate() {
-            let _ = writeln!(t, "    segment {} {:<8} {:>8.1} {lu} slope {:.4}  V {:.3} {lu}/s  Tt {:.3} h", i + 1, g.kind, g.length, g.slope, g.velocity, g.time_h);
+            let _ = writeln!(
+                t,
+                "    segment {} {:<8} {:>8.1} {lu} slope {:.4}  V {:.3} {lu}/s  Tt {:.3} h",
+                i + 1,
+                g.kind,
+                g.length,
+                g.slope,
+                g.velocity,
+                g.time_h
+            );
         }
-        let _ = writeln!(t, "    Tc {:.3} h, lag {:.3} h, Tp {:.3} h, unit-hydrograph peak {} {fu} per {du}", c.tc_h, c.lag_h, c.tp_h, sig(c.uh_peak_per_depth, 4));
+        let _ = writeln!(
+            t,
+            "    Tc {:.3} h, lag {:.3} h, Tp {:.3} h, unit-hydrograph peak {} {fu} per {du}",
+            c.tc_h,
+            c.lag_h,
+            c.tp_h,
+            sig(c.uh_peak_per_depth, 4)
+        );
         for g in s.graphical_checks.iter().filter(|g| g.catchment == c.name) {
-            let _ = writeln!(t, "    {}: hydrograph peak {} {fu}; TR-55 graphical peak {} {fu} (Ia/P {:.3}{})", g.storm, sig(g.hydrograph_peak, 4), sig(g.graphical_peak, 4), g.ia_over_p, if g.clamped { ", clamped" } else { "" });
+            let _ = writeln!(
+                t,
+                "    {}: hydrograph peak {} {fu}; TR-55 graphical peak {} {fu} (Ia/P {:.3}{})",
+                g.storm,
+                sig(g.hydrograph_peak, 4),
+                sig(g.graphical_peak, 4),
+                g.ia_over_p,
+                if g.clamped { ", clamped" } else { "" }
+            );
         }
     }
     for e in &study.elements {
-        let ElementKind::Pond(p) = &e.kind else { continue };
-        let _ = writeln!(t, "\nPond \"{}\" -> {} (storage: {})", e.name, summary::target_name(&study, e.to), p.storage_kind);
+        let ElementKind::Pond(p) = &e.kind else {
+            continue;
+        };
+        let _ = writeln!(
+            t,
+            "\nPond \"{}\" -> {} (storage: {})",
+            e.name,
+            summary::target_name(&study, e.to),
+            p.storage_kind
+        );
         for (i, d) in p.outlets.iter().enumerate() {
             let _ = writeln!(t, "  outlet {i}: {}", describe_outlet(d, o));
         }
-        let _ = writeln!(t, "  {:>10} {:>14} {:>12}", format!("stage {lu}"), format!("storage {vu}"), format!("outflow {fu}"));
+        let _ = writeln!(
+            t,
+            "  {:>10} {:>14} {:>12}",
+            format!("stage {lu}"),
+            format!("storage {vu}"),
+            format!("outflow {fu}")
+        );
         for (h, v, q) in network::rating_rows(p) {
-            let _ = writeln!(t, "  {:>10.2} {:>14} {:>12}", o.length(h), sig(o.volume(v), 6), sig(o.flow(q), 4));
+            let _ = writeln!(
+                t,
+                "  {:>10.2} {:>14} {:>12}",
+                o.length(h),
+                sig(o.volume(v), 6),
+                sig(o.flow(q), 4)
+            );
         }
     }
     let est = estimate_text(&study, &a);
@@ -70,7 +156,11 @@ pub fn estimate(scenario: &Path) -> Result<String, Error> {
     crate::cli::run::check_memory(&study)?;
     let a = analysis::analyse(&study);
     let t = estimate_text(&study, &a);
-    Ok(if t.is_empty() { "No pond receives an NRCS 24-hour design storm with a limit, so there is nothing to estimate.\n".into() } else { t })
+    Ok(if t.is_empty() {
+        "No pond receives an NRCS 24-hour design storm with a limit, so there is nothing to estimate.\n".into()
+    } else {
+        t
+    })
 }
 
 /// Stage at which a pond holds `v` ft3 (bisection on the stage-storage relation).
@@ -83,7 +173,11 @@ pub fn stage_for_volume(p: &crate::model::Pond, v: f64) -> f64 {
     }
     for _ in 0..100 {
         let mid = 0.5 * (lo + hi);
-        if p.storage.volume_ft3(mid) < v { lo = mid } else { hi = mid }
+        if p.storage.volume_ft3(mid) < v {
+            lo = mid
+        } else {
+            hi = mid
+        }
     }
     0.5 * (lo + hi)
 }
@@ -91,14 +185,23 @@ pub fn stage_for_volume(p: &crate::model::Pond, v: f64) -> f64 {
 /// TR-55 chapter 6 storage estimates for every pond and NRCS storm.
 pub fn estimate_text(study: &Study, a: &analysis::Analysis) -> String {
     let o = Out(study.units);
-    let (fu, lu, vu) = (o.unit(Quantity::Flow), o.unit(Quantity::Length), o.unit(Quantity::Volume));
+    let (fu, lu, vu) = (
+        o.unit(Quantity::Flow),
+        o.unit(Quantity::Length),
+        o.unit(Quantity::Volume),
+    );
     let mut t = String::new();
     for st in &a.storms {
         let storm = &study.storms[st.storm];
         let Some(kind) = storm.nrcs() else { continue };
         for c in &st.conditions {
             for (i, er) in c.elements.iter().enumerate() {
-                let (Some(pr), ElementKind::Pond(p)) = (er.as_ref().and_then(|e| e.pond.as_ref()), &study.elements[i].kind) else { continue };
+                let (Some(pr), ElementKind::Pond(p)) = (
+                    er.as_ref().and_then(|e| e.pond.as_ref()),
+                    &study.elements[i].kind,
+                ) else {
+                    continue;
+                };
                 // The point downstream of the pond.
                 let mut at = i;
                 let point = loop {
@@ -107,9 +210,28 @@ pub fn estimate_text(study: &Study, a: &analysis::Analysis) -> String {
                         Target::Element(j) => at = j,
                     }
                 };
-                let Some(limit) = analysis::limit_cfs(study, &a.storms, point, st.storm, c.condition) else { continue };
+                let Some(limit) =
+                    analysis::limit_cfs(study, &a.storms, point, st.storm, c.condition)
+                else {
+                    continue;
+                };
                 let qi = pr.summary.peak_inflow_cfs;
-                let bypass = c.elements.iter().enumerate().filter(|(j, e)| *j != i && e.is_some() && study.elements[*j].to == Target::Point(point) && !analysis::reaches_through(study, *j, i)).map(|(_, e)| e.as_ref().map(|e| network::peak(&e.outflow_cfs).0).unwrap_or(0.0)).sum::<f64>();
+                let bypass = c
+                    .elements
+                    .iter()
+                    .enumerate()
+                    .filter(|(j, e)| {
+                        *j != i
+                            && e.is_some()
+                            && study.elements[*j].to == Target::Point(point)
+                            && !analysis::reaches_through(study, *j, i)
+                    })
+                    .map(|(_, e)| {
+                        e.as_ref()
+                            .map(|e| network::peak(&e.outflow_cfs).0)
+                            .unwrap_or(0.0)
+                    })
+                    .sum::<f64>();
                 let qo = (limit - bypass).max(0.0);
                 if qi <= 0.0 {
                     continue;
@@ -119,7 +241,10 @@ pub fn estimate_text(study: &Study, a: &analysis::Analysis) -> String {
                 let vs = ratio.vs_over_vr * vr;
                 let stage = stage_for_volume(p, p.storage.volume_ft3(pr.start_ft) + vs);
                 if t.is_empty() {
-                    let _ = writeln!(t, "First-cut storage (TR-55 chapter 6, Figure 6-1 / Table F-2; an approximate method for concept sizing, not a routing):");
+                    let _ = writeln!(
+                        t,
+                        "First-cut storage (TR-55 chapter 6, Figure 6-1 / Table F-2; an approximate method for concept sizing, not a routing):"
+                    );
                 }
                 let _ = writeln!(
                     t,
@@ -132,7 +257,11 @@ pub fn estimate_text(study: &Study, a: &analysis::Analysis) -> String {
                     sig(o.flow(limit), 4),
                     sig(o.flow(bypass), 4),
                     qo / qi,
-                    if ratio.outside_range { " (outside the figure's 0.1-0.8)" } else { "" },
+                    if ratio.outside_range {
+                        " (outside the figure's 0.1-0.8)"
+                    } else {
+                        ""
+                    },
                     ratio.vs_over_vr,
                     sig(o.volume(vr), 5),
                     sig(o.volume(vs), 5),

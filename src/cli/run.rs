@@ -25,13 +25,19 @@ pub struct RunOutcome {
 
 /// The default results folder: `output/<scenario stem>/`.
 pub fn default_out(scenario: &Path) -> PathBuf {
-    let stem = scenario.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "scenario".into());
+    let stem = scenario
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "scenario".into());
     PathBuf::from("output").join(stem)
 }
 
 /// Current UTC time as `YYYY-MM-DDTHH:MM:SSZ`.
 pub fn now_utc() -> String {
-    let secs = std::time::SystemTime::now().duration_since(std::time::UNIX_EPOCH).map(|d| d.as_secs() as i64).unwrap_or(0);
+    let secs = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map(|d| d.as_secs() as i64)
+        .unwrap_or(0);
     format!("{}Z", crate::gauge::format_timestamp(secs))
 }
 
@@ -47,8 +53,17 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let a = analysis::analyse(&study);
     let rec = crate::records::run(&study, progress)?;
     let run_date = now_utc();
-    let s = summary::build(&study, &a, sized.outputs.clone(), rec.json.clone(), rec.comparisons.clone(), run_date);
-    let out_dir = out.map(Path::to_path_buf).unwrap_or_else(|| default_out(scenario));
+    let s = summary::build(
+        &study,
+        &a,
+        sized.outputs.clone(),
+        rec.json.clone(),
+        rec.comparisons.clone(),
+        run_date,
+    );
+    let out_dir = out
+        .map(Path::to_path_buf)
+        .unwrap_or_else(|| default_out(scenario));
     let stage = Staging::new(&out_dir)?;
     let plots = write_plots(&study, &a, &stage)?;
     let mut all_plots = plots;
@@ -84,10 +99,16 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         ));
     }
     for c in s.pond_checks.iter().filter(|c| !c.pass) {
-        lines.push(format!("FAILS   pond {} / {} / {}: {}", c.pond, c.storm, c.condition, c.check));
+        lines.push(format!(
+            "FAILS   pond {} / {} / {}: {}",
+            c.pond, c.storm, c.condition, c.check
+        ));
     }
     for z in s.sized.iter().filter(|z| !z.feasible) {
-        lines.push(format!("INFEASIBLE sizing of pond {} outlet {} {}", z.pond, z.outlet, z.field));
+        lines.push(format!(
+            "INFEASIBLE sizing of pond {} outlet {} {}",
+            z.pond, z.outlet, z.field
+        ));
     }
     Ok(RunOutcome {
         out_dir,
@@ -102,8 +123,17 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
 /// # Errors
 /// [`Error::TooLarge`] naming the need and the cap.
 pub fn check_memory(study: &Study) -> Result<(), Error> {
-    let storms: u64 = (0..study.storms.len()).map(|s| network::estimate_bytes(study, s)).max().unwrap_or(0) * rayon::current_num_threads().min(study.storms.len().max(1)) as u64;
-    let records: u64 = study.records.iter().map(|r| crate::records::estimate_bytes(study, r)).max().unwrap_or(0);
+    let storms: u64 = (0..study.storms.len())
+        .map(|s| network::estimate_bytes(study, s))
+        .max()
+        .unwrap_or(0)
+        * rayon::current_num_threads().min(study.storms.len().max(1)) as u64;
+    let records: u64 = study
+        .records
+        .iter()
+        .map(|r| crate::records::estimate_bytes(study, r))
+        .max()
+        .unwrap_or(0);
     let need = storms.max(records);
     if need > study.memory_limit_bytes {
         return Err(Error::TooLarge {
@@ -118,16 +148,33 @@ pub fn check_memory(study: &Study) -> Result<(), Error> {
     Ok(())
 }
 
-fn write_plots(study: &Study, a: &Analysis, stage: &Staging) -> Result<Vec<(String, String)>, Error> {
+/// A plot to draw: caption, file name, and the drawing job.
+type PlotJob<'a> = (
+    String,
+    String,
+    Box<dyn Fn() -> Result<Vec<u8>, plot::PlotError> + Send + Sync + 'a>,
+);
+/// A drawn plot: caption, file name, PNG bytes.
+type Drawn = Result<(String, String, Vec<u8>), plot::PlotError>;
+
+fn write_plots(
+    study: &Study,
+    a: &Analysis,
+    stage: &Staging,
+) -> Result<Vec<(String, String)>, Error> {
     let o = summary::Out(study.units);
     let fu = o.unit(Quantity::Flow).replace("m3/s", "m³/s");
     let du = o.unit(Quantity::Depth).to_string();
     let lu = o.unit(Quantity::Length).to_string();
-    let mut jobs: Vec<(String, String, Box<dyn Fn() -> Result<Vec<u8>, plot::PlotError> + Send + Sync + '_>)> = Vec::new();
+    let mut jobs: Vec<PlotJob<'_>> = Vec::new();
     for st in &a.storms {
         let storm = &study.storms[st.storm];
         for (pi, p) in study.points.iter().enumerate() {
-            let file = format!("storm-{}-{}.png", output::slug(&storm.name), output::slug(&p.name));
+            let file = format!(
+                "storm-{}-{}.png",
+                output::slug(&storm.name),
+                output::slug(&p.name)
+            );
             let hydrographs: Vec<plot::Series> = st
                 .conditions
                 .iter()
@@ -141,10 +188,32 @@ fn write_plots(study: &Study, a: &Analysis, stage: &Staging) -> Result<Vec<(Stri
                 .iter()
                 .filter(|c| c.condition != study.baseline)
                 .find_map(|c| analysis::limit_cfs(study, &a.storms, pi, st.storm, c.condition))
-                .map(|l| (format!("limit ({})", p.limit_text.get(st.storm).cloned().unwrap_or_default()), o.flow(l)));
+                .map(|l| {
+                    (
+                        format!(
+                            "limit ({})",
+                            p.limit_text.get(st.storm).cloned().unwrap_or_default()
+                        ),
+                        o.flow(l),
+                    )
+                });
             let data = plot::StormPointPlot {
-                title: format!("{} - {} at {}", if study.title.is_empty() { "runnel" } else { &study.title }, storm.name, p.name),
-                subtitle: format!("depth {} {du}, step {:.0} min; runnel {}", crate::units::sig(o.depth(storm.depth_in()), 3), study.step_h * 60.0, env!("CARGO_PKG_VERSION")),
+                title: format!(
+                    "{} - {} at {}",
+                    if study.title.is_empty() {
+                        "runnel"
+                    } else {
+                        &study.title
+                    },
+                    storm.name,
+                    p.name
+                ),
+                subtitle: format!(
+                    "depth {} {du}, step {:.0} min; runnel {}",
+                    crate::units::sig(o.depth(storm.depth_in()), 3),
+                    study.step_h * 60.0,
+                    env!("CARGO_PKG_VERSION")
+                ),
                 step_h: st.step_h,
                 rain: st.rain_in.iter().map(|r| o.depth(*r)).collect(),
                 rain_unit: du.clone(),
@@ -152,25 +221,49 @@ fn write_plots(study: &Study, a: &Analysis, stage: &Staging) -> Result<Vec<(Stri
                 hydrographs,
                 limit,
             };
-            jobs.push((format!("{} at {}", storm.name, p.name), file, Box::new(move || plot::storm_point_png(&data))));
+            jobs.push((
+                format!("{} at {}", storm.name, p.name),
+                file,
+                Box::new(move || plot::storm_point_png(&data)),
+            ));
         }
         for c in &st.conditions {
             for (i, er) in c.elements.iter().enumerate() {
-                let (Some(pr), ElementKind::Pond(pond)) = (er.as_ref().and_then(|e| e.pond.as_ref()), &study.elements[i].kind) else { continue };
-                let outflow: Vec<f64> = er.as_ref().map(|e| e.outflow_cfs.iter().map(|v| o.flow(*v)).collect()).unwrap_or_default();
+                let (Some(pr), ElementKind::Pond(pond)) = (
+                    er.as_ref().and_then(|e| e.pond.as_ref()),
+                    &study.elements[i].kind,
+                ) else {
+                    continue;
+                };
+                let outflow: Vec<f64> = er
+                    .as_ref()
+                    .map(|e| e.outflow_cfs.iter().map(|v| o.flow(*v)).collect())
+                    .unwrap_or_default();
                 let mut references = Vec::new();
                 for (k, d) in pond.outlets.iter().enumerate() {
-                    references.push((format!("outlet {k} {}", kind_word(d)), o.length(d.lowest_ft())));
+                    references.push((
+                        format!("outlet {k} {}", kind_word(d)),
+                        o.length(d.lowest_ft()),
+                    ));
                 }
                 if let Some(t) = pond.top_ft {
                     references.push(("top of embankment".to_string(), o.length(t)));
                 }
                 let name = &study.elements[i].name;
                 let cname = &study.conditions[c.condition];
-                let file = format!("pond-{}-{}-{}.png", output::slug(name), output::slug(&storm.name), output::slug(cname));
+                let file = format!(
+                    "pond-{}-{}-{}.png",
+                    output::slug(name),
+                    output::slug(&storm.name),
+                    output::slug(cname)
+                );
                 let data = plot::PondPlot {
                     title: format!("Pond {name} - {} ({cname})", storm.name),
-                    subtitle: format!("storage-indication routing, step {:.0} min; runnel {}", study.step_h * 60.0, env!("CARGO_PKG_VERSION")),
+                    subtitle: format!(
+                        "storage-indication routing, step {:.0} min; runnel {}",
+                        study.step_h * 60.0,
+                        env!("CARGO_PKG_VERSION")
+                    ),
                     step_h: st.step_h,
                     flow_unit: fu.clone(),
                     stage_unit: lu.clone(),
@@ -180,11 +273,18 @@ fn write_plots(study: &Study, a: &Analysis, stage: &Staging) -> Result<Vec<(Stri
                     peak_stage: o.length(pr.summary.peak_stage_ft),
                     references,
                 };
-                jobs.push((format!("pond {name}, {} ({cname})", storm.name), file, Box::new(move || plot::pond_png(&data))));
+                jobs.push((
+                    format!("pond {name}, {} ({cname})", storm.name),
+                    file,
+                    Box::new(move || plot::pond_png(&data)),
+                ));
             }
         }
     }
-    let rendered: Vec<Result<(String, String, Vec<u8>), plot::PlotError>> = jobs.into_par_iter().map(|(cap, file, job)| job().map(|b| (cap, file, b))).collect();
+    let rendered: Vec<Drawn> = jobs
+        .into_par_iter()
+        .map(|(cap, file, job)| job().map(|b| (cap, file, b)))
+        .collect();
     let mut out = Vec::new();
     for r in rendered {
         let (cap, file, bytes) = r.map_err(|e| Error::Write {

@@ -50,7 +50,13 @@ pub fn storm_csv(study: &Study, s: &StormResult) -> String {
         }
     }
     let mut out = String::new();
-    out.push_str(&headers.iter().map(|h| quote(h)).collect::<Vec<_>>().join(","));
+    out.push_str(
+        &headers
+            .iter()
+            .map(|h| quote(h))
+            .collect::<Vec<_>>()
+            .join(","),
+    );
     out.push('\n');
     let n = s.len();
     for k in 0..n {

@@ -7,11 +7,15 @@
 use crate::model::{ElementKind, Study};
 use crate::network;
 use crate::report::summary::{Out, Summary};
-use crate::units::{sig, Quantity};
+use crate::units::{Quantity, sig};
 use std::fmt::Write;
 
 fn f(v: f64, d: usize) -> String {
-    if v.is_finite() { format!("{v:.d$}") } else { "-".into() }
+    if v.is_finite() {
+        format!("{v:.d$}")
+    } else {
+        "-".into()
+    }
 }
 
 fn opt(v: Option<f64>, d: usize) -> String {
@@ -27,7 +31,11 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     let du = o.unit(Quantity::Depth);
     let au = o.unit(Quantity::Area);
     let mut m = String::new();
-    let title = if s.title.is_empty() { "Drainage study" } else { s.title.as_str() };
+    let title = if s.title.is_empty() {
+        "Drainage study"
+    } else {
+        s.title.as_str()
+    };
     let _ = writeln!(m, "# {title}\n");
     let _ = writeln!(m, "> **Caution.** {}\n", s.caution);
     let _ = writeln!(m, "## Provenance\n");
@@ -35,30 +43,62 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     let _ = writeln!(m, "| program | runnel {} |", s.provenance.version);
     let _ = writeln!(m, "| run | {} |", s.provenance.run_date);
     let _ = writeln!(m, "| scenario | `{}` |", s.provenance.scenario);
-    let _ = writeln!(m, "| scenario SHA-256 | `{}` |", s.provenance.scenario_sha256);
+    let _ = writeln!(
+        m,
+        "| scenario SHA-256 | `{}` |",
+        s.provenance.scenario_sha256
+    );
     for i in &s.provenance.inputs {
         let _ = writeln!(m, "| input read | `{i}` |");
     }
-    let _ = writeln!(m, "| units | {} ({fu}, {lu}, {vu}, {du}, {au}; times in hours from the storm start) |", s.unit_system);
-    let _ = writeln!(m, "| step | {} min{} |", f(s.step_h * 60.0, 2), if study.step_given { " (given)" } else { " (chosen: largest of 1, 2, 3, 5, 6 min within 0.133 Tc)" });
+    let _ = writeln!(
+        m,
+        "| units | {} ({fu}, {lu}, {vu}, {du}, {au}; times in hours from the storm start) |",
+        s.unit_system
+    );
+    let _ = writeln!(
+        m,
+        "| step | {} min{} |",
+        f(s.step_h * 60.0, 2),
+        if study.step_given {
+            " (given)"
+        } else {
+            " (chosen: largest of 1, 2, 3, 5, 6 min within 0.133 Tc)"
+        }
+    );
     let _ = writeln!(m, "| baseline | {} |", s.baseline);
     let _ = writeln!(m);
 
     // Verdict first.
     let _ = writeln!(m, "## Design points\n");
     if s.comparisons.is_empty() {
-        let _ = writeln!(m, "No limits are checked (one condition only, or every limit is \"none\").\n");
+        let _ = writeln!(
+            m,
+            "No limits are checked (one condition only, or every limit is \"none\").\n"
+        );
     } else {
         let fails = s.comparisons.iter().filter(|c| !c.pass).count();
         let _ = writeln!(
             m,
             "{}\n",
-            if fails == 0 { "**Every peak is within its limit.**".to_string() } else { format!("**{fails} check(s) fail.**") }
+            if fails == 0 {
+                "**Every peak is within its limit.**".to_string()
+            } else {
+                format!("**{fails} check(s) fail.**")
+            }
         );
-        let _ = writeln!(m, "| point | storm / record | condition | peak [{fu}] | limit [{fu}] | limit rule | {} peak [{fu}] | margin | result |", s.baseline);
+        let _ = writeln!(
+            m,
+            "| point | storm / record | condition | peak [{fu}] | limit [{fu}] | limit rule | {} peak [{fu}] | margin | result |",
+            s.baseline
+        );
         let _ = writeln!(m, "|---|---|---|---:|---:|---|---:|---:|---|");
         for c in &s.comparisons {
-            let margin = if c.limit > 0.0 { format!("{:+.1} %", (c.limit - c.peak) / c.limit * 100.0) } else { "-".into() };
+            let margin = if c.limit > 0.0 {
+                format!("{:+.1} %", (c.limit - c.peak) / c.limit * 100.0)
+            } else {
+                "-".into()
+            };
             let _ = writeln!(
                 m,
                 "| {} | {} | {} | {} | {} | {} | {} | {} | {} |",
@@ -77,7 +117,10 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     }
     if !s.pond_checks.is_empty() {
         let _ = writeln!(m, "### Pond checks\n");
-        let _ = writeln!(m, "| pond | storm | condition | check | value | limit | result |\n|---|---|---|---|---:|---:|---|");
+        let _ = writeln!(
+            m,
+            "| pond | storm | condition | check | value | limit | result |\n|---|---|---|---|---:|---:|---|"
+        );
         for c in &s.pond_checks {
             let unit = if c.check == "drain time" { "h" } else { lu };
             let _ = writeln!(
@@ -87,8 +130,14 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
                 c.storm,
                 c.condition,
                 c.check,
-                c.value.map(|v| format!("{} {unit}", f(v, 2))).unwrap_or_else(|| "never drained".into()),
-                if c.limit.is_finite() { format!("{} {unit}", f(c.limit, 2)) } else { "-".into() },
+                c.value
+                    .map(|v| format!("{} {unit}", f(v, 2)))
+                    .unwrap_or_else(|| "never drained".into()),
+                if c.limit.is_finite() {
+                    format!("{} {unit}", f(c.limit, 2))
+                } else {
+                    "-".into()
+                },
                 if c.pass { "meets" } else { "**FAILS**" }
             );
         }
@@ -97,26 +146,72 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
 
     // Worksheet.
     let _ = writeln!(m, "## Catchment worksheet\n");
-    let _ = writeln!(m, "Runoff by the SCS curve-number method (TR-55 eq. 2-1 to 2-4); travel times by the TR-55 velocity method (eq. 3-1 to 3-4); lag = 0.6 Tc; SCS dimensionless unit hydrograph (NEH 630 ch. 16) with Tp = step/2 + lag.\n");
+    let _ = writeln!(
+        m,
+        "Runoff by the SCS curve-number method (TR-55 eq. 2-1 to 2-4); travel times by the TR-55 velocity method (eq. 3-1 to 3-4); lag = 0.6 Tc; SCS dimensionless unit hydrograph (NEH 630 ch. 16) with Tp = step/2 + lag.\n"
+    );
     for c in &s.catchments {
-        let _ = writeln!(m, "### {} ({}), {} {au}, to \"{}\"\n", c.name, c.condition, f(c.area, 3), c.to);
+        let _ = writeln!(
+            m,
+            "### {} ({}), {} {au}, to \"{}\"\n",
+            c.name,
+            c.condition,
+            f(c.area, 3),
+            c.to
+        );
         if !c.covers.is_empty() {
-            let _ = writeln!(m, "| cover | CN | area [{au}] | CN x area |\n|---|---:|---:|---:|");
+            let _ = writeln!(
+                m,
+                "| cover | CN | area [{au}] | CN x area |\n|---|---:|---:|---:|"
+            );
             for r in &c.covers {
-                let _ = writeln!(m, "| {} | {} | {} | {} |", r.cover, f(r.cn, 0), f(r.area, 3), f(r.cn * r.area, 2));
+                let _ = writeln!(
+                    m,
+                    "| {} | {} | {} | {} |",
+                    r.cover,
+                    f(r.cn, 0),
+                    f(r.area, 3),
+                    f(r.cn * r.area, 2)
+                );
             }
-            let _ = writeln!(m, "| **composite** | **{}** | {} | |\n", f(c.cn, 2), f(c.covers.iter().map(|r| r.area).sum(), 3));
+            let _ = writeln!(
+                m,
+                "| **composite** | **{}** | {} | |\n",
+                f(c.cn, 2),
+                f(c.covers.iter().map(|r| r.area).sum(), 3)
+            );
         } else {
             let _ = writeln!(m, "CN {} (given).\n", f(c.cn, 2));
         }
         if (c.lambda - 0.05).abs() < 1e-9 {
-            let _ = writeln!(m, "Ia = 0.05 S: retention converted by Hawkins et al. (2002), S0.05 = 1.33 S0.20^1.15 (in); equivalent CN {}.\n", f(c.cn_used, 2));
+            let _ = writeln!(
+                m,
+                "Ia = 0.05 S: retention converted by Hawkins et al. (2002), S0.05 = 1.33 S0.20^1.15 (in); equivalent CN {}.\n",
+                f(c.cn_used, 2)
+            );
         }
         if !c.flow_path.is_empty() {
-            let _ = writeln!(m, "| segment | kind | length [{lu}] | slope [{lu}/{lu}] | n or surface | velocity [{lu}/s] | travel time [h] |\n|---:|---|---:|---:|---|---:|---:|");
+            let _ = writeln!(
+                m,
+                "| segment | kind | length [{lu}] | slope [{lu}/{lu}] | n or surface | velocity [{lu}/s] | travel time [h] |\n|---:|---|---:|---:|---|---:|---:|"
+            );
             for (i, sgm) in c.flow_path.iter().enumerate() {
-                let ns = sgm.n.map(|n| f(n, 3)).or(sgm.surface.clone()).unwrap_or_default();
-                let _ = writeln!(m, "| {} | {} | {} | {} | {} | {} | {} |", i + 1, sgm.kind, f(sgm.length, 1), f(sgm.slope, 4), ns, f(sgm.velocity, 2), f(sgm.time_h, 3));
+                let ns = sgm
+                    .n
+                    .map(|n| f(n, 3))
+                    .or(sgm.surface.clone())
+                    .unwrap_or_default();
+                let _ = writeln!(
+                    m,
+                    "| {} | {} | {} | {} | {} | {} | {} |",
+                    i + 1,
+                    sgm.kind,
+                    f(sgm.length, 1),
+                    f(sgm.slope, 4),
+                    ns,
+                    f(sgm.velocity, 2),
+                    f(sgm.time_h, 3)
+                );
             }
             let _ = writeln!(m);
         }
@@ -129,13 +224,40 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
             sig(c.uh_peak_per_depth, 4),
             f(c.prf, 0)
         );
-        let g: Vec<_> = s.graphical_checks.iter().filter(|g| g.catchment == c.name).collect();
+        let g: Vec<_> = s
+            .graphical_checks
+            .iter()
+            .filter(|g| g.catchment == c.name)
+            .collect();
         if !g.is_empty() {
-            let _ = writeln!(m, "Cross-check by the TR-55 chapter 4 graphical method (Table F-1, Fp = 1, Ia = 0.2 S):\n");
-            let _ = writeln!(m, "| storm | Ia/P | qu [csm/in] | graphical peak [{fu}] | hydrograph peak [{fu}] | difference |\n|---|---:|---:|---:|---:|---:|");
+            let _ = writeln!(
+                m,
+                "Cross-check by the TR-55 chapter 4 graphical method (Table F-1, Fp = 1, Ia = 0.2 S):\n"
+            );
+            let _ = writeln!(
+                m,
+                "| storm | Ia/P | qu [csm/in] | graphical peak [{fu}] | hydrograph peak [{fu}] | difference |\n|---|---:|---:|---:|---:|---:|"
+            );
             for x in g {
-                let diff = if x.graphical_peak > 0.0 { format!("{:+.0} %", (x.hydrograph_peak - x.graphical_peak) / x.graphical_peak * 100.0) } else { "-".into() };
-                let _ = writeln!(m, "| {} | {}{} | {} | {} | {} | {} |", x.storm, f(x.ia_over_p, 3), if x.clamped { " (clamped)" } else { "" }, f(x.unit_peak_csm_per_in, 0), sig(x.graphical_peak, 4), sig(x.hydrograph_peak, 4), diff);
+                let diff = if x.graphical_peak > 0.0 {
+                    format!(
+                        "{:+.0} %",
+                        (x.hydrograph_peak - x.graphical_peak) / x.graphical_peak * 100.0
+                    )
+                } else {
+                    "-".into()
+                };
+                let _ = writeln!(
+                    m,
+                    "| {} | {}{} | {} | {} | {} | {} |",
+                    x.storm,
+                    f(x.ia_over_p, 3),
+                    if x.clamped { " (clamped)" } else { "" },
+                    f(x.unit_peak_csm_per_in, 0),
+                    sig(x.graphical_peak, 4),
+                    sig(x.hydrograph_peak, 4),
+                    diff
+                );
             }
             let _ = writeln!(m);
         }
@@ -143,7 +265,10 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
 
     // Events.
     let _ = writeln!(m, "## Events\n");
-    let _ = writeln!(m, "| storm | condition | element | kind | rain [{du}] | runoff [{du}] | peak [{fu}] | at [h] | volume [{vu}] |\n|---|---|---|---|---:|---:|---:|---:|---:|");
+    let _ = writeln!(
+        m,
+        "| storm | condition | element | kind | rain [{du}] | runoff [{du}] | peak [{fu}] | at [h] | volume [{vu}] |\n|---|---|---|---|---:|---:|---:|---:|---:|"
+    );
     for e in &s.events {
         let _ = writeln!(
             m,
@@ -163,24 +288,52 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
 
     // Ponds.
     for e in &study.elements {
-        let ElementKind::Pond(p) = &e.kind else { continue };
+        let ElementKind::Pond(p) = &e.kind else {
+            continue;
+        };
         let _ = writeln!(m, "## Pond \"{}\"\n", e.name);
-        let _ = writeln!(m, "Storage from {}; outlets in parallel with a free outfall (no tailwater); routed by storage-indication (modified Puls) on a {} {lu} stage grid.{}\n", p.storage_kind, f(o.length(p.grid_step_ft), 3), match p.top_ft {
-            Some(t) => format!(" Top of embankment {} {lu}; above it the embankment overflows as a broad-crested weir (C = 2.6 US) {} {lu} long.", f(o.length(t), 2), f(o.length(p.top_length_ft), 1)),
-            None => String::new(),
-        });
+        let _ = writeln!(
+            m,
+            "Storage from {}; outlets in parallel with a free outfall (no tailwater); routed by storage-indication (modified Puls) on a {} {lu} stage grid.{}\n",
+            p.storage_kind,
+            f(o.length(p.grid_step_ft), 3),
+            match p.top_ft {
+                Some(t) => format!(
+                    " Top of embankment {} {lu}; above it the embankment overflows as a broad-crested weir (C = 2.6 US) {} {lu} long.",
+                    f(o.length(t), 2),
+                    f(o.length(p.top_length_ft), 1)
+                ),
+                None => String::new(),
+            }
+        );
         let _ = writeln!(m, "| outlet | device |\n|---:|---|");
         for (i, d) in p.outlets.iter().enumerate() {
             let _ = writeln!(m, "| {i} | {} |", describe_outlet(d, o));
         }
         let _ = writeln!(m);
-        let _ = writeln!(m, "| stage [{lu}] | storage [{vu}] | outflow [{fu}] |\n|---:|---:|---:|");
+        let _ = writeln!(
+            m,
+            "| stage [{lu}] | storage [{vu}] | outflow [{fu}] |\n|---:|---:|---:|"
+        );
         for (h, v, q) in network::rating_rows(p) {
-            let _ = writeln!(m, "| {} | {} | {} |", f(o.length(h), 2), sig(o.volume(v), 5), sig(o.flow(q), 4));
+            let _ = writeln!(
+                m,
+                "| {} | {} | {} |",
+                f(o.length(h), 2),
+                sig(o.volume(v), 5),
+                sig(o.flow(q), 4)
+            );
         }
         let _ = writeln!(m);
-        let _ = writeln!(m, "| storm | condition | peak in [{fu}] | peak out [{fu}] | at [h] | peak stage [{lu}] | peak storage [{vu}] | freeboard [{lu}] | drain time [h] | mass balance |\n|---|---|---:|---:|---:|---:|---:|---:|---:|---:|");
-        for ev in s.events.iter().filter(|ev| ev.kind == "pond" && ev.element == e.name) {
+        let _ = writeln!(
+            m,
+            "| storm | condition | peak in [{fu}] | peak out [{fu}] | at [h] | peak stage [{lu}] | peak storage [{vu}] | freeboard [{lu}] | drain time [h] | mass balance |\n|---|---|---:|---:|---:|---:|---:|---:|---:|---:|"
+        );
+        for ev in s
+            .events
+            .iter()
+            .filter(|ev| ev.kind == "pond" && ev.element == e.name)
+        {
             let _ = writeln!(
                 m,
                 "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
@@ -196,8 +349,13 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
                     (Some(fb), _) => f(fb, 2),
                     _ => "-".into(),
                 },
-                ev.drain_time_h.flatten().map(|d| f(d, 1)).unwrap_or_else(|| "not within run".into()),
-                ev.mass_balance_error.map(|x| format!("{:.4} %", x * 100.0)).unwrap_or_default()
+                ev.drain_time_h
+                    .flatten()
+                    .map(|d| f(d, 1))
+                    .unwrap_or_else(|| "not within run".into()),
+                ev.mass_balance_error
+                    .map(|x| format!("{:.4} %", x * 100.0))
+                    .unwrap_or_default()
             );
         }
         let _ = writeln!(m);
@@ -205,8 +363,14 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
 
     if !s.sized.is_empty() {
         let _ = writeln!(m, "## Outlet sizing\n");
-        let _ = writeln!(m, "Each range was given the largest opening (for an elevation, the lowest) that keeps every downstream limit and pond limit for every storm, lowest outlet first, sweeping until no value moves by more than 0.1 %.\n");
-        let _ = writeln!(m, "| pond | outlet | field | range | chosen | governing storm | governing check | margin |\n|---|---:|---|---|---:|---|---|---:|");
+        let _ = writeln!(
+            m,
+            "Each range was given the largest opening (for an elevation, the lowest) that keeps every downstream limit and pond limit for every storm, lowest outlet first, sweeping until no value moves by more than 0.1 %.\n"
+        );
+        let _ = writeln!(
+            m,
+            "| pond | outlet | field | range | chosen | governing storm | governing check | margin |\n|---|---:|---|---|---:|---|---|---:|"
+        );
         for z in &s.sized {
             let unit = if z.field == "angle" { "deg" } else { lu };
             let _ = writeln!(
@@ -221,10 +385,15 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
                 if z.feasible { "" } else { " (**infeasible**)" },
                 z.governing_storm.clone().unwrap_or_else(|| "-".into()),
                 z.governing_check.clone().unwrap_or_else(|| "-".into()),
-                z.margin.map(|x| format!("{:.2} %", x * 100.0)).unwrap_or_else(|| "-".into())
+                z.margin
+                    .map(|x| format!("{:.2} %", x * 100.0))
+                    .unwrap_or_else(|| "-".into())
             );
         }
-        let _ = writeln!(m, "\nThe sized scenario is written beside this report as `sized-scenario.toml`.\n");
+        let _ = writeln!(
+            m,
+            "\nThe sized scenario is written beside this report as `sized-scenario.toml`.\n"
+        );
     }
 
     if !record_md.is_empty() {
@@ -257,12 +426,78 @@ pub fn describe_outlet(d: &crate::hydraulics::Outlet, o: Out) -> String {
     let lu = o.unit(Quantity::Length);
     let l = |x: f64| f(o.length(x), 3);
     match d {
-        D::CircularOrifice { invert_ft, diameter_ft, cd } => format!("circular orifice, {} {lu} diameter, invert {} {lu}, Cd {}", l(*diameter_ft), f(o.length(*invert_ft), 2), f(*cd, 2)),
-        D::RectangularOrifice { invert_ft, width_ft, height_ft, cd } => format!("rectangular orifice {} x {} {lu}, invert {} {lu}, Cd {}", l(*width_ft), l(*height_ft), f(o.length(*invert_ft), 2), f(*cd, 2)),
-        D::SharpCrestedWeir { crest_ft, length_ft, coefficient, contractions } => format!("sharp-crested weir {} {lu} long, crest {} {lu}, C {} (US), {contractions} end contraction(s)", l(*length_ft), f(o.length(*crest_ft), 2), f(*coefficient, 2)),
-        D::VNotchWeir { crest_ft, angle_deg, cd } => format!("V-notch weir {} deg, crest {} {lu}, Cd {}", f(*angle_deg, 1), f(o.length(*crest_ft), 2), f(*cd, 2)),
-        D::BroadCrestedWeir { crest_ft, length_ft, coefficient } => format!("broad-crested spillway {} {lu} long, crest {} {lu}, C {} (US)", l(*length_ft), f(o.length(*crest_ft), 2), f(*coefficient, 2)),
-        D::Riser { crest_ft, diameter_ft, weir_coefficient, cd } => format!("riser {} {lu} diameter, rim {} {lu}, weir C {} (US), Cd {}", l(*diameter_ft), f(o.length(*crest_ft), 2), f(*weir_coefficient, 2), f(*cd, 2)),
-        D::Rating { table } => format!("rating table, {} rows from {} {lu}", table.len(), table.first().map(|r| f(o.length(r.0), 2)).unwrap_or_default()),
+        D::CircularOrifice {
+            invert_ft,
+            diameter_ft,
+            cd,
+        } => format!(
+            "circular orifice, {} {lu} diameter, invert {} {lu}, Cd {}",
+            l(*diameter_ft),
+            f(o.length(*invert_ft), 2),
+            f(*cd, 2)
+        ),
+        D::RectangularOrifice {
+            invert_ft,
+            width_ft,
+            height_ft,
+            cd,
+        } => format!(
+            "rectangular orifice {} x {} {lu}, invert {} {lu}, Cd {}",
+            l(*width_ft),
+            l(*height_ft),
+            f(o.length(*invert_ft), 2),
+            f(*cd, 2)
+        ),
+        D::SharpCrestedWeir {
+            crest_ft,
+            length_ft,
+            coefficient,
+            contractions,
+        } => format!(
+            "sharp-crested weir {} {lu} long, crest {} {lu}, C {} (US), {contractions} end contraction(s)",
+            l(*length_ft),
+            f(o.length(*crest_ft), 2),
+            f(*coefficient, 2)
+        ),
+        D::VNotchWeir {
+            crest_ft,
+            angle_deg,
+            cd,
+        } => format!(
+            "V-notch weir {} deg, crest {} {lu}, Cd {}",
+            f(*angle_deg, 1),
+            f(o.length(*crest_ft), 2),
+            f(*cd, 2)
+        ),
+        D::BroadCrestedWeir {
+            crest_ft,
+            length_ft,
+            coefficient,
+        } => format!(
+            "broad-crested spillway {} {lu} long, crest {} {lu}, C {} (US)",
+            l(*length_ft),
+            f(o.length(*crest_ft), 2),
+            f(*coefficient, 2)
+        ),
+        D::Riser {
+            crest_ft,
+            diameter_ft,
+            weir_coefficient,
+            cd,
+        } => format!(
+            "riser {} {lu} diameter, rim {} {lu}, weir C {} (US), Cd {}",
+            l(*diameter_ft),
+            f(o.length(*crest_ft), 2),
+            f(*weir_coefficient, 2),
+            f(*cd, 2)
+        ),
+        D::Rating { table } => format!(
+            "rating table, {} rows from {} {lu}",
+            table.len(),
+            table
+                .first()
+                .map(|r| f(o.length(r.0), 2))
+                .unwrap_or_default()
+        ),
     }
 }

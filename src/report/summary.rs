@@ -335,13 +335,28 @@ impl Out {
 }
 
 /// Builds the summary from a study and its analysis.
-pub fn build(study: &Study, a: &Analysis, sized: Vec<SizedOut>, records: Vec<serde_json::Value>, extra_comparisons: Vec<ComparisonOut>, run_date: String) -> Summary {
+pub fn build(
+    study: &Study,
+    a: &Analysis,
+    sized: Vec<SizedOut>,
+    records: Vec<serde_json::Value>,
+    extra_comparisons: Vec<ComparisonOut>,
+    run_date: String,
+) -> Summary {
     let o = Out(study.units);
     let step_h = study.step_h;
     let mut catchments = Vec::new();
     for e in &study.elements {
-        let ElementKind::Catchment(c) = &e.kind else { continue };
-        let conds: Vec<String> = study.conditions.iter().zip(&e.conditions).filter(|(_, m)| **m).map(|(n, _)| n.clone()).collect();
+        let ElementKind::Catchment(c) = &e.kind else {
+            continue;
+        };
+        let conds: Vec<String> = study
+            .conditions
+            .iter()
+            .zip(&e.conditions)
+            .filter(|(_, m)| **m)
+            .map(|(n, _)| n.clone())
+            .collect();
         let p2 = study.p2_in.unwrap_or(1.0);
         let lag = crate::timing::lag_h(c.tc_h);
         let tp = crate::unit_hydrograph::time_to_peak_h(step_h, lag);
@@ -375,8 +390,11 @@ pub fn build(study: &Study, a: &Analysis, sized: Vec<SizedOut>, records: Vec<ser
                 .map(|s| {
                     let t = s.travel(p2);
                     let (n, surface) = match s {
-                        crate::timing::Segment::Sheet { n, .. } | crate::timing::Segment::Channel { n, .. } => (Some(*n), None),
-                        crate::timing::Segment::Shallow { surface, .. } => (None, Some(surface.clone())),
+                        crate::timing::Segment::Sheet { n, .. }
+                        | crate::timing::Segment::Channel { n, .. } => (Some(*n), None),
+                        crate::timing::Segment::Shallow { surface, .. } => {
+                            (None, Some(surface.clone()))
+                        }
                     };
                     SegmentOut {
                         kind: s.kind(),
@@ -473,7 +491,11 @@ pub fn build(study: &Study, a: &Analysis, sized: Vec<SizedOut>, records: Vec<ser
             baseline_peak: o.flow(c.baseline_peak_cfs),
             peak: o.flow(c.peak_cfs),
             limit: o.flow(c.limit_cfs),
-            limit_text: study.points[c.point].limit_text.get(c.storm).cloned().unwrap_or_default(),
+            limit_text: study.points[c.point]
+                .limit_text
+                .get(c.storm)
+                .cloned()
+                .unwrap_or_default(),
             pass: c.pass,
             detail: None,
         })
@@ -522,7 +544,9 @@ pub fn build(study: &Study, a: &Analysis, sized: Vec<SizedOut>, records: Vec<ser
         })
         .collect();
 
-    let all_pass = comparisons.iter().all(|c| c.pass) && !a.pond_checks.iter().any(|c| !c.pass) && sized.iter().all(|s| s.feasible);
+    let all_pass = comparisons.iter().all(|c| c.pass)
+        && !a.pond_checks.iter().any(|c| !c.pass)
+        && sized.iter().all(|s| s.feasible);
     Summary {
         title: study.title.clone(),
         unit_system: study.units.to_string(),
@@ -551,7 +575,12 @@ pub fn build(study: &Study, a: &Analysis, sized: Vec<SizedOut>, records: Vec<ser
             run_date,
             scenario: study.provenance.scenario.display().to_string(),
             scenario_sha256: study.provenance.scenario_sha256.clone(),
-            inputs: study.provenance.inputs.iter().map(|p| p.display().to_string()).collect(),
+            inputs: study
+                .provenance
+                .inputs
+                .iter()
+                .map(|p| p.display().to_string())
+                .collect(),
         },
         all_pass,
         caution: CAUTION,

@@ -59,11 +59,11 @@ pub fn describe(text: &str, offset: usize) -> String {
                     if lt.starts_with('[') {
                         break;
                     }
-                    if let Some((k, v)) = lt.split_once('=') {
-                        if k.trim() == "name" {
-                            name = Some(v.trim().trim_matches('"').to_string());
-                            break;
-                        }
+                    if let Some((k, v)) = lt.split_once('=')
+                        && k.trim() == "name"
+                    {
+                        name = Some(v.trim().trim_matches('"').to_string());
+                        break;
                     }
                 }
             }
@@ -100,7 +100,10 @@ mod tests {
     fn names_element_segment_and_key() {
         let t = "title = \"x\"\n[[catchment]]\nname = \"PR-1\"\n[[catchment.flow]]\nkind = \"sheet\"\n[[catchment.flow]]\nslope = \"x\"\n";
         let off = t.find("slope").unwrap_or(0);
-        assert_eq!(describe(t, off), "catchment \"PR-1\", flow segment 2, slope");
+        assert_eq!(
+            describe(t, off),
+            "catchment \"PR-1\", flow segment 2, slope"
+        );
         assert_eq!(describe(t, 0), "title");
     }
 }

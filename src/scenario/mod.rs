@@ -2,6 +2,10 @@
 //! [`Study`]. Every check that spans fields (a `to` that names nothing, a
 //! cycle, a limit naming an unknown storm) lives here, once.
 
+// Input errors are the cold path and carry a whole message, snippet and hint;
+// boxing every one of them would only add noise.
+#![allow(clippy::result_large_err)]
+
 pub mod context;
 pub mod raw;
 
@@ -40,8 +44,14 @@ pub fn load(path: &Path) -> Result<Study, Error> {
         source,
     })?;
     let text = String::from_utf8(bytes).map_err(|e| {
-        InputError::new(path, format!("the file is not UTF-8 text (byte {})", e.utf8_error().valid_up_to()))
-            .expected("a TOML scenario in UTF-8")
+        InputError::new(
+            path,
+            format!(
+                "the file is not UTF-8 text (byte {})",
+                e.utf8_error().valid_up_to()
+            ),
+        )
+        .expected("a TOML scenario in UTF-8")
     })?;
     let sha = hex(&Sha256::digest(text.as_bytes()));
     let src = SourceText::new(path, text);
@@ -93,14 +103,23 @@ fn toml_error(src: &SourceText, e: &toml::de::Error) -> InputError {
         }
         err.message = format!("unknown key `{word}`");
         if !candidates.is_empty() {
-            err = err.expected(format!("one of {}", candidates.iter().map(|c| format!("`{c}`")).collect::<Vec<_>>().join(", ")));
+            err = err.expected(format!(
+                "one of {}",
+                candidates
+                    .iter()
+                    .map(|c| format!("`{c}`"))
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            ));
         }
     } else if let Some(rest) = msg.strip_prefix("missing field `") {
         let word = rest.split('`').next().unwrap_or("");
         err.message = format!("missing required key `{word}`");
         err = err.expected(format!("`{word} = ...` in this table"));
     } else if msg.contains("invalid type") {
-        err = err.expected("a value of the type shown in the scenario format (README, \"Scenario format\")");
+        err = err.expected(
+            "a value of the type shown in the scenario format (README, \"Scenario format\")",
+        );
     }
     err
 }
@@ -163,13 +182,26 @@ impl<'a> Builder<'a> {
         if x > 0.0 {
             Ok(x)
         } else {
-            Err(self.err(&v.span(), ctx, format!("must be positive, got {}", show(v.get_ref()))).expected(format!("{} greater than zero", q.describe())))
+            Err(self
+                .err(
+                    &v.span(),
+                    ctx,
+                    format!("must be positive, got {}", show(v.get_ref())),
+                )
+                .expected(format!("{} greater than zero", q.describe())))
         }
     }
 
-    fn req<'v, T>(&self, v: &'v Option<Spanned<T>>, table: &std::ops::Range<usize>, ctx: &str, key: &str, what: &str) -> R<&'v Spanned<T>> {
+    fn req<'v, T>(
+        &self,
+        v: &'v Option<Spanned<T>>,
+        table: &std::ops::Range<usize>,
+        ctx: &str,
+        key: &str,
+        what: &str,
+    ) -> R<&'v Spanned<T>> {
         v.as_ref().ok_or_else(|| {
-            self.err(table, &format!("{ctx}"), format!("missing required key `{key}`"))
+            self.err(table, ctx, format!("missing required key `{key}`"))
                 .expected(format!("`{key} = {what}`"))
         })
     }
@@ -179,7 +211,9 @@ impl<'a> Builder<'a> {
         if x.is_finite() {
             Ok(x)
         } else {
-            Err(self.err(&v.span(), ctx, format!("{x} is not a finite number")).expected("a finite number"))
+            Err(self
+                .err(&v.span(), ctx, format!("{x} is not a finite number"))
+                .expected("a finite number"))
         }
     }
 
@@ -202,7 +236,11 @@ impl<'a> Builder<'a> {
                 "si" => UnitSystem::Si,
                 other => {
                     return Err(self
-                        .err(&u.span(), "units", format!("unknown unit system \"{other}\""))
+                        .err(
+                            &u.span(),
+                            "units",
+                            format!("unknown unit system \"{other}\""),
+                        )
                         .expected("\"us\" or \"si\""));
                 }
             };
@@ -213,8 +251,12 @@ impl<'a> Builder<'a> {
         };
         let memory_limit_bytes = match &raw.memory_limit {
             Some(v) => parse_bytes(v.get_ref()).ok_or_else(|| {
-                self.err(&v.span(), "memory_limit", format!("cannot read \"{}\" as a memory size", v.get_ref()))
-                    .expected("a size such as \"4 GB\" or \"512 MB\"")
+                self.err(
+                    &v.span(),
+                    "memory_limit",
+                    format!("cannot read \"{}\" as a memory size", v.get_ref()),
+                )
+                .expected("a size such as \"4 GB\" or \"512 MB\"")
             })?,
             None => DEFAULT_MEMORY_LIMIT_BYTES,
         };
@@ -224,12 +266,18 @@ impl<'a> Builder<'a> {
         let mut check_name = |this: &Self, n: &Spanned<String>, kind: &'static str| -> R<()> {
             let s = n.get_ref().trim();
             if s.is_empty() {
-                return Err(this.err(&n.span(), kind, "the name is empty").expected("a non-empty name"));
+                return Err(this
+                    .err(&n.span(), kind, "the name is empty")
+                    .expected("a non-empty name"));
             }
             if let Some((k, first)) = names.get(s) {
                 let (l, _) = this.src.line_col(first.start);
                 return Err(this
-                    .err(&n.span(), &format!("{kind} \"{s}\", name"), format!("the name \"{s}\" is already used by a {k} (line {l})"))
+                    .err(
+                        &n.span(),
+                        &format!("{kind} \"{s}\", name"),
+                        format!("the name \"{s}\" is already used by a {k} (line {l})"),
+                    )
                     .expected("a name used once"));
             }
             names.insert(s.to_string(), (kind, n.span()));
@@ -253,7 +301,11 @@ impl<'a> Builder<'a> {
             if let Some(first) = storm_names.get(n.get_ref()) {
                 let (l, _) = self.src.line_col(first.start);
                 return Err(self
-                    .err(&n.span(), &format!("storm \"{}\", name", n.get_ref()), format!("the storm name is already used (line {l})"))
+                    .err(
+                        &n.span(),
+                        &format!("storm \"{}\", name", n.get_ref()),
+                        format!("the storm name is already used (line {l})"),
+                    )
                     .expected("each storm named once"));
             }
             storm_names.insert(n.get_ref().clone(), n.span());
@@ -262,12 +314,22 @@ impl<'a> Builder<'a> {
         for r in &raw.record {
             let n = &r.get_ref().name;
             if record_names.insert(n.get_ref().clone(), ()).is_some() {
-                return Err(self.err(&n.span(), &format!("record \"{}\", name", n.get_ref()), "the record name is already used").expected("each record named once"));
+                return Err(self
+                    .err(
+                        &n.span(),
+                        &format!("record \"{}\", name", n.get_ref()),
+                        "the record name is already used",
+                    )
+                    .expected("each record named once"));
             }
         }
 
         // Conditions, in order of first mention, baseline first.
-        let baseline_name = raw.baseline.as_ref().map(|b| b.get_ref().clone()).unwrap_or_else(|| "existing".to_string());
+        let baseline_name = raw
+            .baseline
+            .as_ref()
+            .map(|b| b.get_ref().clone())
+            .unwrap_or_else(|| "existing".to_string());
         let mut conditions = vec![baseline_name.clone()];
         let mention = |list: &Option<Spanned<NameList>>, conditions: &mut Vec<String>| {
             if let Some(l) = list {
@@ -288,7 +350,11 @@ impl<'a> Builder<'a> {
             mention(&i.get_ref().condition, &mut conditions);
         }
 
-        let storms = raw.storm.iter().map(|s| self.storm(s)).collect::<R<Vec<_>>>()?;
+        let storms = raw
+            .storm
+            .iter()
+            .map(|s| self.storm(s))
+            .collect::<R<Vec<_>>>()?;
         let storm_index = |n: &str| storms.iter().position(|s: &Storm| s.name == n);
 
         // Elements.
@@ -306,7 +372,12 @@ impl<'a> Builder<'a> {
                 table_span: c.span(),
                 ctx: ctx.clone(),
             });
-            kinds.push(ElementKind::Catchment(self.catchment(rc, &c.span(), &ctx, p2_in)?));
+            kinds.push(ElementKind::Catchment(self.catchment(
+                rc,
+                &c.span(),
+                &ctx,
+                p2_in,
+            )?));
         }
         let mut sizing_raw = Vec::new();
         for p in &raw.pond {
@@ -344,7 +415,13 @@ impl<'a> Builder<'a> {
             let storm = match &ri.storm {
                 Some(s) => Some(storm_index(s.get_ref()).ok_or_else(|| {
                     let hint = cover::nearest(s.get_ref(), storms.iter().map(|s| s.name.as_str()));
-                    let e = self.err(&s.span(), &format!("{ctx}, storm"), format!("no storm is named \"{}\"", s.get_ref())).expected("the name of a [[storm]]");
+                    let e = self
+                        .err(
+                            &s.span(),
+                            &format!("{ctx}, storm"),
+                            format!("no storm is named \"{}\"", s.get_ref()),
+                        )
+                        .expected("the name of a [[storm]]");
                     match hint {
                         Some(h) => e.hint(format!("did you mean \"{h}\"?")),
                         None => e,
@@ -352,10 +429,19 @@ impl<'a> Builder<'a> {
                 })?),
                 None => None,
             };
-            kinds.push(ElementKind::Inflow(self.inflow(ri, &i.span(), &ctx, storm)?));
+            kinds.push(ElementKind::Inflow(self.inflow(
+                ri,
+                &i.span(),
+                &ctx,
+                storm,
+            )?));
         }
 
-        let point_names: Vec<String> = raw.point.iter().map(|p| p.get_ref().name.get_ref().trim().to_string()).collect();
+        let point_names: Vec<String> = raw
+            .point
+            .iter()
+            .map(|p| p.get_ref().name.get_ref().trim().to_string())
+            .collect();
         let element_names: Vec<String> = pending.iter().map(|p| p.name.clone()).collect();
         let mut elements = Vec::new();
         for (p, kind) in pending.into_iter().zip(kinds) {
@@ -363,7 +449,13 @@ impl<'a> Builder<'a> {
             match &p.conditions {
                 Some(l) => {
                     if l.get_ref().0.is_empty() {
-                        return Err(self.err(&l.span(), &format!("{}, condition", p.ctx), "the list of conditions is empty").expected("a condition name or a list of them"));
+                        return Err(self
+                            .err(
+                                &l.span(),
+                                &format!("{}, condition", p.ctx),
+                                "the list of conditions is empty",
+                            )
+                            .expected("a condition name or a list of them"));
                     }
                     for c in &l.get_ref().0 {
                         if let Some(i) = conditions.iter().position(|x| x == c) {
@@ -373,35 +465,87 @@ impl<'a> Builder<'a> {
                 }
                 None => membership.iter_mut().for_each(|m| *m = true),
             }
-            let to_raw = self.req(&p.to, &p.table_span, &p.ctx, "to", "\"the name of a pond or point\"")?;
+            let to_raw = self.req(
+                &p.to,
+                &p.table_span,
+                &p.ctx,
+                "to",
+                "\"the name of a pond or point\"",
+            )?;
             let tname = to_raw.get_ref().trim();
             let to = if let Some(i) = point_names.iter().position(|n| n == tname) {
                 Target::Point(i)
             } else if let Some(i) = element_names.iter().position(|n| n == tname) {
                 if !matches!(kind_of(&element_names, i, &raw), "pond") {
                     return Err(self
-                        .err(&to_raw.span(), &format!("{}, to", p.ctx), format!("\"{tname}\" is a {}; flow can only go to a pond or a point", kind_of(&element_names, i, &raw)))
+                        .err(
+                            &to_raw.span(),
+                            &format!("{}, to", p.ctx),
+                            format!(
+                                "\"{tname}\" is a {}; flow can only go to a pond or a point",
+                                kind_of(&element_names, i, &raw)
+                            ),
+                        )
                         .expected("the name of a pond or point"));
                 }
                 if element_names.get(i) == Some(&p.name) {
-                    return Err(self.err(&to_raw.span(), &format!("{}, to", p.ctx), "an element cannot drain to itself").expected("the name of a pond or point downstream"));
+                    return Err(self
+                        .err(
+                            &to_raw.span(),
+                            &format!("{}, to", p.ctx),
+                            "an element cannot drain to itself",
+                        )
+                        .expected("the name of a pond or point downstream"));
                 }
                 Target::Element(i)
             } else {
-                let all = point_names.iter().chain(element_names.iter()).map(String::as_str);
+                let targets: Vec<&str> = point_names
+                    .iter()
+                    .map(String::as_str)
+                    .chain(
+                        element_names
+                            .iter()
+                            .enumerate()
+                            .filter(|(k, _)| kind_of(&element_names, *k, &raw) == "pond")
+                            .map(|(_, n)| n.as_str()),
+                    )
+                    .collect();
                 let e = self
-                    .err(&to_raw.span(), &format!("{}, to", p.ctx), format!("nothing is named \"{tname}\""))
+                    .err(
+                        &to_raw.span(),
+                        &format!("{}, to", p.ctx),
+                        format!("nothing is named \"{tname}\""),
+                    )
                     .expected("the name of a pond or point");
-                return Err(match cover::nearest(tname, all) {
-                    Some(h) => e.hint(format!("did you mean \"{h}\"?")),
-                    None => e,
+                return Err(if point_names.is_empty() {
+                    e.hint(format!(
+                        "the scenario has no [[point]]; add one with name = \"{tname}\""
+                    ))
+                } else {
+                    match cover::nearest(tname, targets.iter().copied()) {
+                        Some(h) => e.hint(format!("did you mean \"{h}\"?")),
+                        None => e.hint(format!(
+                            "the ponds and points are {}",
+                            targets
+                                .iter()
+                                .map(|n| format!("\"{n}\""))
+                                .collect::<Vec<_>>()
+                                .join(", ")
+                        )),
+                    }
                 });
             };
             let lag_h = match &p.lag {
                 Some(l) => {
                     let v = self.qty(l, Quantity::Time, &format!("{}, lag", p.ctx))?;
                     if v < 0.0 {
-                        return Err(self.err(&l.span(), &format!("{}, lag", p.ctx), "a lag cannot be negative").expected("a time of zero or more"));
+                        return Err(self
+                            .err(
+                                &l.span(),
+                                &format!("{}, lag", p.ctx),
+                                "a lag cannot be negative",
+                            )
+                            .expected("a time of zero or more"));
                     }
                     v
                 }
@@ -427,11 +571,20 @@ impl<'a> Builder<'a> {
                 let mut at = i;
                 loop {
                     if seen[at] {
-                        let span = &raw_to_span(&raw, i);
+                        // `at` lies on the loop: name it and the loop from it.
+                        let span = &raw_to_span(&raw, at);
                         return Err(self
-                            .err(span, &format!("{} \"{}\", to", e.kind_word(), e.name), "the flow path loops back on itself (a cycle)")
+                            .err(
+                                span,
+                                &format!(
+                                    "{} \"{}\", to",
+                                    elements[at].kind_word(),
+                                    elements[at].name
+                                ),
+                                "the flow path loops back on itself (a cycle)",
+                            )
                             .expected("every path to end at a point")
-                            .hint(cycle_text(&elements, i)));
+                            .hint(cycle_text(&elements, at)));
                     }
                     seen[at] = true;
                     match elements[at].to {
@@ -462,7 +615,10 @@ impl<'a> Builder<'a> {
             }
         }
         if raw.point.is_empty() && !elements.is_empty() {
-            return Err(self.src.error("the scenario has no [[point]]").expected("at least one [[point]] where conditions are compared"));
+            return Err(self
+                .src
+                .error("the scenario has no [[point]]")
+                .expected("at least one [[point]] where conditions are compared"));
         }
 
         // Points and limits.
@@ -472,7 +628,9 @@ impl<'a> Builder<'a> {
         }
         for (pi, p) in points.iter().enumerate() {
             for (c, cname) in conditions.iter().enumerate() {
-                let reaches = elements.iter().any(|e| e.conditions[c] && e.to == Target::Point(pi));
+                let reaches = elements
+                    .iter()
+                    .any(|e| e.conditions[c] && e.to == Target::Point(pi));
                 if !reaches {
                     self.warnings.push(Warning::PointNotReached {
                         point: p.name.clone(),
@@ -494,21 +652,46 @@ impl<'a> Builder<'a> {
             Some(s) => {
                 let v = self.qty(s, Quantity::Time, "step")?;
                 if v <= 0.0 {
-                    return Err(self.err(&s.span(), "step", format!("the step must be positive, got {}", show(s.get_ref()))).expected("a time such as \"2 min\""));
+                    return Err(self
+                        .err(
+                            &s.span(),
+                            "step",
+                            format!("the step must be positive, got {}", show(s.get_ref())),
+                        )
+                        .expected("a time such as \"2 min\""));
                 }
                 (v, true)
             }
             None => (default_step_h(min_tc), false),
         };
-        for s in &storms {
+        for (si, s) in storms.iter().enumerate() {
             let n = ((s.rain_end_h() + 7.0 * 24.0) / step_h).ceil();
             if n > MAX_STEPS as f64 {
-                let span = raw.step.as_ref().map(|s| s.span()).unwrap_or(0..0);
-                let suggest = (s.rain_end_h() + 7.0 * 24.0) / MAX_STEPS as f64 * 60.0;
-                return Err(self
-                    .err(&span, "step", format!("storm \"{}\" would need {} steps at this step, more than runnel's limit of {MAX_STEPS}", s.name, n as u64))
-                    .expected("a step that gives at most 50 million steps per storm")
-                    .hint(format!("use a step of at least {:.3} min", suggest.max(0.001))));
+                let least = format_step_up((s.rain_end_h() + 7.0 * 24.0) / MAX_STEPS as f64);
+                let too_many = format!(
+                    "storm \"{}\" would need {n:.0} steps at a step of {}, more than runnel's limit of {MAX_STEPS}",
+                    s.name,
+                    format_step_up(step_h)
+                );
+                return Err(match &raw.step {
+                    Some(st) => self
+                        .err(&st.span(), "step", too_many)
+                        .expected("a step that gives at most 50 million steps per storm")
+                        .hint(format!(
+                            "use a step of at least {least}; without `step` runnel picks {}",
+                            format_step_up(default_step_h(min_tc))
+                        )),
+                    None => {
+                        let span = raw.storm.get(si).map(|x| x.span()).unwrap_or(0..0);
+                        self.err(&span, &format!("storm \"{}\"", s.name), too_many)
+                            .expected(
+                                "a storm (and its tail of 7 days) that fits in 50 million steps",
+                            )
+                            .hint(format!(
+                                "shorten the storm, or give a coarser `step` of at least {least}"
+                            ))
+                    }
+                });
             }
         }
 
@@ -536,10 +719,87 @@ impl<'a> Builder<'a> {
             }
         }
 
-        let records = raw.record.iter().map(|r| self.record(r)).collect::<R<Vec<_>>>()?;
+        // Each pond's storage-indication relation must increase strictly at this step.
+        for (i, e) in elements.iter().enumerate() {
+            if let ElementKind::Pond(p) = &e.kind {
+                let top = p
+                    .storage
+                    .rows()
+                    .last()
+                    .map(|r| r.0)
+                    .unwrap_or(0.0)
+                    .max(p.top_ft.unwrap_or(f64::NEG_INFINITY));
+                let vmax = p.storage.volume_ft3(top + 0.5);
+                let emb = p.top_ft.map(|t| crate::pond::Embankment {
+                    top_ft: t,
+                    crest_length_ft: p.top_length_ft,
+                    coefficient: 2.6,
+                });
+                if let Err(err) = crate::pond::PondTable::build(
+                    &p.storage,
+                    &p.outlets,
+                    emb.as_ref(),
+                    step_h * 3600.0,
+                    p.grid_step_ft,
+                    vmax,
+                ) {
+                    let span = raw
+                        .pond
+                        .get(i - raw.catchment.len())
+                        .map(|x| x.span())
+                        .unwrap_or(0..0);
+                    return Err(self
+                        .err(
+                            &span,
+                            &format!("pond \"{}\"", e.name),
+                            format!("the stage-storage-discharge table cannot be routed: {err}"),
+                        )
+                        .expected(
+                            "storage that grows with stage (2S/dt + O strictly increasing)",
+                        ));
+                }
+            }
+        }
+
+        let records = raw
+            .record
+            .iter()
+            .map(|r| self.record(r))
+            .collect::<R<Vec<_>>>()?;
+
+        // A unit hydrograph must fit in memory at every step it is used at
+        // (a very long Tc, e.g. from a near-zero slope, would not).
+        let finest_step_h = records.iter().map(|r| r.step_h).fold(step_h, f64::min);
+        for (i, e) in elements.iter().enumerate() {
+            if let ElementKind::Catchment(c) = &e.kind {
+                let tp_h = unit_hydrograph::time_to_peak_h(finest_step_h, timing::lag_h(c.tc_h));
+                let n = c.shape.time_base_over_tp() * tp_h / finest_step_h;
+                if n.is_nan() || n > MAX_STEPS as f64 {
+                    let rc = raw.catchment.get(i).map(|c| c.get_ref());
+                    let span = rc
+                        .and_then(|c| c.tc.as_ref().map(|t| t.span()))
+                        .or_else(|| raw.catchment.get(i).map(|c| c.span()))
+                        .unwrap_or(0..0);
+                    return Err(self
+                        .err(
+                            &span,
+                            &format!("catchment \"{}\"", e.name),
+                            format!(
+                                "the time of concentration works out to {:.3e} h, so its unit hydrograph would need {n:.3e} steps, more than runnel's limit of {MAX_STEPS}",
+                                c.tc_h
+                            ),
+                        )
+                        .expected("a time of concentration of hours, not years")
+                        .hint("check the flow path's lengths, slopes and Manning n, and `p2`"));
+                }
+            }
+        }
 
         if storms.is_empty() && records.is_empty() && !elements.is_empty() {
-            return Err(self.src.error("the scenario has no [[storm]] and no [[record]]").expected("at least one design storm or long record"));
+            return Err(self
+                .src
+                .error("the scenario has no [[storm]] and no [[record]]")
+                .expected("at least one design storm or long record"));
         }
 
         Ok(Study {
@@ -567,7 +827,13 @@ impl<'a> Builder<'a> {
         let ctx = format!("storm \"{name}\"");
         if let Some(g) = &rs.gauge {
             if let Some(p) = &rs.pattern {
-                return Err(self.err(&p.span(), &format!("{ctx}, pattern"), "a storm takes either `gauge` or `pattern`, not both").expected("one of them"));
+                return Err(self
+                    .err(
+                        &p.span(),
+                        &format!("{ctx}, pattern"),
+                        "a storm takes either `gauge` or `pattern`, not both",
+                    )
+                    .expected("one of them"));
             }
             let (series, path) = self.gauge(g, &rs.interval, &rs.missing, &ctx, 0)?;
             return Ok(Storm {
@@ -576,12 +842,26 @@ impl<'a> Builder<'a> {
                     path,
                     interval_h: series.interval_s as f64 / 3600.0,
                     start_s: series.start_s,
-                    depth_in: series.depth.iter().map(|d| d * self.depth_factor()).collect(),
+                    depth_in: series
+                        .depth
+                        .iter()
+                        .map(|d| d * self.depth_factor())
+                        .collect(),
                 },
             });
         }
-        let pat = self.req(&rs.pattern, &s.span(), &ctx, "pattern", "\"nrcs-type-ii\" (or a `gauge` file)")?;
-        let depth = self.positive(self.req(&rs.depth, &s.span(), &ctx, "depth", "\"5.1 in\"")?, Quantity::Depth, &format!("{ctx}, depth"))?;
+        let pat = self.req(
+            &rs.pattern,
+            &s.span(),
+            &ctx,
+            "pattern",
+            "\"nrcs-type-ii\" (or a `gauge` file)",
+        )?;
+        let depth = self.positive(
+            self.req(&rs.depth, &s.span(), &ctx, "depth", "\"5.1 in\"")?,
+            Quantity::Depth,
+            &format!("{ctx}, depth"),
+        )?;
         let key = pat.get_ref().to_ascii_lowercase();
         let nrcs = match key.as_str() {
             "nrcs-type-i" => Some(NrcsType::I),
@@ -590,7 +870,14 @@ impl<'a> Builder<'a> {
             "nrcs-type-iii" => Some(NrcsType::III),
             "uniform" | "table" => None,
             other => {
-                let keys = ["nrcs-type-i", "nrcs-type-ia", "nrcs-type-ii", "nrcs-type-iii", "uniform", "table"];
+                let keys = [
+                    "nrcs-type-i",
+                    "nrcs-type-ia",
+                    "nrcs-type-ii",
+                    "nrcs-type-iii",
+                    "uniform",
+                    "table",
+                ];
                 let e = self
                     .err(&pat.span(), &format!("{ctx}, pattern"), format!("unknown pattern \"{other}\""))
                     .expected("nrcs-type-i | nrcs-type-ia | nrcs-type-ii | nrcs-type-iii | uniform | table");
@@ -604,27 +891,53 @@ impl<'a> Builder<'a> {
             (Some(d), Some(_)) => {
                 let v = self.qty(d, Quantity::Time, &format!("{ctx}, duration"))?;
                 if (v - 24.0).abs() > 1e-9 {
-                    return Err(self.err(&d.span(), &format!("{ctx}, duration"), "the NRCS patterns are 24-hour storms").expected("\"24 h\" or no `duration`"));
+                    return Err(self
+                        .err(
+                            &d.span(),
+                            &format!("{ctx}, duration"),
+                            "the NRCS patterns are 24-hour storms",
+                        )
+                        .expected("\"24 h\" or no `duration`"));
                 }
                 24.0
             }
             (None, Some(_)) => 24.0,
             (Some(d), None) => self.positive(d, Quantity::Time, &format!("{ctx}, duration"))?,
-            (None, None) => return Err(self.err(&s.span(), &ctx, "missing required key `duration`").expected("`duration = \"6 h\"` for uniform and table storms")),
+            (None, None) => {
+                return Err(self
+                    .err(&s.span(), &ctx, "missing required key `duration`")
+                    .expected("`duration = \"6 h\"` for uniform and table storms"));
+            }
         };
         let curve = match (key.as_str(), nrcs) {
             (_, Some(t)) => t.mass_curve(),
             ("uniform", _) => MassCurve::uniform(),
             _ => {
-                let t = self.req(&rs.table, &s.span(), &ctx, "table", "[[0.0, 0.0], ..., [1.0, 1.0]]")?;
+                let t = self.req(
+                    &rs.table,
+                    &s.span(),
+                    &ctx,
+                    "table",
+                    "[[0.0, 0.0], ..., [1.0, 1.0]]",
+                )?;
                 let rows = self.pairs(t, &format!("{ctx}, table"))?;
-                MassCurve::from_table(&rows).map_err(|e| self.err(&t.span(), &format!("{ctx}, table"), e.to_string()).expected("a mass curve from [0, 0] to [1, 1] that never decreases"))?
+                MassCurve::from_table(&rows).map_err(|e| {
+                    self.err(&t.span(), &format!("{ctx}, table"), e.to_string())
+                        .expected("a mass curve from [0, 0] to [1, 1] that never decreases")
+                })?
             }
         };
-        if rs.table.is_some() && key != "table" {
-            if let Some(t) = &rs.table {
-                return Err(self.err(&t.span(), &format!("{ctx}, table"), format!("`table` is only used with pattern = \"table\", not \"{key}\"")).expected("no `table` key, or pattern = \"table\""));
-            }
+        if rs.table.is_some()
+            && key != "table"
+            && let Some(t) = &rs.table
+        {
+            return Err(self
+                .err(
+                    &t.span(),
+                    &format!("{ctx}, table"),
+                    format!("`table` is only used with pattern = \"table\", not \"{key}\""),
+                )
+                .expected("no `table` key, or pattern = \"table\""));
         }
         Ok(Storm {
             name,
@@ -642,14 +955,27 @@ impl<'a> Builder<'a> {
         Quantity::Depth.bare_factor(self.units).unwrap_or(1.0)
     }
 
-    fn gauge(&mut self, g: &Spanned<String>, interval: &Option<Spanned<RawValue>>, missing: &Option<Spanned<String>>, ctx: &str, max_intervals: usize) -> R<(gauge::GaugeSeries, PathBuf)> {
+    fn gauge(
+        &mut self,
+        g: &Spanned<String>,
+        interval: &Option<Spanned<RawValue>>,
+        missing: &Option<Spanned<String>>,
+        ctx: &str,
+        max_intervals: usize,
+    ) -> R<(gauge::GaugeSeries, PathBuf)> {
         let path = self.resolve(g, &format!("{ctx}, gauge"))?;
         let interval_s = match interval {
             Some(v) => {
                 let h = self.positive(v, Quantity::Time, &format!("{ctx}, interval"))?;
                 let s = (h * 3600.0).round();
                 if s < 1.0 {
-                    return Err(self.err(&v.span(), &format!("{ctx}, interval"), "the interval must be at least one second").expected("a time such as \"15 min\""));
+                    return Err(self
+                        .err(
+                            &v.span(),
+                            &format!("{ctx}, interval"),
+                            "the interval must be at least one second",
+                        )
+                        .expected("a time such as \"15 min\""));
                 }
                 Some(s as i64)
             }
@@ -658,14 +984,32 @@ impl<'a> Builder<'a> {
         let missing_zero = match missing {
             Some(m) if m.get_ref() == "zero" => true,
             Some(m) if m.get_ref() == "error" => false,
-            Some(m) => return Err(self.err(&m.span(), &format!("{ctx}, missing"), format!("unknown value \"{}\"", m.get_ref())).expected("\"zero\" (missing intervals have no rain) or \"error\"")),
+            Some(m) => {
+                return Err(self
+                    .err(
+                        &m.span(),
+                        &format!("{ctx}, missing"),
+                        format!("unknown value \"{}\"", m.get_ref()),
+                    )
+                    .expected("\"zero\" (missing intervals have no rain) or \"error\""));
+            }
             None => false,
         };
-        let bytes = std::fs::read(&path).map_err(|e| self.err(&g.span(), &format!("{ctx}, gauge"), format!("cannot read {}: {e}", path.display())))?;
+        let bytes = std::fs::read(&path).map_err(|e| {
+            self.err(
+                &g.span(),
+                &format!("{ctx}, gauge"),
+                format!("cannot read {}: {e}", path.display()),
+            )
+        })?;
         let opts = gauge::GaugeOptions {
             interval_s,
             missing_zero,
-            max_intervals: if max_intervals == 0 { MAX_STEPS } else { max_intervals },
+            max_intervals: if max_intervals == 0 {
+                MAX_STEPS
+            } else {
+                max_intervals
+            },
         };
         let series = gauge::parse_gauge(&bytes, &opts).map_err(|e| {
             let mut ie = InputError::new(&path, e.message.clone()).context(format!("{ctx}, gauge"));
@@ -674,7 +1018,10 @@ impl<'a> Builder<'a> {
                 if let Some(c) = e.column {
                     ie.column = Some(c);
                 }
-                ie.snippet = String::from_utf8_lossy(&bytes).lines().nth(e.line - 1).map(|s| s.chars().take(120).collect());
+                ie.snippet = String::from_utf8_lossy(&bytes)
+                    .lines()
+                    .nth(e.line - 1)
+                    .map(|s| s.chars().take(120).collect());
             }
             if !e.expected.is_empty() {
                 ie = ie.expected(e.expected.clone());
@@ -690,34 +1037,102 @@ impl<'a> Builder<'a> {
             .enumerate()
             .map(|(i, r)| match r.as_slice() {
                 [a, b] if a.is_finite() && b.is_finite() => Ok((*a, *b)),
-                [_, _] => Err(self.err(&t.span(), ctx, format!("row {} holds a number that is not finite", i + 1)).expected("finite numbers")),
-                _ => Err(self.err(&t.span(), ctx, format!("row {} has {} numbers", i + 1, r.len())).expected("rows of two numbers, e.g. [[0.0, 0.0], [1.0, 1.0]]")),
+                [_, _] => Err(self
+                    .err(
+                        &t.span(),
+                        ctx,
+                        format!("row {} holds a number that is not finite", i + 1),
+                    )
+                    .expected("finite numbers")),
+                _ => Err(self
+                    .err(
+                        &t.span(),
+                        ctx,
+                        format!("row {} has {} numbers", i + 1, r.len()),
+                    )
+                    .expected("rows of two numbers, e.g. [[0.0, 0.0], [1.0, 1.0]]")),
             })
             .collect()
     }
 
-    fn catchment(&mut self, rc: &RawCatchment, span: &std::ops::Range<usize>, ctx: &str, p2_in: Option<f64>) -> R<Catchment> {
+    fn catchment(
+        &mut self,
+        rc: &RawCatchment,
+        span: &std::ops::Range<usize>,
+        ctx: &str,
+        p2_in: Option<f64>,
+    ) -> R<Catchment> {
         let mut covers = Vec::new();
         for (i, cv) in rc.cover.iter().enumerate() {
             let c = cv.get_ref();
             let cctx = format!("{ctx}, cover {}", i + 1);
-            let area = self.positive(self.req(&c.area, &cv.span(), &cctx, "area", "\"3.0 ac\"")?, Quantity::Area, &format!("{cctx}, area"))?;
+            let area = self.positive(
+                self.req(&c.area, &cv.span(), &cctx, "area", "\"3.0 ac\"")?,
+                Quantity::Area,
+                &format!("{cctx}, area"),
+            )?;
             let (cn, label, pervious) = match (&c.cn, &c.land) {
-                (Some(_), Some(l)) => return Err(self.err(&l.span(), &format!("{cctx}, land"), "a cover takes either `cn` or `land` + `soil`, not both").expected("one of them")),
+                (Some(_), Some(l)) => {
+                    return Err(self
+                        .err(
+                            &l.span(),
+                            &format!("{cctx}, land"),
+                            "a cover takes either `cn` or `land` + `soil`, not both",
+                        )
+                        .expected("one of them"));
+                }
                 (Some(cn), None) => {
                     let v = self.cn(cn, &format!("{cctx}, cn"))?;
-                    (v, c.note.clone().unwrap_or_else(|| "CN given".into()), v < 98.0)
+                    (
+                        v,
+                        c.note.clone().unwrap_or_else(|| "CN given".into()),
+                        v < 98.0,
+                    )
                 }
                 (None, Some(l)) => {
-                    let soil_raw = self.req(&c.soil, &cv.span(), &cctx, "soil", "\"A\", \"B\", \"C\" or \"D\"")?;
+                    let soil_raw = self.req(
+                        &c.soil,
+                        &cv.span(),
+                        &cctx,
+                        "soil",
+                        "\"A\", \"B\", \"C\" or \"D\"",
+                    )?;
                     let soil = cover::Soil::parse(soil_raw.get_ref()).ok_or_else(|| {
-                        self.err(&soil_raw.span(), &format!("{cctx}, soil"), format!("unknown hydrologic soil group \"{}\"", soil_raw.get_ref())).expected("A, B, C or D")
+                        self.err(
+                            &soil_raw.span(),
+                            &format!("{cctx}, soil"),
+                            format!("unknown hydrologic soil group \"{}\"", soil_raw.get_ref()),
+                        )
+                        .expected("A, B, C or D")
                     })?;
-                    let cn = cover::lookup(l.get_ref(), soil).map_err(|e| self.err(&l.span(), &format!("{cctx}, land"), e.to_string()).expected("a land-cover key listed in the README (\"Land covers\")"))?;
-                    let pervious = cover::COVERS.iter().find(|e| e.key == l.get_ref()).map(|e| e.pervious).unwrap_or(true);
-                    (cn, format!("{} ({})", l.get_ref(), soil_raw.get_ref().to_ascii_uppercase()), pervious)
+                    let cn = cover::lookup(l.get_ref(), soil).map_err(|e| {
+                        self.err(&l.span(), &format!("{cctx}, land"), e.to_string())
+                            .expected("a land-cover key listed in the README (\"Land covers\")")
+                    })?;
+                    let pervious = cover::COVERS
+                        .iter()
+                        .find(|e| e.key == l.get_ref())
+                        .map(|e| e.pervious)
+                        .unwrap_or(true);
+                    (
+                        cn,
+                        format!(
+                            "{} ({})",
+                            l.get_ref(),
+                            soil_raw.get_ref().to_ascii_uppercase()
+                        ),
+                        pervious,
+                    )
                 }
-                (None, None) => return Err(self.err(&cv.span(), &cctx, "a cover needs `cn`, or `land` and `soil`").expected("cn = 98, or land = \"open-space-good\" with soil = \"C\"")),
+                (None, None) => {
+                    return Err(self
+                        .err(
+                            &cv.span(),
+                            &cctx,
+                            "a cover needs `cn`, or `land` and `soil`",
+                        )
+                        .expected("cn = 98, or land = \"open-space-good\" with soil = \"C\""));
+                }
             };
             if pervious && cn > 98.0 {
                 self.warnings.push(Warning::CnHighPervious {
@@ -747,13 +1162,32 @@ impl<'a> Builder<'a> {
                 v
             }
             None if !covers.is_empty() => cover_total,
-            None => return Err(self.err(span, ctx, "missing required key `area`").expected("`area = \"6.2 ac\"`")),
+            None => {
+                return Err(self
+                    .err(span, ctx, "missing required key `area`")
+                    .expected("`area = \"6.2 ac\"`"));
+            }
         };
         let cn = match (&rc.cn, covers.is_empty()) {
             (Some(cn), true) => self.cn(cn, &format!("{ctx}, cn"))?,
-            (Some(cn), false) => return Err(self.err(&cn.span(), &format!("{ctx}, cn"), "give either `cn` or a list of [[catchment.cover]], not both").expected("one of them")),
-            (None, false) => runoff::composite_cn(&covers.iter().map(|c| (c.cn, c.area_ac)).collect::<Vec<_>>()).unwrap_or(0.0),
-            (None, true) => return Err(self.err(span, ctx, "missing `cn` (or a list of [[catchment.cover]])").expected("`cn = 84` or [[catchment.cover]] tables")),
+            (Some(cn), false) => {
+                return Err(self
+                    .err(
+                        &cn.span(),
+                        &format!("{ctx}, cn"),
+                        "give either `cn` or a list of [[catchment.cover]], not both",
+                    )
+                    .expected("one of them"));
+            }
+            (None, false) => {
+                runoff::composite_cn(&covers.iter().map(|c| (c.cn, c.area_ac)).collect::<Vec<_>>())
+                    .unwrap_or(0.0)
+            }
+            (None, true) => {
+                return Err(self
+                    .err(span, ctx, "missing `cn` (or a list of [[catchment.cover]])")
+                    .expected("`cn = 84` or [[catchment.cover]] tables"));
+            }
         };
         if cn < 30.0 {
             self.warnings.push(Warning::CnLow {
@@ -765,20 +1199,56 @@ impl<'a> Builder<'a> {
             None => Lambda::Standard,
             Some(l) if (*l.get_ref() - 0.2).abs() < 1e-12 => Lambda::Standard,
             Some(l) if (*l.get_ref() - 0.05).abs() < 1e-12 => Lambda::Reduced,
-            Some(l) => return Err(self.err(&l.span(), &format!("{ctx}, lambda"), format!("lambda = {} is not supported", l.get_ref())).expected("0.2 (TR-55) or 0.05 (Hawkins et al. 2002)")),
+            Some(l) => {
+                return Err(self
+                    .err(
+                        &l.span(),
+                        &format!("{ctx}, lambda"),
+                        format!("lambda = {} is not supported", l.get_ref()),
+                    )
+                    .expected("0.2 (TR-55) or 0.05 (Hawkins et al. 2002)"));
+            }
         };
         let mut segments = Vec::new();
         for (i, f) in rc.flow.iter().enumerate() {
-            segments.push(self.segment(f, &format!("{ctx}, flow segment {}", i + 1), p2_in, rc.name.get_ref(), i + 1)?);
+            segments.push(self.segment(
+                f,
+                &format!("{ctx}, flow segment {}", i + 1),
+                p2_in,
+                rc.name.get_ref(),
+                i + 1,
+            )?);
         }
         let tc_h = match (&rc.tc, segments.is_empty()) {
             (Some(t), true) => self.positive(t, Quantity::Time, &format!("{ctx}, tc"))?,
-            (Some(t), false) => return Err(self.err(&t.span(), &format!("{ctx}, tc"), "give either `tc` or a flow path of [[catchment.flow]], not both").expected("one of them")),
+            (Some(t), false) => {
+                return Err(self
+                    .err(
+                        &t.span(),
+                        &format!("{ctx}, tc"),
+                        "give either `tc` or a flow path of [[catchment.flow]], not both",
+                    )
+                    .expected("one of them"));
+            }
             (None, false) => timing::time_of_concentration_h(&segments, p2_in.unwrap_or(1.0)),
-            (None, true) => return Err(self.err(span, ctx, "missing `tc` (or a flow path of [[catchment.flow]])").expected("`tc = \"12 min\"` or [[catchment.flow]] segments")),
+            (None, true) => {
+                return Err(self
+                    .err(
+                        span,
+                        ctx,
+                        "missing `tc` (or a flow path of [[catchment.flow]])",
+                    )
+                    .expected("`tc = \"12 min\"` or [[catchment.flow]] segments"));
+            }
         };
         if !(tc_h > 0.0 && tc_h.is_finite()) {
-            return Err(self.err(span, ctx, format!("the time of concentration works out to {tc_h} h")).expected("a positive, finite Tc"));
+            return Err(self
+                .err(
+                    span,
+                    ctx,
+                    format!("the time of concentration works out to {tc_h} h"),
+                )
+                .expected("a positive, finite Tc"));
         }
         if tc_h < 0.1 {
             self.warnings.push(Warning::TcShort {
@@ -792,7 +1262,12 @@ impl<'a> Builder<'a> {
         };
         let shape = Shape::for_prf(prf).ok_or_else(|| {
             let span = rc.prf.as_ref().map(|p| p.span()).unwrap_or(span.clone());
-            self.err(&span, &format!("{ctx}, prf"), format!("no unit-hydrograph shape has a peak rate factor of {prf}")).expected("a peak rate factor between 1 and 640 (484 is the NRCS standard)")
+            self.err(
+                &span,
+                &format!("{ctx}, prf"),
+                format!("no unit-hydrograph shape has a peak rate factor of {prf}"),
+            )
+            .expected("a peak rate factor between 1 and 640 (484 is the NRCS standard)")
         })?;
         Ok(Catchment {
             area_ac,
@@ -812,20 +1287,48 @@ impl<'a> Builder<'a> {
         if v > 0.0 && v <= 100.0 {
             Ok(v)
         } else {
-            Err(self.err(&cn.span(), ctx, format!("CN {v} is outside (0, 100]")).expected("a curve number above 0 and at most 100"))
+            Err(self
+                .err(&cn.span(), ctx, format!("CN {v} is outside (0, 100]"))
+                .expected("a curve number above 0 and at most 100"))
         }
     }
 
-    fn segment(&mut self, f: &Spanned<RawFlow>, ctx: &str, p2_in: Option<f64>, catchment: &str, index: usize) -> R<Segment> {
+    fn segment(
+        &mut self,
+        f: &Spanned<RawFlow>,
+        ctx: &str,
+        p2_in: Option<f64>,
+        catchment: &str,
+        index: usize,
+    ) -> R<Segment> {
         let rf = f.get_ref();
-        let kind = self.req(&rf.kind, &f.span(), ctx, "kind", "\"sheet\", \"shallow\" or \"channel\"")?;
-        let length_ft = self.positive(self.req(&rf.length, &f.span(), ctx, "length", "\"100 ft\"")?, Quantity::Length, &format!("{ctx}, length"))?;
+        let kind = self.req(
+            &rf.kind,
+            &f.span(),
+            ctx,
+            "kind",
+            "\"sheet\", \"shallow\" or \"channel\"",
+        )?;
+        let length_ft = self.positive(
+            self.req(&rf.length, &f.span(), ctx, "length", "\"100 ft\"")?,
+            Quantity::Length,
+            &format!("{ctx}, length"),
+        )?;
         let slope_raw = self.req(&rf.slope, &f.span(), ctx, "slope", "0.02 or \"2 %\"")?;
         let slope = self.positive(slope_raw, Quantity::Slope, &format!("{ctx}, slope"))?;
-        let unused = |this: &Self, present: bool, key: &str, sp: Option<std::ops::Range<usize>>, k: &str| -> R<()> {
+        let unused = |this: &Self,
+                      present: bool,
+                      key: &str,
+                      sp: Option<std::ops::Range<usize>>,
+                      k: &str|
+         -> R<()> {
             if present {
                 return Err(this
-                    .err(&sp.unwrap_or(f.span()), &format!("{ctx}, {key}"), format!("`{key}` is not used by {k} flow"))
+                    .err(
+                        &sp.unwrap_or(f.span()),
+                        &format!("{ctx}, {key}"),
+                        format!("`{key}` is not used by {k} flow"),
+                    )
                     .expected(match k {
                         "sheet" => "kind, n, length, slope",
                         "shallow" => "kind, surface, length, slope",
@@ -836,15 +1339,42 @@ impl<'a> Builder<'a> {
         };
         match kind.get_ref().as_str() {
             "sheet" => {
-                unused(self, rf.surface.is_some(), "surface", rf.surface.as_ref().map(|s| s.span()), "sheet")?;
-                unused(self, rf.section.is_some(), "section", rf.section.as_ref().map(|s| s.span()), "sheet")?;
-                let n_raw = self.req(&rf.n, &f.span(), ctx, "n", "0.15 or a surface name such as \"grass-short-prairie\"")?;
+                unused(
+                    self,
+                    rf.surface.is_some(),
+                    "surface",
+                    rf.surface.as_ref().map(|s| s.span()),
+                    "sheet",
+                )?;
+                unused(
+                    self,
+                    rf.section.is_some(),
+                    "section",
+                    rf.section.as_ref().map(|s| s.span()),
+                    "sheet",
+                )?;
+                let n_raw = self.req(
+                    &rf.n,
+                    &f.span(),
+                    ctx,
+                    "n",
+                    "0.15 or a surface name such as \"grass-short-prairie\"",
+                )?;
                 let n = match n_raw.get_ref() {
                     NumOrName::Num(x) => *x,
-                    NumOrName::Name(s) => cover::sheet_flow_n(s).map_err(|e| self.err(&n_raw.span(), &format!("{ctx}, n"), e.to_string()).expected("a Manning n, or a sheet-flow surface listed in the README"))?,
+                    NumOrName::Name(s) => cover::sheet_flow_n(s).map_err(|e| {
+                        self.err(&n_raw.span(), &format!("{ctx}, n"), e.to_string())
+                            .expected("a Manning n, or a sheet-flow surface listed in the README")
+                    })?,
                 };
                 if !(n > 0.0 && n.is_finite()) {
-                    return Err(self.err(&n_raw.span(), &format!("{ctx}, n"), format!("Manning n must be positive, got {n}")).expected("a positive roughness such as 0.15"));
+                    return Err(self
+                        .err(
+                            &n_raw.span(),
+                            &format!("{ctx}, n"),
+                            format!("Manning n must be positive, got {n}"),
+                        )
+                        .expected("a positive roughness such as 0.15"));
                 }
                 if p2_in.is_none() {
                     return Err(self.err(&kind.span(), ctx, "sheet flow needs the 2-year 24-hour rainfall `p2` at the top of the scenario").expected("`p2 = \"3.3 in\"` at the top level").hint("TR-55 eq. 3-3 uses P2"));
@@ -854,16 +1384,45 @@ impl<'a> Builder<'a> {
                     self.warnings.push(Warning::SheetFlowLong {
                         catchment: catchment.to_string(),
                         segment: index,
-                        length: format!("{:.0} {}", length_ft * f_out, Quantity::Length.output_unit(self.units)),
+                        length: format!(
+                            "{:.0} {}",
+                            length_ft * f_out,
+                            Quantity::Length.output_unit(self.units)
+                        ),
                     });
                 }
-                Ok(Segment::Sheet { n, length_ft, slope })
+                Ok(Segment::Sheet {
+                    n,
+                    length_ft,
+                    slope,
+                })
             }
             "shallow" => {
-                unused(self, rf.n.is_some(), "n", rf.n.as_ref().map(|s| s.span()), "shallow")?;
-                unused(self, rf.section.is_some(), "section", rf.section.as_ref().map(|s| s.span()), "shallow")?;
-                let s = self.req(&rf.surface, &f.span(), ctx, "surface", "\"paved\" or \"unpaved\"")?;
-                let k = cover::shallow_velocity_coefficient(s.get_ref()).map_err(|e| self.err(&s.span(), &format!("{ctx}, surface"), e.to_string()).expected("\"paved\" or \"unpaved\""))?;
+                unused(
+                    self,
+                    rf.n.is_some(),
+                    "n",
+                    rf.n.as_ref().map(|s| s.span()),
+                    "shallow",
+                )?;
+                unused(
+                    self,
+                    rf.section.is_some(),
+                    "section",
+                    rf.section.as_ref().map(|s| s.span()),
+                    "shallow",
+                )?;
+                let s = self.req(
+                    &rf.surface,
+                    &f.span(),
+                    ctx,
+                    "surface",
+                    "\"paved\" or \"unpaved\"",
+                )?;
+                let k = cover::shallow_velocity_coefficient(s.get_ref()).map_err(|e| {
+                    self.err(&s.span(), &format!("{ctx}, surface"), e.to_string())
+                        .expected("\"paved\" or \"unpaved\"")
+                })?;
                 Ok(Segment::Shallow {
                     k_fps: k,
                     surface: s.get_ref().clone(),
@@ -872,23 +1431,64 @@ impl<'a> Builder<'a> {
                 })
             }
             "channel" => {
-                unused(self, rf.surface.is_some(), "surface", rf.surface.as_ref().map(|s| s.span()), "channel")?;
+                unused(
+                    self,
+                    rf.surface.is_some(),
+                    "surface",
+                    rf.surface.as_ref().map(|s| s.span()),
+                    "channel",
+                )?;
                 let n_raw = self.req(&rf.n, &f.span(), ctx, "n", "0.030")?;
                 let n = match n_raw.get_ref() {
                     NumOrName::Num(x) if *x > 0.0 && x.is_finite() => *x,
-                    NumOrName::Num(x) => return Err(self.err(&n_raw.span(), &format!("{ctx}, n"), format!("Manning n must be positive, got {x}")).expected("a positive roughness such as 0.030")),
-                    NumOrName::Name(s) => return Err(self.err(&n_raw.span(), &format!("{ctx}, n"), format!("channel flow needs Manning n as a number, not \"{s}\"")).expected("a number such as 0.030")),
+                    NumOrName::Num(x) => {
+                        return Err(self
+                            .err(
+                                &n_raw.span(),
+                                &format!("{ctx}, n"),
+                                format!("Manning n must be positive, got {x}"),
+                            )
+                            .expected("a positive roughness such as 0.030"));
+                    }
+                    NumOrName::Name(s) => {
+                        return Err(self
+                            .err(
+                                &n_raw.span(),
+                                &format!("{ctx}, n"),
+                                format!("channel flow needs Manning n as a number, not \"{s}\""),
+                            )
+                            .expected("a number such as 0.030"));
+                    }
                 };
-                let sec_raw = self.req(&rf.section, &f.span(), ctx, "section", "{ shape = \"trapezoid\", bottom = \"3 ft\", side = 2.0, depth = \"1.5 ft\" }")?;
+                let sec_raw = self.req(
+                    &rf.section,
+                    &f.span(),
+                    ctx,
+                    "section",
+                    "{ shape = \"trapezoid\", bottom = \"3 ft\", side = 2.0, depth = \"1.5 ft\" }",
+                )?;
                 let section = self.section(sec_raw, &format!("{ctx}, section"))?;
-                Ok(Segment::Channel { n, length_ft, slope, section })
+                Ok(Segment::Channel {
+                    n,
+                    length_ft,
+                    slope,
+                    section,
+                })
             }
             other => {
-                let e = self.err(&kind.span(), &format!("{ctx}, kind"), format!("unknown flow kind \"{other}\"")).expected("\"sheet\", \"shallow\" or \"channel\"");
-                Err(match cover::nearest(other, ["sheet", "shallow", "channel"]) {
-                    Some(h) => e.hint(format!("did you mean \"{h}\"?")),
-                    None => e,
-                })
+                let e = self
+                    .err(
+                        &kind.span(),
+                        &format!("{ctx}, kind"),
+                        format!("unknown flow kind \"{other}\""),
+                    )
+                    .expected("\"sheet\", \"shallow\" or \"channel\"");
+                Err(
+                    match cover::nearest(other, ["sheet", "shallow", "channel"]) {
+                        Some(h) => e.hint(format!("did you mean \"{h}\"?")),
+                        None => e,
+                    },
+                )
             }
         }
     }
@@ -898,15 +1498,29 @@ impl<'a> Builder<'a> {
         let shape = r.shape.as_ref().map(|x| x.get_ref().to_ascii_lowercase());
         match shape.as_deref() {
             Some("trapezoid") | Some("rectangle") => {
-                let bottom_ft = self.qty(self.req(&r.bottom, &s.span(), ctx, "bottom", "\"3 ft\"")?, Quantity::Length, &format!("{ctx}, bottom"))?;
+                let bottom_ft = self.qty(
+                    self.req(&r.bottom, &s.span(), ctx, "bottom", "\"3 ft\"")?,
+                    Quantity::Length,
+                    &format!("{ctx}, bottom"),
+                )?;
                 let side = match &r.side {
                     Some(v) => self.num(v, &format!("{ctx}, side"))?,
                     None if shape.as_deref() == Some("rectangle") => 0.0,
-                    None => return Err(self.err(&s.span(), ctx, "missing required key `side`").expected("side slope, horizontal per vertical, e.g. side = 2.0")),
+                    None => {
+                        return Err(self
+                            .err(&s.span(), ctx, "missing required key `side`")
+                            .expected("side slope, horizontal per vertical, e.g. side = 2.0"));
+                    }
                 };
-                let depth_ft = self.positive(self.req(&r.depth, &s.span(), ctx, "depth", "\"1.5 ft\"")?, Quantity::Length, &format!("{ctx}, depth"))?;
+                let depth_ft = self.positive(
+                    self.req(&r.depth, &s.span(), ctx, "depth", "\"1.5 ft\"")?,
+                    Quantity::Length,
+                    &format!("{ctx}, depth"),
+                )?;
                 if bottom_ft < 0.0 || side < 0.0 || (bottom_ft == 0.0 && side == 0.0) {
-                    return Err(self.err(&s.span(), ctx, "the section has no width").expected("a bottom width >= 0 and a side slope >= 0, not both zero"));
+                    return Err(self
+                        .err(&s.span(), ctx, "the section has no width")
+                        .expected("a bottom width >= 0 and a side slope >= 0, not both zero"));
                 }
                 Ok(Section::Trapezoid {
                     bottom_ft,
@@ -915,12 +1529,24 @@ impl<'a> Builder<'a> {
                 })
             }
             Some("pipe") => {
-                let d = self.positive(self.req(&r.diameter, &s.span(), ctx, "diameter", "\"18 in\"")?, Quantity::Length, &format!("{ctx}, diameter"))?;
+                let d = self.positive(
+                    self.req(&r.diameter, &s.span(), ctx, "diameter", "\"18 in\"")?,
+                    Quantity::Length,
+                    &format!("{ctx}, diameter"),
+                )?;
                 Ok(Section::PipeFull { diameter_ft: d })
             }
             None => {
-                let a = self.positive(self.req(&r.flow_area, &s.span(), ctx, "flow_area", "4.5 (ft2 or m2)")?, Quantity::SectionArea, &format!("{ctx}, flow_area"))?;
-                let p = self.positive(self.req(&r.perimeter, &s.span(), ctx, "perimeter", "6.1 (ft or m)")?, Quantity::Length, &format!("{ctx}, perimeter"))?;
+                let a = self.positive(
+                    self.req(&r.flow_area, &s.span(), ctx, "flow_area", "4.5 (ft2 or m2)")?,
+                    Quantity::SectionArea,
+                    &format!("{ctx}, flow_area"),
+                )?;
+                let p = self.positive(
+                    self.req(&r.perimeter, &s.span(), ctx, "perimeter", "6.1 (ft or m)")?,
+                    Quantity::Length,
+                    &format!("{ctx}, perimeter"),
+                )?;
                 Ok(Section::Given {
                     area_ft2: a,
                     perimeter_ft: p,
@@ -938,21 +1564,56 @@ impl<'a> Builder<'a> {
     }
 
     fn table_rows(&self, t: &Spanned<Rows>, ctx: &str, fx: f64, fy: f64) -> R<Vec<(f64, f64)>> {
-        Ok(self.pairs(t, ctx)?.into_iter().map(|(a, b)| (a * fx, b * fy)).collect())
+        Ok(self
+            .pairs(t, ctx)?
+            .into_iter()
+            .map(|(a, b)| (a * fx, b * fy))
+            .collect())
     }
 
-    fn pond(&mut self, rp: &RawPond, span: &std::ops::Range<usize>, ctx: &str) -> R<(Pond, Vec<SizedDim>)> {
+    fn pond(
+        &mut self,
+        rp: &RawPond,
+        span: &std::ops::Range<usize>,
+        ctx: &str,
+    ) -> R<(Pond, Vec<SizedDim>)> {
         let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
         let af = Quantity::SectionArea.bare_factor(self.units).unwrap_or(1.0);
         let vf = Quantity::Volume.bare_factor(self.units).unwrap_or(1.0);
-        let given = [rp.stage_area.is_some(), rp.stage_volume.is_some(), rp.basin.is_some()].iter().filter(|x| **x).count();
+        let given = [
+            rp.stage_area.is_some(),
+            rp.stage_volume.is_some(),
+            rp.basin.is_some(),
+        ]
+        .iter()
+        .filter(|x| **x)
+        .count();
         if given != 1 {
-            return Err(self.err(span, ctx, if given == 0 { "the pond has no storage" } else { "the pond's storage is given more than once" }).expected("exactly one of `stage_area`, `stage_volume` or `basin`"));
+            return Err(self
+                .err(
+                    span,
+                    ctx,
+                    if given == 0 {
+                        "the pond has no storage"
+                    } else {
+                        "the pond's storage is given more than once"
+                    },
+                )
+                .expected("exactly one of `stage_area`, `stage_volume` or `basin`"));
         }
         let (storage, storage_kind, table_top) = if let Some(t) = &rp.stage_area {
             let rows = self.table_rows(t, &format!("{ctx}, stage_area"), lf, af)?;
-            let s = StageStorage::from_stage_area(&rows).map_err(|e| self.err(&t.span(), &format!("{ctx}, stage_area"), e.to_string()).expected("[stage, area] rows with stages increasing and areas >= 0, not decreasing"))?;
-            (s, "stage-area (conic frustum between rows)", rows.last().map(|r| r.0))
+            let s = StageStorage::from_stage_area(&rows).map_err(|e| {
+                self.err(&t.span(), &format!("{ctx}, stage_area"), e.to_string())
+                    .expected(
+                        "[stage, area] rows with stages increasing and areas >= 0, not decreasing",
+                    )
+            })?;
+            (
+                s,
+                "stage-area (conic frustum between rows)",
+                rows.last().map(|r| r.0),
+            )
         } else if let Some(t) = &rp.stage_volume {
             let rows = self.table_rows(t, &format!("{ctx}, stage_volume"), lf, vf)?;
             let s = StageStorage::from_stage_volume(&rows).map_err(|e| self.err(&t.span(), &format!("{ctx}, stage_volume"), e.to_string()).expected("[stage, volume] rows with stages increasing and volumes >= 0, not decreasing"))?;
@@ -960,18 +1621,51 @@ impl<'a> Builder<'a> {
         } else if let Some(b) = &rp.basin {
             let rb = b.get_ref();
             let bctx = format!("{ctx}, basin");
-            let bottom = self.elevation(self.req(&rb.bottom, &b.span(), &bctx, "bottom", "100.0 (elevation)")?, &format!("{bctx}, bottom"))?;
-            let length = self.positive(self.req(&rb.length, &b.span(), &bctx, "length", "\"80 ft\"")?, Quantity::Length, &format!("{bctx}, length"))?;
-            let width = self.positive(self.req(&rb.width, &b.span(), &bctx, "width", "\"40 ft\"")?, Quantity::Length, &format!("{bctx}, width"))?;
-            let side_raw = self.req(&rb.side, &b.span(), &bctx, "side", "3.0 (horizontal per vertical)")?;
+            let bottom = self.elevation(
+                self.req(&rb.bottom, &b.span(), &bctx, "bottom", "100.0 (elevation)")?,
+                &format!("{bctx}, bottom"),
+            )?;
+            let length = self.positive(
+                self.req(&rb.length, &b.span(), &bctx, "length", "\"80 ft\"")?,
+                Quantity::Length,
+                &format!("{bctx}, length"),
+            )?;
+            let width = self.positive(
+                self.req(&rb.width, &b.span(), &bctx, "width", "\"40 ft\"")?,
+                Quantity::Length,
+                &format!("{bctx}, width"),
+            )?;
+            let side_raw = self.req(
+                &rb.side,
+                &b.span(),
+                &bctx,
+                "side",
+                "3.0 (horizontal per vertical)",
+            )?;
             let side = self.num(side_raw, &format!("{bctx}, side"))?;
             if side < 0.0 {
-                return Err(self.err(&side_raw.span(), &format!("{bctx}, side"), "the side slope cannot be negative").expected("0 or more (horizontal per vertical)"));
+                return Err(self
+                    .err(
+                        &side_raw.span(),
+                        &format!("{bctx}, side"),
+                        "the side slope cannot be negative",
+                    )
+                    .expected("0 or more (horizontal per vertical)"));
             }
-            let depth = self.positive(self.req(&rb.depth, &b.span(), &bctx, "depth", "\"6 ft\"")?, Quantity::Length, &format!("{bctx}, depth"))?;
-            let rows = crate::pond::basin_stage_area(bottom, length, width, side, depth).map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
-            let s = StageStorage::from_stage_area(&rows).map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
-            (s, "basin geometry (stage-area, conic frustum)", Some(bottom + depth))
+            let depth = self.positive(
+                self.req(&rb.depth, &b.span(), &bctx, "depth", "\"6 ft\"")?,
+                Quantity::Length,
+                &format!("{bctx}, depth"),
+            )?;
+            let rows = crate::pond::basin_stage_area(bottom, length, width, side, depth)
+                .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
+            let s = StageStorage::from_stage_area(&rows)
+                .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
+            (
+                s,
+                "basin geometry (stage-area, conic frustum)",
+                Some(bottom + depth),
+            )
         } else {
             unreachable_storage()?
         };
@@ -980,7 +1674,13 @@ impl<'a> Builder<'a> {
             Some(t) => {
                 let v = self.elevation(t, &format!("{ctx}, top"))?;
                 if v <= bottom {
-                    return Err(self.err(&t.span(), &format!("{ctx}, top"), "the top of embankment is not above the pond bottom").expected(format!("an elevation above {}", bottom / lf)));
+                    return Err(self
+                        .err(
+                            &t.span(),
+                            &format!("{ctx}, top"),
+                            "the top of embankment is not above the pond bottom",
+                        )
+                        .expected(format!("an elevation above {}", bottom / lf)));
                 }
                 Some(v)
             }
@@ -990,22 +1690,42 @@ impl<'a> Builder<'a> {
         let mut outlets = Vec::new();
         let mut sized = Vec::new();
         if rp.outlet.is_empty() {
-            return Err(self.err(span, ctx, "the pond has no outlet").expected("at least one [[pond.outlet]]"));
+            return Err(self
+                .err(span, ctx, "the pond has no outlet")
+                .expected("at least one [[pond.outlet]]"));
         }
         for (i, o) in rp.outlet.iter().enumerate() {
             let (outlet, s) = self.outlet(o, &format!("{ctx}, outlet {}", i + 1), i)?;
             let low = outlet.lowest_ft();
             if low < bottom - 1e-9 {
-                let sp = o.get_ref().invert.as_ref().or(o.get_ref().crest.as_ref()).map(|x| x.span()).unwrap_or(o.span());
-                return Err(self.err(&sp, &format!("{ctx}, outlet {}", i + 1), format!("the outlet is below the pond bottom ({} < {})", low / lf, bottom / lf)).expected("an invert or crest at or above the lowest stage of the storage table"));
+                let sp = o
+                    .get_ref()
+                    .invert
+                    .as_ref()
+                    .or(o.get_ref().crest.as_ref())
+                    .map(|x| x.span())
+                    .unwrap_or(o.span());
+                return Err(self
+                    .err(
+                        &sp,
+                        &format!("{ctx}, outlet {}", i + 1),
+                        format!(
+                            "the outlet is below the pond bottom ({} < {})",
+                            low / lf,
+                            bottom / lf
+                        ),
+                    )
+                    .expected(
+                        "an invert or crest at or above the lowest stage of the storage table",
+                    ));
             }
-            if let Some(top) = top_ft {
-                if low >= top {
-                    self.warnings.push(Warning::OutletAboveTop {
-                        pond: rp.name.get_ref().clone(),
-                        outlet: i,
-                    });
-                }
+            if let Some(top) = top_ft
+                && low >= top
+            {
+                self.warnings.push(Warning::OutletAboveTop {
+                    pond: rp.name.get_ref().clone(),
+                    outlet: i,
+                });
             }
             outlets.push(outlet);
             sized.extend(s);
@@ -1014,7 +1734,13 @@ impl<'a> Builder<'a> {
             Some(s) => {
                 let v = self.elevation(s, &format!("{ctx}, start"))?;
                 if v < bottom - 1e-9 {
-                    return Err(self.err(&s.span(), &format!("{ctx}, start"), "the starting water surface is below the pond bottom").expected(format!("an elevation of at least {}", bottom / lf)));
+                    return Err(self
+                        .err(
+                            &s.span(),
+                            &format!("{ctx}, start"),
+                            "the starting water surface is below the pond bottom",
+                        )
+                        .expected(format!("an elevation of at least {}", bottom / lf)));
                 }
                 Some(v)
             }
@@ -1030,9 +1756,25 @@ impl<'a> Builder<'a> {
         let min_freeboard_ft = match &rp.min_freeboard {
             Some(v) => {
                 if top_ft.is_none() {
-                    return Err(self.err(&v.span(), &format!("{ctx}, min_freeboard"), "freeboard needs a top of embankment").expected("`top = ...` on the pond"));
+                    return Err(self
+                        .err(
+                            &v.span(),
+                            &format!("{ctx}, min_freeboard"),
+                            "freeboard needs a top of embankment",
+                        )
+                        .expected("`top = ...` on the pond"));
                 }
-                Some(self.qty(v, Quantity::Length, &format!("{ctx}, min_freeboard"))?)
+                let f = self.qty(v, Quantity::Length, &format!("{ctx}, min_freeboard"))?;
+                if f < 0.0 {
+                    return Err(self
+                        .err(
+                            &v.span(),
+                            &format!("{ctx}, min_freeboard"),
+                            format!("a freeboard of {} is negative", show(v.get_ref())),
+                        )
+                        .expected("a freeboard of zero or more, such as \"1 ft\""));
+                }
+                Some(f)
             }
             None => None,
         };
@@ -1062,29 +1804,61 @@ impl<'a> Builder<'a> {
 
     /// A length or elevation that may be a sizing range; returns the value
     /// to start from (the smallest opening) and the range, if any.
-    fn dim(&self, v: &Spanned<RawValue>, ctx: &str, q: Quantity, elevation: bool, positive: bool) -> R<(f64, Option<(f64, f64)>)> {
+    fn dim(
+        &self,
+        v: &Spanned<RawValue>,
+        ctx: &str,
+        q: Quantity,
+        elevation: bool,
+        positive: bool,
+    ) -> R<(f64, Option<(f64, f64)>)> {
         if let RawValue::Range(r) = v.get_ref() {
             let one = |x: &RawValue| self.qty(&Spanned::new(v.span(), x.clone()), q, ctx);
             let (a, b) = (one(&r.0)?, one(&r.1)?);
             if a > b {
-                return Err(self.err(&v.span(), ctx, format!("the range has min > max ({} > {})", show(&r.0), show(&r.1))).expected("{ min = smaller, max = larger }"));
+                return Err(self
+                    .err(
+                        &v.span(),
+                        ctx,
+                        format!("the range has min > max ({} > {})", show(&r.0), show(&r.1)),
+                    )
+                    .expected("{ min = smaller, max = larger }"));
             }
             if positive && a <= 0.0 {
-                return Err(self.err(&v.span(), ctx, "the range's min must be positive").expected("a positive minimum"));
+                return Err(self
+                    .err(&v.span(), ctx, "the range's min must be positive")
+                    .expected("a positive minimum"));
             }
             let start = if elevation { b } else { a };
             return Ok((start, Some((a, b))));
         }
         let x = self.qty(v, q, ctx)?;
         if positive && x <= 0.0 {
-            return Err(self.err(&v.span(), ctx, format!("must be positive, got {}", show(v.get_ref()))).expected(format!("{} greater than zero", q.describe())));
+            return Err(self
+                .err(
+                    &v.span(),
+                    ctx,
+                    format!("must be positive, got {}", show(v.get_ref())),
+                )
+                .expected(format!("{} greater than zero", q.describe())));
         }
         Ok((x, None))
     }
 
-    fn outlet(&self, o: &Spanned<RawOutlet>, ctx: &str, index: usize) -> R<(Outlet, Vec<SizedDim>)> {
+    fn outlet(
+        &self,
+        o: &Spanned<RawOutlet>,
+        ctx: &str,
+        index: usize,
+    ) -> R<(Outlet, Vec<SizedDim>)> {
         let r = o.get_ref();
-        let kind_raw = self.req(&r.kind, &o.span(), ctx, "kind", "\"orifice\", \"weir\", \"spillway\", ...")?;
+        let kind_raw = self.req(
+            &r.kind,
+            &o.span(),
+            ctx,
+            "kind",
+            "\"orifice\", \"weir\", \"spillway\", ...",
+        )?;
         let kind = kind_raw.get_ref().to_ascii_lowercase();
         let cf = match self.units {
             UnitSystem::Us => 1.0,
@@ -1099,7 +1873,16 @@ impl<'a> Builder<'a> {
             "riser" => &["crest", "diameter", "coefficient", "cd"],
             "rating" => &["table"],
             other => {
-                let kinds = ["orifice", "rectangular-orifice", "weir", "v-notch", "spillway", "broad-crested-weir", "riser", "rating"];
+                let kinds = [
+                    "orifice",
+                    "rectangular-orifice",
+                    "weir",
+                    "v-notch",
+                    "spillway",
+                    "broad-crested-weir",
+                    "riser",
+                    "rating",
+                ];
                 let e = self
                     .err(&kind_raw.span(), &format!("{ctx}, kind"), format!("unknown outlet kind \"{other}\""))
                     .expected("orifice | rectangular-orifice | weir | v-notch | spillway | riser | rating");
@@ -1123,34 +1906,56 @@ impl<'a> Builder<'a> {
             ("table", r.table.as_ref().map(|x| x.span())),
         ];
         for (k, sp) in &present {
-            if let Some(sp) = sp {
-                if !allowed.contains(k) {
-                    return Err(self.err(sp, &format!("{ctx}, {k}"), format!("a {kind} outlet does not take `{k}`")).expected(format!("the keys of a {kind}: kind, {}", allowed.join(", "))));
-                }
+            if let Some(sp) = sp
+                && !allowed.contains(k)
+            {
+                return Err(self
+                    .err(
+                        sp,
+                        &format!("{ctx}, {k}"),
+                        format!("a {kind} outlet does not take `{k}`"),
+                    )
+                    .expected(format!(
+                        "the keys of a {kind}: kind, {}",
+                        allowed.join(", ")
+                    )));
             }
         }
         let mut sized = Vec::new();
-        let mut get = |field: SizedField, v: &Option<Spanned<RawValue>>, q: Quantity, what: &str| -> R<f64> {
-            let v = self.req(v, &o.span(), ctx, field.key(), what)?;
-            let (x, range) = self.dim(v, &format!("{ctx}, {}", field.key()), q, field.is_elevation(), !field.is_elevation())?;
-            if let Some((min, max)) = range {
-                sized.push(SizedDim {
-                    element: 0,
-                    outlet: index,
-                    field,
-                    min,
-                    max,
-                    span: v.span(),
-                });
-            }
-            Ok(x)
-        };
+        let mut get =
+            |field: SizedField, v: &Option<Spanned<RawValue>>, q: Quantity, what: &str| -> R<f64> {
+                let v = self.req(v, &o.span(), ctx, field.key(), what)?;
+                let (x, range) = self.dim(
+                    v,
+                    &format!("{ctx}, {}", field.key()),
+                    q,
+                    field.is_elevation(),
+                    !field.is_elevation(),
+                )?;
+                if let Some((min, max)) = range {
+                    sized.push(SizedDim {
+                        element: 0,
+                        outlet: index,
+                        field,
+                        min,
+                        max,
+                        span: v.span(),
+                    });
+                }
+                Ok(x)
+            };
         let coefficient = |default: f64| -> R<f64> {
             match &r.coefficient {
                 Some(c) => {
                     let v = self.num(c, &format!("{ctx}, coefficient"))?;
                     if v <= 0.0 {
-                        return Err(self.err(&c.span(), &format!("{ctx}, coefficient"), "the coefficient must be positive").expected("a positive weir coefficient"));
+                        return Err(self
+                            .err(
+                                &c.span(),
+                                &format!("{ctx}, coefficient"),
+                                "the coefficient must be positive",
+                            )
+                            .expected("a positive weir coefficient"));
                     }
                     Ok(v * cf)
                 }
@@ -1162,7 +1967,13 @@ impl<'a> Builder<'a> {
                 Some(c) => {
                     let v = self.num(c, &format!("{ctx}, cd"))?;
                     if v <= 0.0 || v > 1.0 {
-                        return Err(self.err(&c.span(), &format!("{ctx}, cd"), format!("cd = {v} is outside (0, 1]")).expected("a discharge coefficient such as 0.61"));
+                        return Err(self
+                            .err(
+                                &c.span(),
+                                &format!("{ctx}, cd"),
+                                format!("cd = {v} is outside (0, 1]"),
+                            )
+                            .expected("a discharge coefficient such as 0.61"));
                     }
                     Ok(v)
                 }
@@ -1172,19 +1983,37 @@ impl<'a> Builder<'a> {
         let outlet = match kind.as_str() {
             "orifice" => Outlet::CircularOrifice {
                 invert_ft: get(SizedField::Invert, &r.invert, Quantity::Length, "100.0")?,
-                diameter_ft: get(SizedField::Diameter, &r.diameter, Quantity::Length, "\"6 in\"")?,
+                diameter_ft: get(
+                    SizedField::Diameter,
+                    &r.diameter,
+                    Quantity::Length,
+                    "\"6 in\"",
+                )?,
                 cd: cd(0.61)?,
             },
             "rectangular-orifice" => Outlet::RectangularOrifice {
                 invert_ft: get(SizedField::Invert, &r.invert, Quantity::Length, "100.0")?,
                 width_ft: get(SizedField::Width, &r.width, Quantity::Length, "\"1 ft\"")?,
-                height_ft: get(SizedField::Height, &r.height, Quantity::Length, "\"0.5 ft\"")?,
+                height_ft: get(
+                    SizedField::Height,
+                    &r.height,
+                    Quantity::Length,
+                    "\"0.5 ft\"",
+                )?,
                 cd: cd(0.61)?,
             },
             "weir" => {
                 let contractions = match &r.contractions {
                     Some(c) if (0..=2).contains(c.get_ref()) => *c.get_ref() as u8,
-                    Some(c) => return Err(self.err(&c.span(), &format!("{ctx}, contractions"), format!("{} end contractions", c.get_ref())).expected("0, 1 or 2")),
+                    Some(c) => {
+                        return Err(self
+                            .err(
+                                &c.span(),
+                                &format!("{ctx}, contractions"),
+                                format!("{} end contractions", c.get_ref()),
+                            )
+                            .expected("0, 1 or 2"));
+                    }
                     None => 0,
                 };
                 Outlet::SharpCrestedWeir {
@@ -1201,16 +2030,44 @@ impl<'a> Builder<'a> {
                     RawValue::Num(x) => (*x, None),
                     RawValue::Range(rr) => match (&rr.0, &rr.1) {
                         (RawValue::Num(x), RawValue::Num(y)) => (*x, Some((*x, *y))),
-                        _ => return Err(self.err(&a.span(), &format!("{ctx}, angle"), "an angle is a bare number of degrees").expected("{ min = 20, max = 120 }")),
+                        _ => {
+                            return Err(self
+                                .err(
+                                    &a.span(),
+                                    &format!("{ctx}, angle"),
+                                    "an angle is a bare number of degrees",
+                                )
+                                .expected("{ min = 20, max = 120 }"));
+                        }
                     },
-                    RawValue::Text(t) => match t.trim().trim_end_matches("deg").trim_end_matches('°').trim().parse::<f64>() {
+                    RawValue::Text(t) => match t
+                        .trim()
+                        .trim_end_matches("deg")
+                        .trim_end_matches('°')
+                        .trim()
+                        .parse::<f64>()
+                    {
                         Ok(x) => (x, None),
-                        Err(_) => return Err(self.err(&a.span(), &format!("{ctx}, angle"), format!("cannot read \"{t}\" as an angle")).expected("degrees, e.g. 90")),
+                        Err(_) => {
+                            return Err(self
+                                .err(
+                                    &a.span(),
+                                    &format!("{ctx}, angle"),
+                                    format!("cannot read \"{t}\" as an angle"),
+                                )
+                                .expected("degrees, e.g. 90"));
+                        }
                     },
                 };
                 let bad = |x: f64| !(x > 0.0 && x < 180.0);
                 if bad(angle) || range.is_some_and(|(x, y)| bad(x) || bad(y) || x > y) {
-                    return Err(self.err(&a.span(), &format!("{ctx}, angle"), "the notch angle must lie between 0 and 180 degrees (and min <= max)").expected("degrees, e.g. 90"));
+                    return Err(self
+                        .err(
+                            &a.span(),
+                            &format!("{ctx}, angle"),
+                            "the notch angle must lie between 0 and 180 degrees (and min <= max)",
+                        )
+                        .expected("degrees, e.g. 90"));
                 }
                 if let Some((min, max)) = range {
                     sized.push(SizedDim {
@@ -1235,7 +2092,12 @@ impl<'a> Builder<'a> {
             },
             "riser" => Outlet::Riser {
                 crest_ft: get(SizedField::Crest, &r.crest, Quantity::Length, "104.0")?,
-                diameter_ft: get(SizedField::Diameter, &r.diameter, Quantity::Length, "\"4 ft\"")?,
+                diameter_ft: get(
+                    SizedField::Diameter,
+                    &r.diameter,
+                    Quantity::Length,
+                    "\"4 ft\"",
+                )?,
                 weir_coefficient: coefficient(3.33)?,
                 cd: cd(0.61)?,
             },
@@ -1245,18 +2107,38 @@ impl<'a> Builder<'a> {
                 let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
                 let rows = self.table_rows(t, &format!("{ctx}, table"), lf, ff)?;
                 if rows.len() < 2 {
-                    return Err(self.err(&t.span(), &format!("{ctx}, table"), "a rating needs at least two rows").expected("[[stage, flow], [stage, flow], ...]"));
+                    return Err(self
+                        .err(
+                            &t.span(),
+                            &format!("{ctx}, table"),
+                            "a rating needs at least two rows",
+                        )
+                        .expected("[[stage, flow], [stage, flow], ...]"));
                 }
                 for (i, w) in rows.windows(2).enumerate() {
                     if w[1].0 <= w[0].0 {
-                        return Err(self.err(&t.span(), &format!("{ctx}, table"), format!("row {}: the stage does not increase", i + 2)).expected("stages strictly increasing"));
+                        return Err(self
+                            .err(
+                                &t.span(),
+                                &format!("{ctx}, table"),
+                                format!("row {}: the stage does not increase", i + 2),
+                            )
+                            .expected("stages strictly increasing"));
                     }
                     if w[1].1 < w[0].1 {
-                        return Err(self.err(&t.span(), &format!("{ctx}, table"), format!("row {}: the flow decreases as the stage rises", i + 2)).expected("flows that never decrease"));
+                        return Err(self
+                            .err(
+                                &t.span(),
+                                &format!("{ctx}, table"),
+                                format!("row {}: the flow decreases as the stage rises", i + 2),
+                            )
+                            .expected("flows that never decrease"));
                     }
                 }
                 if rows.iter().any(|r| r.1 < 0.0) {
-                    return Err(self.err(&t.span(), &format!("{ctx}, table"), "a flow is negative").expected("flows of zero or more"));
+                    return Err(self
+                        .err(&t.span(), &format!("{ctx}, table"), "a flow is negative")
+                        .expected("flows of zero or more"));
                 }
                 Outlet::Rating { table: rows }
             }
@@ -1264,7 +2146,13 @@ impl<'a> Builder<'a> {
         Ok((outlet, sized))
     }
 
-    fn inflow(&mut self, ri: &RawInflow, span: &std::ops::Range<usize>, ctx: &str, storm: Option<usize>) -> R<Inflow> {
+    fn inflow(
+        &mut self,
+        ri: &RawInflow,
+        span: &std::ops::Range<usize>,
+        ctx: &str,
+        storm: Option<usize>,
+    ) -> R<Inflow> {
         let ff = Quantity::Flow.bare_factor(self.units).unwrap_or(1.0);
         let (rows, file) = match (&ri.table, &ri.file) {
             (Some(t), None) => (self.pairs(t, &format!("{ctx}, table"))?, None),
@@ -1272,19 +2160,54 @@ impl<'a> Builder<'a> {
                 let path = self.resolve(f, &format!("{ctx}, file"))?;
                 (read_hydrograph_csv(&path)?, Some(path))
             }
-            (Some(_), Some(f)) => return Err(self.err(&f.span(), &format!("{ctx}, file"), "give either `table` or `file`, not both").expected("one of them")),
-            (None, None) => return Err(self.err(span, ctx, "missing `table` (or `file`)").expected("table = [[0.0, 0.0], [0.5, 12.0], ...] in hours and flow")),
+            (Some(_), Some(f)) => {
+                return Err(self
+                    .err(
+                        &f.span(),
+                        &format!("{ctx}, file"),
+                        "give either `table` or `file`, not both",
+                    )
+                    .expected("one of them"));
+            }
+            (None, None) => {
+                return Err(self
+                    .err(span, ctx, "missing `table` (or `file`)")
+                    .expected("table = [[0.0, 0.0], [0.5, 12.0], ...] in hours and flow"));
+            }
         };
         if rows.is_empty() {
-            return Err(self.err(span, ctx, "the hydrograph has no rows").expected("[hours, flow] rows"));
+            return Err(self
+                .err(span, ctx, "the hydrograph has no rows")
+                .expected("[hours, flow] rows"));
         }
         for (i, w) in rows.windows(2).enumerate() {
             if w[1].0 <= w[0].0 {
-                return Err(self.err(span, ctx, format!("row {}: time {} h does not follow {} h", i + 2, w[1].0, w[0].0)).expected("times strictly increasing"));
+                return Err(self
+                    .err(
+                        span,
+                        ctx,
+                        format!(
+                            "row {}: time {} h does not follow {} h",
+                            i + 2,
+                            w[1].0,
+                            w[0].0
+                        ),
+                    )
+                    .expected("times strictly increasing"));
             }
         }
-        if let Some((i, _)) = rows.iter().enumerate().find(|(_, r)| r.1 < 0.0 || r.0 < 0.0) {
-            return Err(self.err(span, ctx, format!("row {} has a negative time or flow", i + 1)).expected("times and flows of zero or more"));
+        if let Some((i, _)) = rows
+            .iter()
+            .enumerate()
+            .find(|(_, r)| r.1 < 0.0 || r.0 < 0.0)
+        {
+            return Err(self
+                .err(
+                    span,
+                    ctx,
+                    format!("row {} has a negative time or flow", i + 1),
+                )
+                .expected("times and flows of zero or more"));
         }
         Ok(Inflow {
             table: rows.into_iter().map(|(t, q)| (t, q * ff)).collect(),
@@ -1298,7 +2221,10 @@ impl<'a> Builder<'a> {
         let name = rp.name.get_ref().trim().to_string();
         let ctx = format!("point \"{name}\"");
         let default = match &rp.limit {
-            Some(l) => (self.limit(l, &format!("{ctx}, limit"), conditions, storms)?, l.get_ref().clone()),
+            Some(l) => (
+                self.limit(l, &format!("{ctx}, limit"), conditions, storms)?,
+                l.get_ref().clone(),
+            ),
             None => (
                 Limit::Relative {
                     fraction: 1.0,
@@ -1313,13 +2239,26 @@ impl<'a> Builder<'a> {
         if let Some(map) = &rp.limits {
             for (storm, text) in map.get_ref() {
                 let Some(i) = storms.iter().position(|s| &s.name == storm) else {
-                    let e = self.err(&text.span(), &format!("{ctx}, limits"), format!("no storm is named \"{storm}\"")).expected("the name of a [[storm]]");
-                    return Err(match cover::nearest(storm, storms.iter().map(|s| s.name.as_str())) {
-                        Some(h) => e.hint(format!("did you mean \"{h}\"?")),
-                        None => e,
-                    });
+                    let e = self
+                        .err(
+                            &text.span(),
+                            &format!("{ctx}, limits"),
+                            format!("no storm is named \"{storm}\""),
+                        )
+                        .expected("the name of a [[storm]]");
+                    return Err(
+                        match cover::nearest(storm, storms.iter().map(|s| s.name.as_str())) {
+                            Some(h) => e.hint(format!("did you mean \"{h}\"?")),
+                            None => e,
+                        },
+                    );
                 };
-                limits[i] = self.limit(text, &format!("{ctx}, limits.\"{storm}\""), conditions, storms)?;
+                limits[i] = self.limit(
+                    text,
+                    &format!("{ctx}, limits.\"{storm}\""),
+                    conditions,
+                    storms,
+                )?;
                 limit_text[i] = text.get_ref().clone();
             }
         }
@@ -1335,7 +2274,13 @@ impl<'a> Builder<'a> {
         })
     }
 
-    fn limit(&self, l: &Spanned<String>, ctx: &str, conditions: &[String], storms: &[Storm]) -> R<Limit> {
+    fn limit(
+        &self,
+        l: &Spanned<String>,
+        ctx: &str,
+        conditions: &[String],
+        storms: &[Storm],
+    ) -> R<Limit> {
         let text = l.get_ref().trim();
         let bad = |msg: String| {
             self.err(&l.span(), ctx, msg)
@@ -1344,7 +2289,10 @@ impl<'a> Builder<'a> {
         if text.eq_ignore_ascii_case("none") {
             return Ok(Limit::None);
         }
-        let (fraction, rest) = if text.starts_with(|c: char| c.is_ascii_digit() || c == '.') {
+        let numeric = text
+            .trim_start_matches(['-', '+'])
+            .starts_with(|c: char| c.is_ascii_digit() || c == '.');
+        let (fraction, rest) = if numeric {
             let (v, unit) = units::split_number(text).map_err(|e| bad(e.to_string()))?;
             if let Some(r) = unit.strip_prefix('%') {
                 if v <= 0.0 {
@@ -1353,10 +2301,21 @@ impl<'a> Builder<'a> {
                 (v / 100.0, r.trim().to_string())
             } else if unit.contains('/') {
                 let q = units::parse_flow_per_area(text).map_err(|e| bad(e.to_string()))?;
+                if q < 0.0 {
+                    return Err(bad(format!(
+                        "a limit of {text} is negative and cannot be met"
+                    )));
+                }
                 // SI input: cfs per ac already; units parse handles l/s/ha etc.
                 return Ok(Limit::PerArea { cfs_per_ac: q });
             } else {
-                let q = units::parse_quantity(text, Quantity::Flow, self.units).map_err(|e| bad(e.to_string()))?;
+                let q = units::parse_quantity(text, Quantity::Flow, self.units)
+                    .map_err(|e| bad(e.to_string()))?;
+                if q < 0.0 {
+                    return Err(bad(format!(
+                        "a limit of {text} is negative and cannot be met"
+                    )));
+                }
                 return Ok(Limit::Absolute { flow_cfs: q });
             }
         } else {
@@ -1372,7 +2331,10 @@ impl<'a> Builder<'a> {
         }
         for (i, _) in rest.match_indices(' ') {
             let (c, s) = (rest[..i].trim(), rest[i..].trim());
-            if let (Some(ci), Some(si)) = (conditions.iter().position(|x| x == c), storms.iter().position(|x| x.name == s)) {
+            if let (Some(ci), Some(si)) = (
+                conditions.iter().position(|x| x == c),
+                storms.iter().position(|x| x.name == s),
+            ) {
                 return Ok(Limit::Relative {
                     fraction,
                     condition: ci,
@@ -1401,12 +2363,27 @@ impl<'a> Builder<'a> {
         let r = d.get_ref();
         let q = |s: &Spanned<String>, key: &str| -> R<(f64, f64)> {
             let t = s.get_ref().trim();
-            let bad = || self.err(&s.span(), &format!("{ctx}, {key}"), format!("cannot read \"{t}\" as a frequency flow")).expected("\"Q2\", \"10% Q2\", \"50% Q10\"");
+            let bad = || {
+                self.err(
+                    &s.span(),
+                    &format!("{ctx}, {key}"),
+                    format!("cannot read \"{t}\" as a frequency flow"),
+                )
+                .expected("\"Q2\", \"10% Q2\", \"50% Q10\"")
+            };
             let (frac, rest) = match t.split_once('%') {
-                Some((a, b)) => (a.trim().parse::<f64>().map_err(|_| bad())? / 100.0, b.trim()),
+                Some((a, b)) => (
+                    a.trim().parse::<f64>().map_err(|_| bad())? / 100.0,
+                    b.trim(),
+                ),
                 None => (1.0, t),
             };
-            let n: f64 = rest.strip_prefix(['Q', 'q']).ok_or_else(bad)?.trim().parse().map_err(|_| bad())?;
+            let n: f64 = rest
+                .strip_prefix(['Q', 'q'])
+                .ok_or_else(bad)?
+                .trim()
+                .parse()
+                .map_err(|_| bad())?;
             if !(frac > 0.0 && frac.is_finite() && n > 1.0 && n.is_finite()) {
                 return Err(bad());
             }
@@ -1418,7 +2395,13 @@ impl<'a> Builder<'a> {
             Some(t) => {
                 let v = self.qty(t, Quantity::Slope, &format!("{ctx}, tolerance"))?;
                 if v < 0.0 {
-                    return Err(self.err(&t.span(), &format!("{ctx}, tolerance"), "the tolerance cannot be negative").expected("a percentage such as \"10%\""));
+                    return Err(self
+                        .err(
+                            &t.span(),
+                            &format!("{ctx}, tolerance"),
+                            "the tolerance cannot be negative",
+                        )
+                        .expected("a percentage such as \"10%\""));
                 }
                 v
             }
@@ -1447,7 +2430,7 @@ impl<'a> Builder<'a> {
                     return Err(self
                         .err(&s.span(), &format!("{ctx}, step"), format!("the record would need {} steps, more than runnel's limit of {MAX_STEPS}", n as u64))
                         .expected("a coarser step")
-                        .hint(format!("use a step of at least {:.2} min", series.depth.len() as f64 * interval_h / MAX_STEPS as f64 * 60.0)));
+                        .hint(format!("use a step of at least {}", format_step_up(series.depth.len() as f64 * interval_h / MAX_STEPS as f64))));
                 }
                 v
             }
@@ -1462,7 +2445,15 @@ impl<'a> Builder<'a> {
                 let antecedent = match &rr.antecedent {
                     Some(a) if a.get_ref() == "amc" => true,
                     Some(a) if a.get_ref() == "none" => false,
-                    Some(a) => return Err(self.err(&a.span(), &format!("{ctx}, antecedent"), format!("unknown antecedent rule \"{}\"", a.get_ref())).expected("\"amc\" or \"none\"")),
+                    Some(a) => {
+                        return Err(self
+                            .err(
+                                &a.span(),
+                                &format!("{ctx}, antecedent"),
+                                format!("unknown antecedent rule \"{}\"", a.get_ref()),
+                            )
+                            .expected("\"amc\" or \"none\""));
+                    }
                     None => false,
                 };
                 let mut growing_months = [false; 12];
@@ -1470,7 +2461,13 @@ impl<'a> Builder<'a> {
                     Some(m) => {
                         for &x in m.get_ref() {
                             if !(1..=12).contains(&x) {
-                                return Err(self.err(&m.span(), &format!("{ctx}, growing_months"), format!("{x} is not a month")).expected("month numbers 1..12"));
+                                return Err(self
+                                    .err(
+                                        &m.span(),
+                                        &format!("{ctx}, growing_months"),
+                                        format!("{x} is not a month"),
+                                    )
+                                    .expected("month numbers 1..12"));
                             }
                             growing_months[(x - 1) as usize] = true;
                         }
@@ -1484,29 +2481,68 @@ impl<'a> Builder<'a> {
                 }
             }
             Some("continuous") => {
-                let p = self.req(&rr.pet, &r.span(), &ctx, "pet", "12 monthly values of depth per day")?;
+                let p = self.req(
+                    &rr.pet,
+                    &r.span(),
+                    &ctx,
+                    "pet",
+                    "12 monthly values of depth per day",
+                )?;
                 if p.get_ref().len() != 12 {
-                    return Err(self.err(&p.span(), &format!("{ctx}, pet"), format!("{} values given", p.get_ref().len())).expected("12 monthly values, January first"));
+                    return Err(self
+                        .err(
+                            &p.span(),
+                            &format!("{ctx}, pet"),
+                            format!("{} values given", p.get_ref().len()),
+                        )
+                        .expected("12 monthly values, January first"));
                 }
                 let mut pet = [0.0; 12];
                 for (i, v) in p.get_ref().iter().enumerate() {
-                    let x = self.qty(&Spanned::new(p.span(), v.clone()), Quantity::DepthPerDay, &format!("{ctx}, pet"))?;
+                    let x = self.qty(
+                        &Spanned::new(p.span(), v.clone()),
+                        Quantity::DepthPerDay,
+                        &format!("{ctx}, pet"),
+                    )?;
                     if x < 0.0 {
-                        return Err(self.err(&p.span(), &format!("{ctx}, pet"), format!("month {} is negative", i + 1)).expected("depths of zero or more"));
+                        return Err(self
+                            .err(
+                                &p.span(),
+                                &format!("{ctx}, pet"),
+                                format!("month {} is negative", i + 1),
+                            )
+                            .expected("depths of zero or more"));
                     }
                     pet[i] = x;
                 }
-                MoistureMode::Continuous { pet_in_per_day: pet }
+                let _ = MoistureMode::Continuous {
+                    pet_in_per_day: pet,
+                };
+                let span = rr.moisture.as_ref().map(|m| m.span()).unwrap_or(r.span());
+                return Err(self
+                    .err(&span, &format!("{ctx}, moisture"), crate::moisture::MoistureError::ContinuousUnavailable.to_string())
+                    .expected("moisture = \"event\"")
+                    .hint("no published soil-moisture-accounting formulation could be verified for this version; see the README, \"Long records\""));
             }
             Some(other) => {
                 let span = rr.moisture.as_ref().map(|m| m.span()).unwrap_or(r.span());
-                return Err(self.err(&span, &format!("{ctx}, moisture"), format!("unknown moisture accounting \"{other}\"")).expected("\"event\" or \"continuous\""));
+                return Err(self
+                    .err(
+                        &span,
+                        &format!("{ctx}, moisture"),
+                        format!("unknown moisture accounting \"{other}\""),
+                    )
+                    .expected("\"event\" or \"continuous\""));
             }
         };
         Ok(Record {
             name,
             path,
-            depth_in: series.depth.iter().map(|d| d * self.depth_factor()).collect(),
+            depth_in: series
+                .depth
+                .iter()
+                .map(|d| d * self.depth_factor())
+                .collect(),
             interval_h,
             step_h,
             start_s: series.start_s,
@@ -1536,11 +2572,17 @@ fn raw_to_span(raw: &RawScenario, i: usize) -> std::ops::Range<usize> {
     let nc = raw.catchment.len();
     let np = raw.pond.len();
     let to = if i < nc {
-        raw.catchment.get(i).and_then(|c| c.get_ref().to.as_ref().map(|t| t.span()))
+        raw.catchment
+            .get(i)
+            .and_then(|c| c.get_ref().to.as_ref().map(|t| t.span()))
     } else if i < nc + np {
-        raw.pond.get(i - nc).and_then(|c| c.get_ref().to.as_ref().map(|t| t.span()))
+        raw.pond
+            .get(i - nc)
+            .and_then(|c| c.get_ref().to.as_ref().map(|t| t.span()))
     } else {
-        raw.inflow.get(i - nc - np).and_then(|c| c.get_ref().to.as_ref().map(|t| t.span()))
+        raw.inflow
+            .get(i - nc - np)
+            .and_then(|c| c.get_ref().to.as_ref().map(|t| t.span()))
     };
     to.unwrap_or(0..0)
 }
@@ -1571,11 +2613,34 @@ fn show(v: &RawValue) -> String {
     }
 }
 
+/// A step in hours as text in seconds, minutes or hours, rounded up to
+/// three significant digits (for hints).
+fn format_step_up(h: f64) -> String {
+    let (v, unit) = if h < 1.0 / 60.0 {
+        (h * 3600.0, "s")
+    } else if h < 1.0 {
+        (h * 60.0, "min")
+    } else {
+        (h, "h")
+    };
+    if !(v.is_finite() && v > 0.0) {
+        return format!("{v} {unit}");
+    }
+    let mag = v.log10().floor();
+    let scale = 10f64.powf(mag - 2.0);
+    let up = (v / scale - 1e-9).ceil() * scale;
+    let decimals = (2.0 - mag).clamp(0.0, 12.0) as usize;
+    format!("{up:.decimals$} {unit}")
+}
+
 /// The contract's step rule: the largest of 1, 2, 3, 5, 6 minutes that is at
 /// most 0.133 Tc of the catchment with the smallest Tc (1 minute when none is).
 pub fn default_step_h(min_tc_h: f64) -> f64 {
     let limit_min = 0.133 * min_tc_h * 60.0;
-    let m = [6.0, 5.0, 3.0, 2.0, 1.0].into_iter().find(|&m| m <= limit_min + 1e-9).unwrap_or(1.0);
+    let m = [6.0, 5.0, 3.0, 2.0, 1.0]
+        .into_iter()
+        .find(|&m| m <= limit_min + 1e-9)
+        .unwrap_or(1.0);
     m / 60.0
 }
 
@@ -1588,17 +2653,31 @@ fn parse_bytes(s: &str) -> Option<u64> {
         "gb" | "gib" => 1024.0 * 1024.0 * 1024.0,
         _ => return None,
     };
-    (v > 0.0).then(|| (v * f) as u64)
+    (v > 0.0).then_some((v * f) as u64)
 }
 
 /// Reads a `time_h,flow` hydrograph CSV.
 fn read_hydrograph_csv(path: &Path) -> R<Vec<(f64, f64)>> {
-    let text = std::fs::read(path).map_err(|e| InputError::new(path, format!("cannot read: {e}")))?;
-    let mut rdr = csv::ReaderBuilder::new().trim(csv::Trim::All).from_reader(text.as_slice());
-    let headers = rdr.headers().map_err(|e| InputError::new(path, format!("bad header: {e}")).at_line(1))?.clone();
+    let text =
+        std::fs::read(path).map_err(|e| InputError::new(path, format!("cannot read: {e}")))?;
+    let mut rdr = csv::ReaderBuilder::new()
+        .trim(csv::Trim::All)
+        .from_reader(text.as_slice());
+    let headers = rdr
+        .headers()
+        .map_err(|e| InputError::new(path, format!("bad header: {e}")).at_line(1))?
+        .clone();
     let h: Vec<String> = headers.iter().map(|s| s.to_ascii_lowercase()).collect();
     if h.len() != 2 || h[0] != "time_h" || h[1] != "flow" {
-        return Err(InputError::new(path, format!("bad header \"{}\"", headers.iter().collect::<Vec<_>>().join(","))).at_line(1).expected("time_h,flow"));
+        return Err(InputError::new(
+            path,
+            format!(
+                "bad header \"{}\"",
+                headers.iter().collect::<Vec<_>>().join(",")
+            ),
+        )
+        .at_line(1)
+        .expected("time_h,flow"));
     }
     let mut out = Vec::new();
     for rec in rdr.records() {
@@ -1609,7 +2688,14 @@ fn read_hydrograph_csv(path: &Path) -> R<Vec<(f64, f64)>> {
         let line = rec.position().map(|p| p.line() as usize).unwrap_or(0);
         let num = |i: usize| -> R<f64> {
             let s = rec.get(i).unwrap_or("");
-            s.parse::<f64>().ok().filter(|v| v.is_finite()).ok_or_else(|| InputError::new(path, format!("\"{s}\" is not a number")).at_line(line).expected("time_h,flow rows of numbers"))
+            s.parse::<f64>()
+                .ok()
+                .filter(|v| v.is_finite())
+                .ok_or_else(|| {
+                    InputError::new(path, format!("\"{s}\" is not a number"))
+                        .at_line(line)
+                        .expected("time_h,flow rows of numbers")
+                })
         };
         out.push((num(0)?, num(1)?));
     }

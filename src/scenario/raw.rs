@@ -2,8 +2,8 @@
 //! Nothing here is validated beyond TOML types; `scenario::build` turns
 //! these into the checked model.
 
-use serde::de::{self, Deserializer, MapAccess, SeqAccess, Visitor};
 use serde::Deserialize;
+use serde::de::{self, Deserializer, MapAccess, SeqAccess, Visitor};
 use std::collections::BTreeMap;
 use std::fmt;
 use toml::Spanned;

@@ -1,0 +1,70 @@
+//! Helpers shared by the integration tests: run the binary, read results.
+#![allow(dead_code)]
+
+use std::path::{Path, PathBuf};
+use std::process::Output;
+
+/// Path of a file in tests/data.
+pub fn data(name: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/data")
+        .join(name)
+}
+
+/// Path of a file in examples/.
+pub fn example(name: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("examples")
+        .join(name)
+}
+
+/// Runs `runnel ARGS`.
+pub fn runnel(args: &[&str]) -> Output {
+    std::process::Command::new(env!("CARGO_BIN_EXE_runnel"))
+        .args(args)
+        .output()
+        .unwrap_or_else(|e| panic!("cannot start runnel: {e}"))
+}
+
+/// Runs a scenario into a fresh temporary folder; returns (exit code, summary, folder).
+pub fn run_scenario(path: &Path) -> (i32, serde_json::Value, tempfile::TempDir) {
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let out = dir.path().join("out");
+    let o = runnel(&[
+        "run",
+        &path.to_string_lossy(),
+        "--out",
+        &out.to_string_lossy(),
+    ]);
+    let code = o.status.code().unwrap_or(-1);
+    let text = std::fs::read_to_string(out.join("summary.json")).unwrap_or_else(|e| {
+        panic!(
+            "no summary.json (exit {code}): {e}\nstderr: {}",
+            String::from_utf8_lossy(&o.stderr)
+        )
+    });
+    let v: serde_json::Value = serde_json::from_str(&text).unwrap_or_else(|e| panic!("{e}"));
+    (code, v, dir)
+}
+
+/// The event row for a storm, condition and element.
+pub fn event<'a>(
+    s: &'a serde_json::Value,
+    storm: &str,
+    condition: &str,
+    element: &str,
+) -> &'a serde_json::Value {
+    s["events"]
+        .as_array()
+        .and_then(|a| {
+            a.iter().find(|e| {
+                e["storm"] == storm && e["condition"] == condition && e["element"] == element
+            })
+        })
+        .unwrap_or_else(|| panic!("no event {storm}/{condition}/{element}"))
+}
+
+/// A number from JSON.
+pub fn num(v: &serde_json::Value) -> f64 {
+    v.as_f64().unwrap_or_else(|| panic!("not a number: {v}"))
+}
