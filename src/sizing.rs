@@ -245,39 +245,40 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
         let mut moved = false;
         for (k, d) in dims.iter().enumerate() {
             let before = value_at(d, openings[k]);
+            // The limits this dimension must keep: those met at its smallest
+            // opening (a limit already broken there cannot be mended by
+            // closing it further; a later dimension or sweep has to).
+            set(study, d, value_at(d, 0.0));
+            let (_, at_min) = feasible(study, d.element);
+            let keep: Vec<bool> = at_min.iter().map(Check::pass).collect();
+            let keeps = |study: &Study| -> bool {
+                let (_, ch) = feasible(study, d.element);
+                ch.len() == keep.len() && ch.iter().zip(&keep).all(|(c, k)| !k || c.pass())
+            };
             set(study, d, value_at(d, 1.0));
-            let (ok_max, _) = feasible(study, d.element);
-            let o = if ok_max {
+            let o = if keeps(study) {
                 1.0
             } else {
-                set(study, d, value_at(d, 0.0));
-                let (ok_min, _) = feasible(study, d.element);
-                if !ok_min {
-                    infeasible[k] = true;
-                    0.0
-                } else {
-                    infeasible[k] = false;
-                    let (mut lo, mut hi) = (0.0f64, 1.0f64);
-                    for _ in 0..60 {
-                        let (vl, vh) = (value_at(d, lo), value_at(d, hi));
-                        let tol = if d.field.is_elevation() {
-                            (0.001 * (d.max - d.min)).max(1e-4)
-                        } else {
-                            0.0005 * vl.abs().max(1e-6)
-                        };
-                        if (vh - vl).abs() <= tol {
-                            break;
-                        }
-                        let mid = 0.5 * (lo + hi);
-                        set(study, d, value_at(d, mid));
-                        if feasible(study, d.element).0 {
-                            lo = mid;
-                        } else {
-                            hi = mid;
-                        }
+                let (mut lo, mut hi) = (0.0f64, 1.0f64);
+                for _ in 0..60 {
+                    let (vl, vh) = (value_at(d, lo), value_at(d, hi));
+                    let tol = if d.field.is_elevation() {
+                        (0.001 * (d.max - d.min)).max(1e-4)
+                    } else {
+                        0.0005 * vl.abs().max(1e-6)
+                    };
+                    if (vh - vl).abs() <= tol {
+                        break;
                     }
-                    lo
+                    let mid = 0.5 * (lo + hi);
+                    set(study, d, value_at(d, mid));
+                    if keeps(study) {
+                        lo = mid;
+                    } else {
+                        hi = mid;
+                    }
                 }
+                lo
             };
             openings[k] = o;
             set(study, d, value_at(d, o));
@@ -296,11 +297,18 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
             continue;
         }
         let mut tries = 0;
-        while !feasible(study, d.element).0 && openings[k] > 0.0 && tries < 200 {
+        while !feasible(study, d.element).0 && openings[k] > 0.0 && tries < 400 {
             openings[k] = (openings[k] - 0.0025).max(0.0);
             set(study, d, value_at(d, openings[k]));
             tries += 1;
         }
+    }
+    // A dimension is infeasible only if the final values still break a limit
+    // with it at its smallest opening.
+    let final_ok = dims.iter().all(|d| feasible(study, d.element).0);
+    let any_closed = openings.iter().any(|o| *o <= 0.0);
+    for (k, flag) in infeasible.iter_mut().enumerate() {
+        *flag = !final_ok && (openings[k] <= 0.0 || !any_closed);
     }
     // Report: governing check = the one that fails first beyond the value.
     let mut outputs = Vec::new();

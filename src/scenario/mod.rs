@@ -44,14 +44,17 @@ pub fn load(path: &Path) -> Result<Study, Error> {
         source,
     })?;
     let text = String::from_utf8(bytes).map_err(|e| {
+        let at = e.utf8_error().valid_up_to();
+        let before = std::str::from_utf8(e.as_bytes().get(..at).unwrap_or_default()).unwrap_or("");
+        let line = before.matches('\n').count() + 1;
+        let column = before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1;
         InputError::new(
             path,
-            format!(
-                "the file is not UTF-8 text (byte {})",
-                e.utf8_error().valid_up_to()
-            ),
+            format!("the file is not UTF-8 text (byte {at} cannot be read)"),
         )
+        .at(line, column)
         .expected("a TOML scenario in UTF-8")
+        .hint("save the file as UTF-8 in your editor")
     })?;
     let sha = hex(&Sha256::digest(text.as_bytes()));
     let src = SourceText::new(path, text);
@@ -117,6 +120,15 @@ fn toml_error(src: &SourceText, e: &toml::de::Error) -> InputError {
         err.message = format!("missing required key `{word}`");
         err = err.expected(format!("`{word} = ...` in this table"));
     } else if msg.contains("invalid type") {
+        // Serde names Rust types; say what they are in the scenario's words.
+        for (rust, words) in [
+            ("expected f64", "expected a number"),
+            ("expected i64", "expected a whole number"),
+            ("expected a sequence", "expected a list [ ... ]"),
+            ("expected a boolean", "expected true or false"),
+        ] {
+            err.message = err.message.replace(rust, words);
+        }
         err = err.expected(
             "a value of the type shown in the scenario format (README, \"Scenario format\")",
         );
@@ -605,9 +617,21 @@ impl<'a> Builder<'a> {
         }
 
         // Conditions that never reach a point are an error.
+        if elements.is_empty() {
+            return Err(self
+                .src
+                .error("the scenario has no [[catchment]], [[pond]] or [[inflow]]")
+                .expected("at least one catchment that drains to a [[point]]"));
+        }
         for (c, cname) in conditions.iter().enumerate() {
             if !elements.iter().any(|e| e.conditions[c]) {
-                let span = raw.baseline.as_ref().map(|b| b.span()).unwrap_or(0..0);
+                let Some(span) = raw.baseline.as_ref().map(|b| b.span()) else {
+                    return Err(self
+                        .src
+                        .error(format!("no element belongs to the baseline condition \"{cname}\", so it never reaches a point"))
+                        .expected("elements with `condition = \"existing\"` (or no `condition`)")
+                        .hint("name the baseline with `baseline = \"...\"` at the top of the scenario"));
+                };
                 return Err(self
                     .err(&span, "baseline", format!("condition \"{cname}\" has no catchment, pond or inflow, so it never reaches a point"))
                     .expected("at least one element in each condition")
@@ -668,14 +692,17 @@ impl<'a> Builder<'a> {
             let n = ((s.rain_end_h() + 7.0 * 24.0) / step_h).ceil();
             if n > MAX_STEPS as f64 {
                 let least = format_step_up((s.rain_end_h() + 7.0 * 24.0) / MAX_STEPS as f64);
-                let too_many = format!(
-                    "storm \"{}\" would need {n:.0} steps at a step of {}, more than runnel's limit of {MAX_STEPS}",
-                    s.name,
-                    format_step_up(step_h)
-                );
                 return Err(match &raw.step {
                     Some(st) => self
-                        .err(&st.span(), "step", too_many)
+                        .err(
+                            &st.span(),
+                            "step",
+                            format!(
+                                "storm \"{}\" would need {n:.0} steps at a step of {}, more than runnel's limit of {MAX_STEPS}",
+                                s.name,
+                                format_step_up(step_h)
+                            ),
+                        )
                         .expected("a step that gives at most 50 million steps per storm")
                         .hint(format!(
                             "use a step of at least {least}; without `step` runnel picks {}",
@@ -683,7 +710,12 @@ impl<'a> Builder<'a> {
                         )),
                     None => {
                         let span = raw.storm.get(si).map(|x| x.span()).unwrap_or(0..0);
-                        self.err(&span, &format!("storm \"{}\"", s.name), too_many)
+                        let msg = format!(
+                            "the storm lasts {} h; with its 7-day tail it would need {n:.0} steps at the step of {}, more than runnel's limit of {MAX_STEPS}",
+                            units::sig(s.rain_end_h(), 4),
+                            format_step_up(step_h)
+                        );
+                        self.err(&span, &format!("storm \"{}\"", s.name), msg)
                             .expected(
                                 "a storm (and its tail of 7 days) that fits in 50 million steps",
                             )

@@ -1,0 +1,126 @@
+//! Outlet sizing through the binary.
+
+mod common;
+use common::*;
+
+#[test]
+fn orifice_sizing_recovers_the_closed_form_diameter() {
+    // Orifice Q = Cd (pi d^2/4) sqrt(2 g (h - d/2)) (Bedient, Huber & Vieux ch.4 form,
+    // above-crown rule of the contract); solved here by bisection for Q = 10 cfs, h = 6 ft.
+    let (g, h, q, cd) = (32.174f64, 6.0f64, 10.0f64, 0.61f64);
+    let f = |d: f64| cd * std::f64::consts::PI * d * d / 4.0 * (2.0 * g * (h - d / 2.0)).sqrt() - q;
+    let (mut lo, mut hi) = (0.01, 3.0);
+    for _ in 0..100 {
+        let m = 0.5 * (lo + hi);
+        if f(m) < 0.0 { lo = m } else { hi = m }
+    }
+    let (code, s, _d) = run_scenario(&data("sizing-closed-form.toml"));
+    assert_eq!(code, 0);
+    let d = num(&s["sized"][0]["value"]);
+    assert!((d - lo).abs() / lo < 0.005, "{d} vs {lo}");
+    assert_eq!(s["sized"][0]["governing_storm"], "dry");
+}
+
+/// Replaces the value of `key` (the first `key = "... ft"` line after the
+/// `n`-th outlet table) in a sized scenario by `factor` times itself.
+fn scale_value(text: &str, key: &str, nth: usize, factor: f64) -> String {
+    let mut seen = 0;
+    let mut out = Vec::new();
+    let mut done = false;
+    for line in text.lines() {
+        if line.trim() == "[[pond.outlet]]" {
+            seen += 1;
+        }
+        if !done && seen == nth + 1 && line.trim_start().starts_with(&format!("{key} =")) {
+            let v: f64 = line
+                .split('"')
+                .nth(1)
+                .and_then(|s| s.split_whitespace().next())
+                .and_then(|s| s.parse().ok())
+                .unwrap_or(f64::NAN);
+            out.push(format!("{key} = \"{} ft\"", v * factor));
+            done = true;
+        } else {
+            out.push(line.to_string());
+        }
+    }
+    assert!(done, "no {key} in outlet {nth}");
+    out.join("\n")
+}
+
+#[test]
+fn sized_values_are_maximal_and_the_sized_scenario_reproduces_the_run() {
+    let (code, s, dir) = run_scenario(&data("sizing-two-dims.toml"));
+    assert_eq!(code, 0, "{s}");
+    // Every limit holds at the values found.
+    assert!(
+        s["comparisons"]
+            .as_array()
+            .is_some_and(|a| a.iter().all(|c| c["pass"] == true))
+    );
+    let sized_path = dir.path().join("out/sized-scenario.toml");
+    let text = std::fs::read_to_string(&sized_path).unwrap_or_default();
+    assert!(!text.contains("min ="), "ranges remain");
+    // The sized scenario reproduces the same peaks.
+    let (code2, s2, _d2) = run_scenario(&sized_path);
+    assert_eq!(code2, 0);
+    for (a, b) in s["comparisons"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .zip(s2["comparisons"].as_array().into_iter().flatten())
+    {
+        assert!((num(&a["peak"]) - num(&b["peak"])).abs() <= 1e-6 * num(&a["peak"]).max(1.0));
+    }
+    // 2 % more of each size (unless at its range's max) breaks a limit.
+    for (k, z) in s["sized"].as_array().into_iter().flatten().enumerate() {
+        if (num(&z["value"]) - num(&z["max"])).abs() < 1e-9 {
+            continue;
+        }
+        let key = z["field"].as_str().unwrap_or("");
+        let bigger = scale_value(&text, key, k, 1.02);
+        let p = dir.path().join(format!("out/bigger-{k}.toml"));
+        std::fs::write(&p, bigger).unwrap_or_else(|e| panic!("{e}"));
+        let (code3, s3, _d3) = run_scenario(&p);
+        assert_eq!(
+            code3, 1,
+            "outlet {k} {key} 2 % larger still meets every limit"
+        );
+        assert!(
+            s3["comparisons"]
+                .as_array()
+                .is_some_and(|a| a.iter().any(|c| c["pass"] == false))
+        );
+    }
+}
+
+#[test]
+fn an_infeasible_range_names_the_pond_storm_and_point_and_exits_1() {
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let text = std::fs::read_to_string(data("sizing-two-dims.toml"))
+        .unwrap_or_default()
+        .replace("limit = \"existing\"", "limit = \"0.01 cfs\"")
+        .replace("limits = { \"2-yr\" = \"50% existing\" }", "");
+    let p = dir.path().join("tight.toml");
+    std::fs::write(&p, text).unwrap_or_else(|e| panic!("{e}"));
+    let out = dir.path().join("out");
+    let o = runnel(&["run", &p.to_string_lossy(), "--out", &out.to_string_lossy()]);
+    assert_eq!(o.status.code(), Some(1));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("pond \"basin\"")
+            && err.contains("even the smallest opening")
+            && err.contains("outfall")
+            && err.contains("2-yr"),
+        "{err}"
+    );
+    let s: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(out.join("summary.json")).unwrap_or_default(),
+    )
+    .unwrap_or_default();
+    assert!(
+        s["sized"]
+            .as_array()
+            .is_some_and(|a| a.iter().any(|z| z["feasible"] == false))
+    );
+}
