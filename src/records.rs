@@ -671,16 +671,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                 ));
             }
             let (y, mo, d) = gauge::civil_from_days(r.start_s.div_euclid(86_400));
-            let title = format!(
-                "{} at {} - record {}",
-                if study.title.is_empty() {
-                    "runnel"
-                } else {
-                    &study.title
-                },
-                pt.name,
-                r.name
-            );
+            let title = format!("{} - record \"{}\"", pt.name, r.name);
             let base = format!(
                 "record-{}-{}",
                 output::slug(&r.name),
