@@ -162,6 +162,14 @@ pub fn add_lagged(dst: &mut [f64], src: &[f64], lag_h: f64, step_h: f64) {
     let shift = lag_h / step_h;
     let whole = shift.floor() as usize;
     let frac = shift - whole as f64;
+    if frac == 0.0 {
+        if let Some(d) = dst.get_mut(whole..) {
+            for (d, s) in d.iter_mut().zip(src) {
+                *d += s;
+            }
+        }
+        return;
+    }
     for (k, d) in dst.iter_mut().enumerate() {
         if k < whole {
             continue;

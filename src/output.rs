@@ -5,6 +5,14 @@
 //! parent). Only when it is complete is the old folder moved aside, the new
 //! one moved into place, and the old one removed. Nothing is written
 //! anywhere else.
+//!
+//! A run killed part-way (SIGKILL, or SIGINT, which ends the process without
+//! running destructors) can leave its temporary folder behind, or, if it
+//! died between the two renames of the commit, the previous results under
+//! their moved-aside name. The next run that writes to the same target
+//! tidies up after runs that are no longer alive (where the system lets it
+//! tell, through `/proc`): it puts moved-aside results back if the target
+//! is missing and removes the leftovers.
 
 use crate::error::Error;
 use std::path::{Path, PathBuf};
@@ -17,13 +25,59 @@ pub struct Staging {
     done: bool,
 }
 
-fn sibling(target: &Path, tag: &str) -> PathBuf {
-    let name = target
+fn target_name(target: &Path) -> String {
+    target
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_else(|| "output".into());
+        .unwrap_or_else(|| "output".into())
+}
+
+fn sibling(target: &Path, tag: &str) -> PathBuf {
+    let name = target_name(target);
     let parent = target.parent().map(Path::to_path_buf).unwrap_or_default();
     parent.join(format!(".{name}.{tag}-{}", std::process::id()))
+}
+
+/// Whether process `pid` may still be running: known only where `/proc`
+/// lists processes; elsewhere every process is taken to be alive.
+fn may_be_alive(pid: u32) -> bool {
+    !Path::new("/proc/self").exists() || Path::new(&format!("/proc/{pid}")).exists()
+}
+
+/// Tidies up after earlier runs on `target` that were killed part-way:
+/// moved-aside previous results go back into place when the target is
+/// missing; their temporary and moved-aside folders are removed. Folders of
+/// runs that may still be alive are left alone. Problems are ignored (this
+/// is housekeeping; the run itself goes on).
+fn recover_interrupted(target: &Path, parent: &Path) {
+    let name = target_name(target);
+    let Ok(entries) = std::fs::read_dir(parent) else {
+        return;
+    };
+    let mut stale: Vec<(PathBuf, bool)> = Vec::new();
+    for entry in entries.flatten() {
+        let file_name = entry.file_name().to_string_lossy().into_owned();
+        let Some(rest) = file_name.strip_prefix(&format!(".{name}.")) else {
+            continue;
+        };
+        let (is_old, pid) = match (rest.strip_prefix("old-"), rest.strip_prefix("partial-")) {
+            (Some(pid), _) => (true, pid),
+            (_, Some(pid)) => (false, pid),
+            _ => continue,
+        };
+        match pid.parse::<u32>() {
+            Ok(pid) if pid != std::process::id() && !may_be_alive(pid) => {
+                stale.push((entry.path(), is_old));
+            }
+            _ => {}
+        }
+    }
+    for (path, is_old) in stale {
+        if is_old && !target.exists() && std::fs::rename(&path, target).is_ok() {
+            continue;
+        }
+        let _ = std::fs::remove_dir_all(&path);
+    }
 }
 
 impl Staging {
@@ -41,6 +95,7 @@ impl Staging {
             path: parent.clone(),
             message: e.to_string(),
         })?;
+        recover_interrupted(target, &parent);
         let temp = sibling(target, "partial");
         if temp.exists() {
             let _ = std::fs::remove_dir_all(&temp);
@@ -162,6 +217,39 @@ mod tests {
                 .map(|d| d.count())
                 .unwrap_or(0),
             1
+        );
+    }
+
+    #[test]
+    fn leftovers_of_a_killed_run_are_tidied_and_moved_aside_results_restored() {
+        // No process has an id this large (Linux caps ids at 2^22).
+        let dead = 99_999_999u32;
+        if !Path::new("/proc/self").exists() || Path::new(&format!("/proc/{dead}")).exists() {
+            return; // cannot tell dead processes from live ones here
+        }
+        let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+        let target = dir.path().join("out");
+        // Killed between the two renames of a commit: the results are aside.
+        let old = dir.path().join(format!(".out.old-{dead}"));
+        std::fs::create_dir(&old).unwrap_or_else(|e| panic!("{e}"));
+        std::fs::write(old.join("summary.json"), "previous").unwrap_or_else(|e| panic!("{e}"));
+        let partial = dir.path().join(format!(".out.partial-{dead}"));
+        std::fs::create_dir(&partial).unwrap_or_else(|e| panic!("{e}"));
+        // Another target's folder is not touched.
+        let other = dir.path().join(format!(".other.partial-{dead}"));
+        std::fs::create_dir(&other).unwrap_or_else(|e| panic!("{e}"));
+        let s = Staging::new(&target).unwrap_or_else(|e| panic!("{e}"));
+        assert_eq!(
+            std::fs::read_to_string(target.join("summary.json")).unwrap_or_default(),
+            "previous"
+        );
+        assert!(!old.exists() && !partial.exists() && other.exists());
+        drop(s);
+        assert_eq!(
+            std::fs::read_dir(dir.path())
+                .map(|d| d.count())
+                .unwrap_or(0),
+            2
         );
     }
 

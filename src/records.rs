@@ -137,6 +137,25 @@ pub struct RecordsResult {
     pub markdown: String,
     /// Plot data per record and point.
     pub plots: Vec<(String, String, PlotData)>,
+    /// Seconds spent per stage (excess, convolution, routing, statistics) and intervals simulated.
+    pub timings: Timings,
+}
+
+/// Seconds spent in each stage of the long records, for benchmarks.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct Timings {
+    /// Rain at the step.
+    pub rain_s: f64,
+    /// Excess rainfall (moisture accounting).
+    pub excess_s: f64,
+    /// Unit-hydrograph convolution and adding into targets.
+    pub convolution_s: f64,
+    /// Pond routing.
+    pub routing_s: f64,
+    /// Statistics (annual series, frequency, durations) and plot data.
+    pub statistics_s: f64,
+    /// Intervals simulated (summed over records).
+    pub intervals: usize,
 }
 
 /// Everything a record's point plots need.
@@ -148,6 +167,37 @@ pub struct PlotData {
     pub frequency: plot::FrequencyPlot,
     /// Overview of daily maxima.
     pub overview: plot::OverviewPlot,
+}
+
+/// Exceedance fractions of the plotted flow-duration curves (log-spaced).
+fn plot_exceedances() -> Vec<f64> {
+    (0..60)
+        .map(|k| 10f64.powf(-4.0 + 4.0 * k as f64 / 59.0))
+        .collect()
+}
+
+/// Reusable zeroed series buffers.
+#[derive(Default)]
+struct Pool(Vec<Vec<f64>>);
+
+impl Pool {
+    /// A zeroed buffer of `len` values.
+    fn take(&mut self, len: usize) -> Vec<f64> {
+        match self.0.pop() {
+            Some(mut v) => {
+                v.clear();
+                v.resize(len, 0.0);
+                v
+            }
+            None => vec![0.0; len],
+        }
+    }
+    /// Returns a buffer for reuse.
+    fn give(&mut self, v: Vec<f64>) {
+        if v.capacity() > 0 {
+            self.0.push(v);
+        }
+    }
 }
 
 /// Bytes a record run needs at its peak, for the memory cap.
@@ -195,6 +245,7 @@ fn entry(
     st: &Stats,
     rain_in: f64,
     o: &Out,
+    fdc: Option<Vec<f64>>,
 ) -> RecordOut {
     let Subject {
         cond,
@@ -235,7 +286,7 @@ fn entry(
             .collect(),
         None => Vec::new(),
     };
-    let fdc = stats::flow_duration(values, &EXCEEDANCES);
+    let fdc = fdc.unwrap_or_else(|| stats::flow_duration(values, &EXCEEDANCES));
     RecordOut {
         record: r.name.clone(),
         condition: cond.to_string(),
@@ -284,7 +335,24 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
         let step_h = r.step_h;
         let step_s = (step_h * 3600.0).round() as i64;
         let n = (r.depth_in.len() as f64 * r.interval_h / step_h).round() as usize;
-        let rain = crate::rainfall::resample_gauge(&r.depth_in, r.interval_h, step_h, n);
+        let record_clock = std::time::Instant::now();
+        let routing_before =
+            res.timings.routing_s + res.timings.excess_s + res.timings.convolution_s;
+        let clock = std::time::Instant::now();
+        // At the gauge interval the record's own depths are the rain per step.
+        let rain: std::borrow::Cow<'_, [f64]> =
+            if (step_h - r.interval_h).abs() < 1e-12 && r.depth_in.len() == n {
+                std::borrow::Cow::Borrowed(&r.depth_in)
+            } else {
+                std::borrow::Cow::Owned(crate::rainfall::resample_gauge(
+                    &r.depth_in,
+                    r.interval_h,
+                    step_h,
+                    n,
+                ))
+            };
+        res.timings.rain_s += clock.elapsed().as_secs_f64();
+        res.timings.intervals += n;
         let rain_total: f64 = rain.iter().sum();
         let len = n + 1;
         let month_of = |k: usize| gauge::month_of(r.start_s + k as i64 * step_s);
@@ -295,16 +363,22 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
             b
         });
         let mut point_series: Vec<Vec<Vec<f64>>> = Vec::new();
+        let mut point_curves: Vec<((usize, usize), Vec<(f64, f64)>)> = Vec::new();
+        // Buffers are reused between elements: fresh 80-MB vectors cost
+        // more in page faults than the arithmetic on them.
+        let mut pool = Pool::default();
+        let mut routed = pond::Routed::default();
         for (c, cname) in study.conditions.iter().enumerate() {
             let mut inputs: Vec<Vec<f64>> = vec![Vec::new(); study.elements.len()];
             let mut points: Vec<Vec<f64>> = vec![Vec::new(); study.points.len()];
             let mut excess = vec![0.0; n];
             for i in network::order(&study.elements, c) {
                 let e = &study.elements[i];
-                let mut out = vec![0.0; len];
+                let mut out = pool.take(len);
                 let mut rec_entry;
                 match &e.kind {
                     ElementKind::Catchment(cat) => {
+                        let clock = std::time::Instant::now();
                         let events = match &r.moisture {
                             MoistureMode::Event {
                                 dry_gap_h,
@@ -350,7 +424,10 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                             tp,
                             step_h,
                         );
+                        res.timings.excess_s += clock.elapsed().as_secs_f64();
+                        let clock = std::time::Instant::now();
                         unit_hydrograph::convolve_into(&excess, &uh, &mut out);
+                        res.timings.convolution_s += clock.elapsed().as_secs_f64();
                         let st = series_stats(&out, r.start_s, step_s, step_h);
                         rec_entry = entry(
                             r,
@@ -364,6 +441,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                             &st,
                             rain_total,
                             &o,
+                            None,
                         );
                         rec_entry.runoff_depth = o.depth(excess.iter().sum());
                         rec_entry.events = Some(events);
@@ -384,12 +462,13 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                             &st,
                             rain_total,
                             &o,
+                            None,
                         );
                     }
                     ElementKind::Pond(p) => {
                         let inflow = std::mem::take(&mut inputs[i]);
                         let inflow = if inflow.is_empty() {
-                            vec![0.0; len]
+                            pool.take(len)
                         } else {
                             inflow
                         };
@@ -423,12 +502,10 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         .map_err(|e| Error::Compute {
                             message: format!("pond \"{}\": {e}", study.elements[i].name),
                         })?;
-                        let mut routed = pond::Routed {
-                            outflow_cfs: Vec::new(),
-                            stage_ft: Vec::new(),
-                            storage_ft3: Vec::new(),
-                        };
+                        routed.outflow_cfs = std::mem::take(&mut out);
+                        let clock = std::time::Instant::now();
                         pond::route_into(&table, &inflow, start, &mut routed);
+                        res.timings.routing_s += clock.elapsed().as_secs_f64();
                         out = std::mem::take(&mut routed.outflow_cfs);
                         let st = series_stats(&out, r.start_s, step_s, step_h);
                         let area = crate::analysis::area_to_element_ac(study, i, c);
@@ -444,8 +521,18 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                             &st,
                             rain_total,
                             &o,
+                            None,
                         );
-                        let sd = stats::flow_duration(&routed.stage_ft, &EXCEEDANCES);
+                        // Depths above the bottom spread over many binary
+                        // exponents, which the duration ranking handles fastest.
+                        let bottom = p.storage.bottom_ft();
+                        let mut depth = pool.take(0);
+                        depth.extend(routed.stage_ft.iter().map(|h| (h - bottom).max(0.0)));
+                        let sd: Vec<f64> = stats::flow_duration(&depth, &EXCEEDANCES)
+                            .into_iter()
+                            .map(|d| d + bottom)
+                            .collect();
+                        pool.give(depth);
                         rec_entry.stage_duration = Some(
                             EXCEEDANCES
                                 .iter()
@@ -478,22 +565,28 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         } else {
                             0.0
                         });
+                        pool.give(inflow);
                     }
                 }
                 res.entries.push(rec_entry);
                 match e.to {
                     Target::Point(pi) => {
                         if points[pi].is_empty() {
-                            points[pi] = vec![0.0; len];
+                            points[pi] = pool.take(len);
                         }
                         network::add_lagged(&mut points[pi], &out, e.lag_h, step_h);
                     }
                     Target::Element(j) => {
                         if inputs[j].is_empty() {
-                            inputs[j] = vec![0.0; len];
+                            inputs[j] = pool.take(len);
                         }
                         network::add_lagged(&mut inputs[j], &out, e.lag_h, step_h);
                     }
+                }
+                if e.kind_word() == "pond" {
+                    routed.outflow_cfs = out;
+                } else {
+                    pool.give(out);
                 }
                 if let Some(b) = &bar {
                     b.inc(1);
@@ -501,10 +594,22 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
             }
             for (pi, p) in points.iter_mut().enumerate() {
                 if p.is_empty() {
-                    *p = vec![0.0; len];
+                    *p = pool.take(len);
                 }
                 let st = series_stats(p, r.start_s, step_s, step_h);
                 let area = crate::analysis::area_to_point_ac(study, pi, c);
+                // The table's fractions and the plot's, in one ranking.
+                let mut wanted = EXCEEDANCES.to_vec();
+                wanted.extend(plot_exceedances());
+                let mut all = stats::flow_duration(p, &wanted);
+                let curve = all.split_off(EXCEEDANCES.len());
+                point_curves.push((
+                    (c, pi),
+                    plot_exceedances()
+                        .into_iter()
+                        .zip(curve.into_iter().map(|v| o.flow(v)))
+                        .collect::<Vec<_>>(),
+                ));
                 res.entries.push(entry(
                     r,
                     Subject {
@@ -517,6 +622,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                     &st,
                     rain_total,
                     &o,
+                    Some(all),
                 ));
             }
             point_series.push(points);
@@ -614,16 +720,12 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
             let per_day = ((24.0 / step_h).round() as usize).max(1);
             for (c, cname) in study.conditions.iter().enumerate() {
                 let s = &point_series[c][pi];
-                let ex: Vec<f64> = (0..60)
-                    .map(|k| 10f64.powf(-4.0 + 4.0 * k as f64 / 59.0))
-                    .collect();
-                let q = stats::flow_duration(s, &ex);
-                curves.push((
-                    cname.clone(),
-                    ex.into_iter()
-                        .zip(q.into_iter().map(|v| o.flow(v)))
-                        .collect(),
-                ));
+                let curve = point_curves
+                    .iter()
+                    .find(|(k, _)| *k == (c, pi))
+                    .map(|(_, v)| v.clone())
+                    .unwrap_or_default();
+                curves.push((cname.clone(), curve));
                 if let Some(en) = res.entries.iter().find(|e| {
                     e.record == r.name
                         && e.kind == "point"
@@ -701,6 +803,10 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                 },
             ));
         }
+        let inner = res.timings.routing_s + res.timings.excess_s + res.timings.convolution_s
+            - routing_before;
+        res.timings.statistics_s +=
+            (record_clock.elapsed().as_secs_f64() - inner - res.timings.rain_s).max(0.0);
     }
     res.json = res
         .entries

@@ -297,6 +297,7 @@ fn try_case(c: &Case) -> Vec<String> {
         ));
     }
 
+    let before_check = snapshot(tmp.path());
     let o = runnel(&[Path::new("check"), &scenario], tmp.path());
     let check_err = String::from_utf8_lossy(&o.stderr).into_owned();
     if o.status.code() != Some(2) {
@@ -312,7 +313,7 @@ fn try_case(c: &Case) -> Vec<String> {
             c.name
         ));
     }
-    if snapshot(tmp.path()) != before {
+    if snapshot(tmp.path()) != before_check {
         problems.push(format!("{}: check wrote into the folder", c.name));
     }
     problems

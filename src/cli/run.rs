@@ -47,11 +47,16 @@ pub fn now_utc() -> String {
 /// Bad input (nothing is written), or results that cannot be written (the
 /// previous results stay in place).
 pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOutcome, Error> {
+    let t0 = std::time::Instant::now();
     let mut study = crate::scenario::load(scenario)?;
+    let t_load = t0.elapsed().as_secs_f64();
     check_memory(&study)?;
     let sized = crate::sizing::solve(&mut study)?;
     let a = analysis::analyse(&study);
+    let t1 = std::time::Instant::now();
     let rec = crate::records::run(&study, progress)?;
+    let t_records = t1.elapsed().as_secs_f64();
+    let t2 = std::time::Instant::now();
     let run_date = now_utc();
     let s = summary::build(
         &study,
@@ -84,6 +89,29 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         stage.write("sized-scenario.toml", text.as_bytes())?;
     }
     let out_dir = stage.commit()?;
+    if std::env::var_os("RUNNEL_TIMINGS").is_some() {
+        let t = &rec.timings;
+        let per = |s: f64| {
+            if s > 0.0 {
+                format!("{:.1} M intervals/s", t.intervals as f64 / s / 1e6)
+            } else {
+                "-".into()
+            }
+        };
+        eprintln!(
+            "timings: load and read {t_load:.3} s; records {t_records:.3} s (rain {:.3} s, excess {:.3} s = {}, convolution {:.3} s = {}, routing {:.3} s = {}, statistics {:.3} s = {}); report {:.3} s",
+            t.rain_s,
+            t.excess_s,
+            per(t.excess_s),
+            t.convolution_s,
+            per(t.convolution_s),
+            t.routing_s,
+            per(t.routing_s),
+            t.statistics_s,
+            per(t.statistics_s),
+            t2.elapsed().as_secs_f64()
+        );
+    }
     let o = summary::Out(study.units);
     let fu = o.unit(Quantity::Flow);
     let mut lines = Vec::new();
