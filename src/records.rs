@@ -169,6 +169,11 @@ pub struct PlotData {
     pub overview: plot::OverviewPlot,
 }
 
+/// (condition, point) indices.
+type PointKey = (usize, usize);
+/// (exceedance, flow) pairs of a plotted curve.
+type Curve = Vec<(f64, f64)>;
+
 /// Exceedance fractions of the plotted flow-duration curves (log-spaced).
 fn plot_exceedances() -> Vec<f64> {
     (0..60)
@@ -363,7 +368,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
             b
         });
         let mut point_series: Vec<Vec<Vec<f64>>> = Vec::new();
-        let mut point_curves: Vec<((usize, usize), Vec<(f64, f64)>)> = Vec::new();
+        let mut point_curves: Vec<(PointKey, Curve)> = Vec::new();
         // Buffers are reused between elements: fresh 80-MB vectors cost
         // more in page faults than the arithmetic on them.
         let mut pool = Pool::default();

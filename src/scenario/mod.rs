@@ -2739,6 +2739,15 @@ mod tests {
     use super::*;
 
     #[test]
+    fn step_hints_round_up_to_three_significant_digits_in_a_fitting_unit() {
+        // 192 h over 50 million steps is 0.013824 s.
+        assert_eq!(format_step_up(192.0 / 50_000_000.0), "0.0139 s");
+        assert_eq!(format_step_up(1.0 / 60.0), "1.00 min");
+        assert_eq!(format_step_up(0.1), "6.00 min");
+        assert_eq!(format_step_up(20_100.0), "20100 h");
+    }
+
+    #[test]
     fn default_step_follows_the_contract_rule() {
         // contract convention: largest of 1, 2, 3, 5, 6 min <= 0.133 Tc
         assert!((default_step_h(0.5) - 3.0 / 60.0).abs() < 1e-12); // 0.133*30 = 3.99 min
