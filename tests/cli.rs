@@ -22,7 +22,10 @@ fn shipped_example_runs_and_writes_every_output() {
         s["provenance"]["scenario_sha256"].as_str().map(str::len),
         Some(64)
     );
-    assert!(s["comparisons"].as_array().is_some_and(|a| a.len() == 4));
+    // Four design storms and one flow-duration check over the record.
+    let rows = s["comparisons"].as_array().cloned().unwrap_or_default();
+    assert_eq!(rows.iter().filter(|c| c.get("storm").is_some()).count(), 4);
+    assert_eq!(rows.iter().filter(|c| c.get("record").is_some()).count(), 1);
     assert!(
         s["caution"]
             .as_str()

@@ -143,7 +143,7 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
         t.push('\n');
         t.push_str(&est);
     }
-    let warnings = s.warnings.iter().map(|w| w.message.clone()).collect();
+    let warnings = s.warnings.to_vec();
     Ok((t, warnings))
 }
 

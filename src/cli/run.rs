@@ -141,7 +141,7 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     Ok(RunOutcome {
         out_dir,
         failed: !s.all_pass || a.any_failure(),
-        warnings: s.warnings.iter().map(|w| w.message.clone()).collect(),
+        warnings: s.warnings.to_vec(),
         lines,
     })
 }

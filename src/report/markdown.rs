@@ -412,7 +412,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
         let _ = writeln!(m, "None.\n");
     } else {
         for w in &s.warnings {
-            let _ = writeln!(m, "- {}", w.message);
+            let _ = writeln!(m, "- {}", w);
         }
         let _ = writeln!(m);
     }

@@ -290,8 +290,10 @@ pub struct Summary {
     pub sized: Vec<SizedOut>,
     /// Long-record results.
     pub records: Vec<serde_json::Value>,
-    /// Warnings.
-    pub warnings: Vec<WarningOut>,
+    /// Warning messages, as printed on stderr.
+    pub warnings: Vec<String>,
+    /// The same warnings with a short stable code each.
+    pub warning_details: Vec<WarningOut>,
     /// Provenance.
     pub provenance: ProvenanceOut,
     /// Whether every limit holds and no pond overtops.
@@ -534,7 +536,7 @@ pub fn build(
         })
         .collect();
 
-    let warnings = study
+    let warning_details: Vec<WarningOut> = study
         .warnings
         .iter()
         .chain(&a.warnings)
@@ -543,6 +545,7 @@ pub fn build(
             message: w.to_string(),
         })
         .collect();
+    let warnings = warning_details.iter().map(|w| w.message.clone()).collect();
 
     let all_pass = comparisons.iter().all(|c| c.pass)
         && !a.pond_checks.iter().any(|c| !c.pass)
@@ -569,6 +572,7 @@ pub fn build(
         sized,
         records,
         warnings,
+        warning_details,
         provenance: ProvenanceOut {
             program: "runnel",
             version: env!("CARGO_PKG_VERSION"),

@@ -2570,11 +2570,15 @@ impl<'a> Builder<'a> {
         Ok(Record {
             name,
             path,
-            depth_in: series
-                .depth
-                .iter()
-                .map(|d| d * self.depth_factor())
-                .collect(),
+            depth_in: {
+                // Converted in place: a long record's depths are large.
+                let f = self.depth_factor();
+                let mut d = series.depth;
+                if f != 1.0 {
+                    d.iter_mut().for_each(|x| *x *= f);
+                }
+                d
+            },
             interval_h,
             step_h,
             start_s: series.start_s,
