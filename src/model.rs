@@ -255,6 +255,21 @@ pub struct Pond {
     pub grid_step_ft: f64,
 }
 
+/// Weir coefficient of an overtopped embankment (broad-crested, US units;
+/// a common value, from memory).
+pub const EMBANKMENT_WEIR_COEFFICIENT: f64 = 2.6;
+
+impl Pond {
+    /// The embankment as a broad-crested weir above `top`, if there is a top.
+    pub fn embankment(&self) -> Option<crate::pond::Embankment> {
+        self.top_ft.map(|top| crate::pond::Embankment {
+            top_ft: top,
+            crest_length_ft: self.top_length_ft,
+            coefficient: EMBANKMENT_WEIR_COEFFICIENT,
+        })
+    }
+}
+
 /// A validated inflow hydrograph.
 #[derive(Debug, Clone)]
 pub struct Inflow {

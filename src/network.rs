@@ -452,19 +452,29 @@ pub fn pond_table(
     start_ft: f64,
 ) -> Result<PondTable, pond::PondError> {
     let inflow_volume: f64 = inflow.iter().sum::<f64>() * dt_s;
-    let max_storage = p.storage.volume_ft3(start_ft) + inflow_volume * 1.02 + 1.0;
-    let embankment = p.top_ft.map(|top| pond::Embankment {
-        top_ft: top,
-        crest_length_ft: p.top_length_ft,
-        coefficient: 2.6,
-    });
+    pond_table_to(
+        p,
+        dt_s,
+        p.storage.volume_ft3(start_ft) + inflow_volume * 1.02 + 1.0,
+    )
+}
+
+/// The stage-storage-discharge table of a pond up to a storage, ft3.
+///
+/// # Errors
+/// When the storage-indication relation is not strictly increasing.
+pub fn pond_table_to(
+    p: &Pond,
+    dt_s: f64,
+    max_storage_ft3: f64,
+) -> Result<PondTable, pond::PondError> {
     PondTable::build(
         &p.storage,
         &p.outlets,
-        embankment.as_ref(),
+        p.embankment().as_ref(),
         dt_s,
         p.grid_step_ft,
-        max_storage,
+        max_storage_ft3,
     )
 }
 

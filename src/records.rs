@@ -491,21 +491,10 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                             best = best.max(run);
                         }
                         let max_storage = p.storage.volume_ft3(start) + best * dt_s * 1.05 + 1.0;
-                        let embankment = p.top_ft.map(|top| pond::Embankment {
-                            top_ft: top,
-                            crest_length_ft: p.top_length_ft,
-                            coefficient: 2.6,
-                        });
-                        let table = pond::PondTable::build(
-                            &p.storage,
-                            &p.outlets,
-                            embankment.as_ref(),
-                            dt_s,
-                            p.grid_step_ft,
-                            max_storage,
-                        )
-                        .map_err(|e| Error::Compute {
-                            message: format!("pond \"{}\": {e}", study.elements[i].name),
+                        let table = network::pond_table_to(p, dt_s, max_storage).map_err(|e| {
+                            Error::Compute {
+                                message: format!("pond \"{}\": {e}", study.elements[i].name),
+                            }
                         })?;
                         routed.outflow_cfs = std::mem::take(&mut out);
                         let clock = std::time::Instant::now();

@@ -66,6 +66,14 @@ pub fn cn_from_retention_in(s_in: f64) -> f64 {
 /// # Formula
 /// TR-55 eq. 2-1 with `Ia = lambda * S`:
 /// `Q = (P - Ia)^2 / (P - Ia + S)` for `P > Ia`, else 0 (P, Q, S, Ia in in).
+///
+/// # Example
+/// TR-55 (1986) Table 2-1 (transcribed) gives 2.89 in for P = 5 in, CN 80:
+/// ```
+/// use runnel::runoff::{retention_in, runoff_depth_in};
+/// let q = runoff_depth_in(5.0, retention_in(80.0), 0.2);
+/// assert!((q - 2.89).abs() < 0.006);
+/// ```
 pub fn runoff_depth_in(p_in: f64, s_in: f64, ia_ratio: f64) -> f64 {
     let ia = ia_ratio * s_in;
     if p_in > ia {

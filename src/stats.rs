@@ -710,6 +710,10 @@ pub fn times_above_levels(flows: &[f64], levels: &[f64]) -> Vec<usize> {
         if q.is_nan() {
             continue;
         }
+        // Most flows of a long record lie at or below the lowest level.
+        if q <= padded[0] {
+            continue;
+        }
         // Number of padded levels strictly below q (padded is sorted).
         let mut lo = 0usize;
         let mut half = size;

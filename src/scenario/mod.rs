@@ -762,19 +762,7 @@ impl<'a> Builder<'a> {
                     .unwrap_or(0.0)
                     .max(p.top_ft.unwrap_or(f64::NEG_INFINITY));
                 let vmax = p.storage.volume_ft3(top + 0.5);
-                let emb = p.top_ft.map(|t| crate::pond::Embankment {
-                    top_ft: t,
-                    crest_length_ft: p.top_length_ft,
-                    coefficient: 2.6,
-                });
-                if let Err(err) = crate::pond::PondTable::build(
-                    &p.storage,
-                    &p.outlets,
-                    emb.as_ref(),
-                    step_h * 3600.0,
-                    p.grid_step_ft,
-                    vmax,
-                ) {
+                if let Err(err) = crate::network::pond_table_to(p, step_h * 3600.0, vmax) {
                     let span = raw
                         .pond
                         .get(i - raw.catchment.len())
