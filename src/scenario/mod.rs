@@ -731,6 +731,13 @@ impl<'a> Builder<'a> {
         for e in &elements {
             if let ElementKind::Catchment(c) = &e.kind {
                 let tp = unit_hydrograph::time_to_peak_h(step_h, timing::lag_h(c.tc_h));
+                let base_h = c.shape.time_base_over_tp() * tp;
+                if base_h > crate::network::TAIL_H {
+                    self.warnings.push(Warning::Note(format!(
+                        "catchment \"{}\": its unit hydrograph lasts {base_h:.0} h, longer than the 7 days a storm runs after its rain; the end of its runoff falls outside the run",
+                        e.name
+                    )));
+                }
                 if step_h > 0.25 * tp {
                     self.warnings.push(Warning::StepCoarse {
                         catchment: e.name.clone(),
