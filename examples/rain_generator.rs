@@ -10,6 +10,7 @@
 //! writes `time,depth` rows (inches per hour, END of each hour), only for
 //! rainy hours plus the first and the last: read it with `missing = "zero"`.
 
+use runnel::gauge::{civil_from_days, days_from_civil};
 use std::io::Write;
 
 /// SplitMix64: a small, well-known generator (Steele, Lea & Flood 2014).
@@ -50,28 +51,6 @@ const MONTHLY: [(f64, f64, f64); 12] = [
     (110.0, 9.0, 0.045),
 ];
 
-fn days_from_civil(y: i64, m: i64, d: i64) -> i64 {
-    let y = if m <= 2 { y - 1 } else { y };
-    let era = y.div_euclid(400);
-    let yoe = y - era * 400;
-    let doy = (153 * (m + if m > 2 { -3 } else { 9 }) + 2) / 5 + d - 1;
-    let doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
-    era * 146_097 + doe - 719_468
-}
-
-fn civil_from_days(z: i64) -> (i64, i64, i64) {
-    let z = z + 719_468;
-    let era = z.div_euclid(146_097);
-    let doe = z - era * 146_097;
-    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
-    let y = yoe + era * 400;
-    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
-    let mp = (5 * doy + 2) / 153;
-    let d = doy - (153 * mp + 2) / 5 + 1;
-    let m = if mp < 10 { mp + 3 } else { mp - 9 };
-    (if m <= 2 { y + 1 } else { y }, m, d)
-}
-
 fn main() -> std::io::Result<()> {
     let args: Vec<String> = std::env::args().collect();
     let out = args
@@ -84,7 +63,7 @@ fn main() -> std::io::Result<()> {
         .and_then(|s| s.parse().ok())
         .unwrap_or(20_261_201);
     let start_day = days_from_civil(1995, 1, 1);
-    let hours = (days_from_civil(1995 + years, 1, 1) - start_day) as usize * 24;
+    let hours = (days_from_civil(1995 + years as i32, 1, 1) - start_day) as usize * 24;
     let mut rain = vec![0.0f64; hours];
     let mut rng = Rng(seed);
     let mut t = 0.0f64;
