@@ -194,7 +194,13 @@ impl Pool {
                 v.resize(len, 0.0);
                 v
             }
-            None => vec![0.0; len],
+            None => {
+                // Written, not calloc'd: a zero page that is first read and
+                // then written costs two page faults instead of one.
+                let mut v = Vec::with_capacity(len);
+                v.resize(len, 0.0);
+                v
+            }
         }
     }
     /// Returns a buffer for reuse.
@@ -376,7 +382,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
         for (c, cname) in study.conditions.iter().enumerate() {
             let mut inputs: Vec<Vec<f64>> = vec![Vec::new(); study.elements.len()];
             let mut points: Vec<Vec<f64>> = vec![Vec::new(); study.points.len()];
-            let mut excess = vec![0.0; n];
+            let mut excess = pool.take(n);
             for i in network::order(&study.elements, c) {
                 let e = &study.elements[i];
                 let mut out = pool.take(len);
