@@ -8,7 +8,8 @@
 //! `tests/bad/NAME/` with `scenario.toml` and the `rain.csv` it reads; each
 //! breaks one rule of the valid scenarios in tests/data/bad-base/.
 
-use std::collections::BTreeMap;
+mod common;
+use common::snapshot;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
@@ -181,29 +182,6 @@ fn runnel(args: &[&Path], cwd: &Path) -> Output {
         .env_remove("RUST_BACKTRACE")
         .output()
         .unwrap_or_else(|e| panic!("cannot start runnel: {e}"))
-}
-
-/// Every file below `dir` (relative path -> bytes).
-fn snapshot(dir: &Path) -> BTreeMap<PathBuf, Vec<u8>> {
-    let mut out = BTreeMap::new();
-    let mut stack = vec![dir.to_path_buf()];
-    while let Some(d) = stack.pop() {
-        let entries = std::fs::read_dir(&d).unwrap_or_else(|e| panic!("{}: {e}", d.display()));
-        for entry in entries {
-            let p = entry.unwrap_or_else(|e| panic!("{e}")).path();
-            if p.is_dir() {
-                stack.push(p.clone());
-            }
-            let bytes = if p.is_file() {
-                std::fs::read(&p).unwrap_or_else(|e| panic!("{}: {e}", p.display()))
-            } else {
-                Vec::new()
-            };
-            let rel = p.strip_prefix(dir).unwrap_or(&p).to_path_buf();
-            out.insert(rel, bytes);
-        }
-    }
-    out
 }
 
 /// A results folder from an earlier, complete run.

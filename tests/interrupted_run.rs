@@ -10,7 +10,8 @@
 //! byte.
 #![cfg(unix)]
 
-use std::collections::BTreeMap;
+mod common;
+use common::snapshot;
 use std::os::unix::process::ExitStatusExt;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
@@ -18,26 +19,6 @@ use std::time::Duration;
 
 fn root() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).to_path_buf()
-}
-
-/// Every file and folder below `dir` (relative path -> bytes).
-fn snapshot(dir: &Path) -> BTreeMap<PathBuf, Vec<u8>> {
-    let mut out = BTreeMap::new();
-    let mut stack = vec![dir.to_path_buf()];
-    while let Some(d) = stack.pop() {
-        let entries = std::fs::read_dir(&d).unwrap_or_else(|e| panic!("{}: {e}", d.display()));
-        for entry in entries {
-            let p = entry.unwrap_or_else(|e| panic!("{e}")).path();
-            let bytes = if p.is_dir() {
-                stack.push(p.clone());
-                Vec::new()
-            } else {
-                std::fs::read(&p).unwrap_or_else(|e| panic!("{}: {e}", p.display()))
-            };
-            out.insert(p.strip_prefix(dir).unwrap_or(&p).to_path_buf(), bytes);
-        }
-    }
-    out
 }
 
 /// Writes a complete set of results into `parent/results` with a quick

@@ -1343,39 +1343,34 @@ impl<'a> Builder<'a> {
         )?;
         let slope_raw = self.req(&rf.slope, &f.span(), ctx, "slope", "0.02 or \"2 %\"")?;
         let slope = self.positive(slope_raw, Quantity::Slope, &format!("{ctx}, slope"))?;
-        let unused = |this: &Self,
-                      present: bool,
-                      key: &str,
-                      sp: Option<std::ops::Range<usize>>,
-                      k: &str|
-         -> R<()> {
-            if present {
-                return Err(this
-                    .err(
-                        &sp.unwrap_or(f.span()),
-                        &format!("{ctx}, {key}"),
-                        format!("`{key}` is not used by {k} flow"),
-                    )
-                    .expected(match k {
-                        "sheet" => "kind, n, length, slope",
-                        "shallow" => "kind, surface, length, slope",
-                        _ => "kind, n, length, slope, section",
-                    }));
-            }
-            Ok(())
-        };
+        // A key given that this kind of segment does not use.
+        let unused =
+            |this: &Self, key: &str, sp: Option<std::ops::Range<usize>>, k: &str| -> R<()> {
+                if let Some(sp) = sp {
+                    return Err(this
+                        .err(
+                            &sp,
+                            &format!("{ctx}, {key}"),
+                            format!("`{key}` is not used by {k} flow"),
+                        )
+                        .expected(match k {
+                            "sheet" => "kind, n, length, slope",
+                            "shallow" => "kind, surface, length, slope",
+                            _ => "kind, n, length, slope, section",
+                        }));
+                }
+                Ok(())
+            };
         match kind.get_ref().as_str() {
             "sheet" => {
                 unused(
                     self,
-                    rf.surface.is_some(),
                     "surface",
                     rf.surface.as_ref().map(|s| s.span()),
                     "sheet",
                 )?;
                 unused(
                     self,
-                    rf.section.is_some(),
                     "section",
                     rf.section.as_ref().map(|s| s.span()),
                     "sheet",
@@ -1425,16 +1420,9 @@ impl<'a> Builder<'a> {
                 })
             }
             "shallow" => {
+                unused(self, "n", rf.n.as_ref().map(|s| s.span()), "shallow")?;
                 unused(
                     self,
-                    rf.n.is_some(),
-                    "n",
-                    rf.n.as_ref().map(|s| s.span()),
-                    "shallow",
-                )?;
-                unused(
-                    self,
-                    rf.section.is_some(),
                     "section",
                     rf.section.as_ref().map(|s| s.span()),
                     "shallow",
@@ -1460,7 +1448,6 @@ impl<'a> Builder<'a> {
             "channel" => {
                 unused(
                     self,
-                    rf.surface.is_some(),
                     "surface",
                     rf.surface.as_ref().map(|s| s.span()),
                     "channel",

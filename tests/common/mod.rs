@@ -68,3 +68,23 @@ pub fn event<'a>(
 pub fn num(v: &serde_json::Value) -> f64 {
     v.as_f64().unwrap_or_else(|| panic!("not a number: {v}"))
 }
+
+/// Every file and folder below `dir` (relative path -> bytes; folders hold no bytes).
+pub fn snapshot(dir: &Path) -> std::collections::BTreeMap<PathBuf, Vec<u8>> {
+    let mut out = std::collections::BTreeMap::new();
+    let mut stack = vec![dir.to_path_buf()];
+    while let Some(d) = stack.pop() {
+        let entries = std::fs::read_dir(&d).unwrap_or_else(|e| panic!("{}: {e}", d.display()));
+        for entry in entries {
+            let p = entry.unwrap_or_else(|e| panic!("{e}")).path();
+            let bytes = if p.is_dir() {
+                stack.push(p.clone());
+                Vec::new()
+            } else {
+                std::fs::read(&p).unwrap_or_else(|e| panic!("{}: {e}", p.display()))
+            };
+            out.insert(p.strip_prefix(dir).unwrap_or(&p).to_path_buf(), bytes);
+        }
+    }
+    out
+}
