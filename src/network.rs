@@ -94,13 +94,10 @@ pub struct PondResult {
 
 /// Peak value and its index.
 pub fn peak(values: &[f64]) -> (f64, usize) {
-    let mut best = (0.0, 0);
-    for (i, &v) in values.iter().enumerate() {
-        if v > best.0 {
-            best = (v, i);
-        }
+    match crate::stats::max_first(values) {
+        Some((v, i)) if v > 0.0 => (v, i),
+        _ => (0.0, 0),
     }
-    best
 }
 
 /// Volume of a hydrograph (ft3), trapezoidal in time.

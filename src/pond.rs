@@ -895,21 +895,65 @@ pub fn route_into(table: &PondTable, inflow_cfs: &[f64], start_stage_ft: f64, ou
     out.outflow_cfs.clear();
     out.stage_ft.clear();
     out.storage_ft3.clear();
-    let Some((&first, rest)) = inflow_cfs.split_first() else {
-        return;
-    };
     let n = inflow_cfs.len();
     out.outflow_cfs.reserve(n);
     out.stage_ft.reserve(n);
     out.storage_ft3.reserve(n);
+    route_each(table, inflow_cfs, start_stage_ft, |o, s, h| {
+        out.outflow_cfs.push(o);
+        out.storage_ft3.push(s);
+        out.stage_ft.push(h);
+    });
+}
 
+/// [`route_into`] without the storage series, for long records: fills the
+/// outflow (cfs) and stage (ft) buffers (cleared first) and returns the
+/// storage (ft3) at the first and the last step, which the mass balance
+/// needs; `(0, 0)` for an empty inflow.
+///
+/// # Formula
+/// `(I_n + I_{n+1}) + (2 S_n/dt - O_n) = (2 S_{n+1}/dt + O_{n+1})`
+/// (Bedient, Huber & Vieux eq. 4-13); I, O cfs, S ft3, dt s.
+pub fn route_stage_into(
+    table: &PondTable,
+    inflow_cfs: &[f64],
+    start_stage_ft: f64,
+    outflow_cfs: &mut Vec<f64>,
+    stage_ft: &mut Vec<f64>,
+) -> (f64, f64) {
+    outflow_cfs.clear();
+    stage_ft.clear();
+    outflow_cfs.reserve(inflow_cfs.len());
+    stage_ft.reserve(inflow_cfs.len());
+    let mut first = None;
+    let mut last = 0.0;
+    route_each(table, inflow_cfs, start_stage_ft, |o, s, h| {
+        outflow_cfs.push(o);
+        stage_ft.push(h);
+        first.get_or_insert(s);
+        last = s;
+    });
+    (first.unwrap_or(0.0), last)
+}
+
+/// The storage-indication step loop of [`route_into`]: calls `emit(outflow
+/// cfs, storage ft3, stage ft)` for the start and then once per inflow
+/// ordinate after the first.
+#[inline(always)]
+fn route_each(
+    table: &PondTable,
+    inflow_cfs: &[f64],
+    start_stage_ft: f64,
+    mut emit: impl FnMut(f64, f64, f64),
+) {
+    let Some((&first, rest)) = inflow_cfs.split_first() else {
+        return;
+    };
     let segs = table.segments.as_slice();
     let last = segs.len() - 1;
     let two_over_dt = 2.0 / table.dt_s;
     let (mut j, h0, s0, o0) = table.state_at_stage(start_stage_ft);
-    out.stage_ft.push(h0);
-    out.storage_ft3.push(s0);
-    out.outflow_cfs.push(o0);
+    emit(o0, s0, h0);
 
     let x_min = segs[0].indicator_cfs;
     let mut carry = two_over_dt * s0 - o0; // 2 S_n/dt - O_n
@@ -926,9 +970,11 @@ pub fn route_into(table: &PondTable, inflow_cfs: &[f64], start_stage_ft: f64, ou
         let sg = &segs[j];
         let f = (x - sg.indicator_cfs) * sg.inv_d_indicator;
         let o = sg.outflow_cfs + f * sg.d_outflow_cfs;
-        out.outflow_cfs.push(o);
-        out.storage_ft3.push(sg.storage_ft3 + f * sg.d_storage_ft3);
-        out.stage_ft.push(sg.stage_ft + f * sg.d_stage_ft);
+        emit(
+            o,
+            sg.storage_ft3 + f * sg.d_storage_ft3,
+            sg.stage_ft + f * sg.d_stage_ft,
+        );
         // 2 S/dt - O = (2 S/dt + O) - 2 O
         carry = x - 2.0 * o;
         i_prev = i_next;
@@ -1727,6 +1773,19 @@ mod tests {
         assert!(
             out.outflow_cfs.is_empty() && out.stage_ft.is_empty() && out.storage_ft3.is_empty()
         );
+        // The record form gives the same outflow and stage, and the storage
+        // at both ends (same storage-indication step, BHV eq. 4-13).
+        let (mut q, mut h) = (Vec::new(), Vec::new());
+        let (s_first, s_last) = route_stage_into(&table, &inflow, 100.0, &mut q, &mut h);
+        assert_eq!(q, expected.outflow_cfs);
+        assert_eq!(h, expected.stage_ft);
+        assert_eq!(Some(&s_first), expected.storage_ft3.first());
+        assert_eq!(Some(&s_last), expected.storage_ft3.last());
+        assert_eq!(
+            route_stage_into(&table, &[], 100.0, &mut q, &mut h),
+            (0.0, 0.0)
+        );
+        assert!(q.is_empty() && h.is_empty());
     }
 
     #[test]

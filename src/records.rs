@@ -373,13 +373,34 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
             b.set_message(format!("record {}", r.name));
             b
         });
-        let mut point_series: Vec<Vec<Vec<f64>>> = Vec::new();
+        let nc = study.conditions.len();
+        let np = study.points.len();
+        // The baseline goes first, so that the flow levels of every point's
+        // duration control are known while each condition's series is at
+        // hand; the series is then reduced to its times above those levels
+        // and its daily maxima, and its buffer reused.
+        let order: Vec<usize> = if study.baseline < nc {
+            std::iter::once(study.baseline)
+                .chain((0..nc).filter(|&c| c != study.baseline))
+                .collect()
+        } else {
+            (0..nc).collect()
+        };
+        let first_entry = res.entries.len();
+        let per_day = ((24.0 / step_h).round() as usize).max(1);
+        // Per point: the duration control's flow range and its 100 levels.
+        let mut control: Vec<Option<(f64, f64, Vec<f64>)>> = vec![None; np];
+        // Per condition and point: intervals above each level; daily maxima.
+        let mut counts: Vec<Vec<Vec<usize>>> = vec![vec![Vec::new(); np]; nc];
+        let mut daily_max: Vec<Vec<Vec<f64>>> = vec![vec![Vec::new(); np]; nc];
         let mut point_curves: Vec<(PointKey, Curve)> = Vec::new();
         // Buffers are reused between elements: fresh 80-MB vectors cost
         // more in page faults than the arithmetic on them.
         let mut pool = Pool::default();
-        let mut routed = pond::Routed::default();
-        for (c, cname) in study.conditions.iter().enumerate() {
+        // Pond stage: the only series routing keeps besides the outflow.
+        let mut stage: Vec<f64> = Vec::new();
+        for &c in &order {
+            let cname = &study.conditions[c];
             let mut inputs: Vec<Vec<f64>> = vec![Vec::new(); study.elements.len()];
             let mut points: Vec<Vec<f64>> = vec![Vec::new(); study.points.len()];
             let mut excess = pool.take(n);
@@ -502,11 +523,10 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                                 message: format!("pond \"{}\": {e}", study.elements[i].name),
                             }
                         })?;
-                        routed.outflow_cfs = std::mem::take(&mut out);
                         let clock = std::time::Instant::now();
-                        pond::route_into(&table, &inflow, start, &mut routed);
+                        let (storage_first, storage_last) =
+                            pond::route_stage_into(&table, &inflow, start, &mut out, &mut stage);
                         res.timings.routing_s += clock.elapsed().as_secs_f64();
-                        out = std::mem::take(&mut routed.outflow_cfs);
                         let st = series_stats(&out, r.start_s, step_s, step_h);
                         let area = crate::analysis::area_to_element_ac(study, i, c);
                         rec_entry = entry(
@@ -523,16 +543,22 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                             &o,
                             None,
                         );
-                        // Depths above the bottom spread over many binary
+                        let am = if stage.len() > 1 {
+                            stats::annual_maxima(r.start_s, step_s, &stage[1..])
+                        } else {
+                            Vec::new()
+                        };
+                        // Depths above the bottom (in place: the stages are
+                        // no longer needed) spread over many binary
                         // exponents, which the duration ranking handles fastest.
                         let bottom = p.storage.bottom_ft();
-                        let mut depth = pool.take(0);
-                        depth.extend(routed.stage_ft.iter().map(|h| (h - bottom).max(0.0)));
-                        let sd: Vec<f64> = stats::flow_duration(&depth, &EXCEEDANCES)
+                        for h in stage.iter_mut() {
+                            *h = (*h - bottom).max(0.0);
+                        }
+                        let sd: Vec<f64> = stats::flow_duration(&stage, &EXCEEDANCES)
                             .into_iter()
                             .map(|d| d + bottom)
                             .collect();
-                        pool.give(depth);
                         rec_entry.stage_duration = Some(
                             EXCEEDANCES
                                 .iter()
@@ -543,11 +569,6 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                                 })
                                 .collect(),
                         );
-                        let am = if routed.stage_ft.len() > 1 {
-                            stats::annual_maxima(r.start_s, step_s, &routed.stage_ft[1..])
-                        } else {
-                            Vec::new()
-                        };
                         rec_entry.annual_max_stage = Some(
                             am.iter()
                                 .map(|a| AnnualStage {
@@ -558,8 +579,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         );
                         let vin = network::volume_ft3(&inflow, step_h);
                         let vout = network::volume_ft3(&out, step_h);
-                        let ds = routed.storage_ft3.last().copied().unwrap_or(0.0)
-                            - routed.storage_ft3.first().copied().unwrap_or(0.0);
+                        let ds = storage_last - storage_first;
                         rec_entry.mass_balance_error = Some(if vin > 0.0 {
                             (vin - vout - ds) / vin
                         } else {
@@ -583,11 +603,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         network::add_lagged(&mut inputs[j], &out, e.lag_h, step_h);
                     }
                 }
-                if e.kind_word() == "pond" {
-                    routed.outflow_cfs = out;
-                } else {
-                    pool.give(out);
-                }
+                pool.give(out);
                 if let Some(b) = &bar {
                     b.inc(1);
                 }
@@ -624,9 +640,47 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                     &o,
                     Some(all),
                 ));
+                if let Some(dc) = &study.points[pi].durations {
+                    if c == study.baseline
+                        && let Some(be) = res.entries.last()
+                        && let Some([m, s, g]) = be.lp3
+                    {
+                        let fit = stats::Lp3Fit {
+                            mean_log10: m,
+                            std_log10: s,
+                            skew: g,
+                            n: be.annual_peaks.len(),
+                        };
+                        let from = dc.from.0 * fit.quantile(dc.from.1);
+                        let to = dc.to.0 * fit.quantile(dc.to.1);
+                        let (lo, hi) = (from.min(to), from.max(to));
+                        let levels: Vec<f64> = (0..100)
+                            .map(|k| (lo.ln() + (hi.ln() - lo.ln()) * k as f64 / 99.0).exp())
+                            .collect();
+                        control[pi] = Some((lo, hi, levels));
+                    }
+                    if let Some((_, _, levels)) = &control[pi] {
+                        counts[c][pi] = stats::times_above_levels(p, levels);
+                    }
+                }
+                daily_max[c][pi] = p
+                    .chunks(per_day)
+                    .map(|ch| ch.iter().copied().fold(0.0, f64::max))
+                    .collect();
             }
-            point_series.push(points);
+            for p in points {
+                pool.give(p);
+            }
+            pool.give(excess);
         }
+        // Entries in the order of the conditions, as for design storms.
+        res.entries[first_entry..].sort_by_key(|e| {
+            study
+                .conditions
+                .iter()
+                .position(|c| *c == e.condition)
+                .unwrap_or(usize::MAX)
+        });
         if let Some(b) = bar {
             b.finish_and_clear();
         }
@@ -642,55 +696,44 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         && e.condition == study.conditions[study.baseline]
                 })
                 .cloned();
-            if let (Some(dc), Some(be)) = (&pt.durations, &base_entry) {
-                let lp3 = be.lp3.map(|[m, s, g]| stats::Lp3Fit {
-                    mean_log10: m,
-                    std_log10: s,
-                    skew: g,
-                    n: be.annual_peaks.len(),
-                });
-                if let Some(fit) = lp3 {
-                    let from = dc.from.0 * fit.quantile(dc.from.1);
-                    let to = dc.to.0 * fit.quantile(dc.to.1);
-                    let (lo, hi) = (from.min(to), from.max(to));
-                    let levels: Vec<f64> = (0..100)
-                        .map(|k| (lo.ln() + (hi.ln() - lo.ln()) * k as f64 / 99.0).exp())
-                        .collect();
-                    let base_series = &point_series[study.baseline][pi];
-                    let tb = stats::times_above_levels(base_series, &levels);
-                    for (c, cname) in study.conditions.iter().enumerate() {
-                        if c == study.baseline {
-                            continue;
+            if let (Some(dc), Some(be)) = (&pt.durations, &base_entry)
+                && let Some((lo, hi, levels)) = &control[pi]
+            {
+                let (lo, hi) = (*lo, *hi);
+                let tb = &counts[study.baseline][pi];
+                for (c, cname) in study.conditions.iter().enumerate() {
+                    if c == study.baseline {
+                        continue;
+                    }
+                    let tc = &counts[c][pi];
+                    let mut worst = (f64::NEG_INFINITY, 0usize);
+                    let mut pass = true;
+                    for (k, (&b, &x)) in tb.iter().zip(tc.iter()).enumerate() {
+                        let excess = if b == 0 {
+                            if x > 0 { f64::INFINITY } else { 0.0 }
+                        } else {
+                            (x as f64 - b as f64) / b as f64
+                        };
+                        let bad = if b == 0 {
+                            x > 0
+                        } else {
+                            x as f64 > b as f64 * (1.0 + dc.tolerance) + 1e-9
+                        };
+                        if bad {
+                            pass = false;
                         }
-                        let tc = stats::times_above_levels(&point_series[c][pi], &levels);
-                        let mut worst = (f64::NEG_INFINITY, 0usize);
-                        let mut pass = true;
-                        for (k, (&b, &x)) in tb.iter().zip(&tc).enumerate() {
-                            let excess = if b == 0 {
-                                if x > 0 { f64::INFINITY } else { 0.0 }
-                            } else {
-                                (x as f64 - b as f64) / b as f64
-                            };
-                            let bad = if b == 0 {
-                                x > 0
-                            } else {
-                                x as f64 > b as f64 * (1.0 + dc.tolerance) + 1e-9
-                            };
-                            if bad {
-                                pass = false;
-                            }
-                            if excess > worst.0 {
-                                worst = (excess, k);
-                            }
+                        if excess > worst.0 {
+                            worst = (excess, k);
                         }
-                        let ce = res.entries.iter().find(|e| {
-                            e.record == r.name
-                                && e.kind == "point"
-                                && e.element == pt.name
-                                && &e.condition == cname
-                        });
-                        let wl = levels.get(worst.1).copied().unwrap_or(0.0);
-                        res.comparisons.push(ComparisonOut {
+                    }
+                    let ce = res.entries.iter().find(|e| {
+                        e.record == r.name
+                            && e.kind == "point"
+                            && e.element == pt.name
+                            && &e.condition == cname
+                    });
+                    let wl = levels.get(worst.1).copied().unwrap_or(0.0);
+                    res.comparisons.push(ComparisonOut {
                             point: pt.name.clone(),
                             storm: None,
                             record: Some(r.name.clone()),
@@ -708,7 +751,6 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                                 "worst_relative_excess": if worst.0.is_finite() { serde_json::json!(worst.0) } else { serde_json::Value::Null },
                             })),
                         });
-                    }
                 }
             }
             // Plot data.
@@ -717,9 +759,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
             let mut observed = Vec::new();
             let mut fitted = Vec::new();
             let mut daily = Vec::new();
-            let per_day = ((24.0 / step_h).round() as usize).max(1);
             for (c, cname) in study.conditions.iter().enumerate() {
-                let s = &point_series[c][pi];
                 let curve = point_curves
                     .iter()
                     .find(|(k, _)| *k == (c, pi))
@@ -767,9 +807,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                 }
                 daily.push((
                     cname.clone(),
-                    s.chunks(per_day)
-                        .map(|ch| o.flow(ch.iter().copied().fold(0.0, f64::max)))
-                        .collect(),
+                    daily_max[c][pi].iter().map(|&q| o.flow(q)).collect(),
                 ));
             }
             let (y, mo, d) = gauge::civil_from_days(r.start_s.div_euclid(86_400));

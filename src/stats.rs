@@ -760,6 +760,30 @@ pub struct AnnualMax {
     pub expected_intervals: usize,
 }
 
+/// The largest non-NaN value and the index of its first occurrence (None
+/// when every value is NaN or there are none).
+///
+/// Eight running maxima side by side, so that the compiler can keep them in
+/// vector registers; then one scan for the first index holding the maximum.
+pub fn max_first(values: &[f64]) -> Option<(f64, usize)> {
+    const LANES: usize = 8;
+    let mut acc = [f64::NEG_INFINITY; LANES];
+    let chunks = values.chunks_exact(LANES);
+    let tail = chunks.remainder();
+    for ch in chunks {
+        for (a, &v) in acc.iter_mut().zip(ch) {
+            // A NaN never compares greater, so it is skipped.
+            *a = if v > *a { v } else { *a };
+        }
+    }
+    let mut m = f64::NEG_INFINITY;
+    for &v in acc.iter().chain(tail) {
+        m = if v > m { v } else { m };
+    }
+    let first = values.iter().position(|&v| v == m)?;
+    Some((m, first))
+}
+
 /// Splits a regular record into calendar years and returns each year's
 /// maximum.
 ///
@@ -802,19 +826,12 @@ pub fn annual_maxima(start_s: i64, step_s: i64, values: &[f64]) -> Vec<AnnualMax
         let expected = usize::try_from((k_next - k_first).max(0)).unwrap_or(usize::MAX);
         // k_next > i0 because interval i0 starts before next_start.
         let i1 = usize::try_from(k_next.clamp(i0 as i128 + 1, n as i128)).unwrap_or(n);
-        let mut peak = f64::NAN;
-        let mut peak_index = i0;
-        let mut count = 0usize;
-        for (j, &v) in values.get(i0..i1).unwrap_or(&[]).iter().enumerate() {
-            if v.is_nan() {
-                continue;
-            }
-            if count == 0 || v > peak {
-                peak = v;
-                peak_index = i0 + j;
-            }
-            count += 1;
-        }
+        let year_values = values.get(i0..i1).unwrap_or(&[]);
+        let count = year_values.len() - year_values.iter().filter(|v| v.is_nan()).count();
+        let (peak, peak_index) = match max_first(year_values) {
+            Some((v, j)) if count > 0 => (v, i0 + j),
+            _ => (f64::NAN, i0),
+        };
         out.push(AnnualMax {
             year,
             peak,
@@ -832,6 +849,35 @@ mod tests {
     use super::*;
     use approx::assert_abs_diff_eq;
     use proptest::prelude::*;
+
+    // ---- Running maximum (no method: plain arithmetic) ----
+
+    #[test]
+    fn max_first_skips_nan_and_takes_the_first_of_equal_highs() {
+        assert_eq!(max_first(&[]), None);
+        assert_eq!(max_first(&[f64::NAN; 11]), None);
+        let mut v = vec![0.0; 21];
+        v[3] = f64::NAN;
+        v[5] = 2.0;
+        v[17] = 2.0; // in the tail after the 8-wide chunks
+        assert_eq!(max_first(&v), Some((2.0, 5)));
+        v[19] = 3.0;
+        assert_eq!(max_first(&v), Some((3.0, 19)));
+    }
+
+    proptest! {
+        #[test]
+        fn max_first_matches_a_plain_scan(v in proptest::collection::vec(
+            prop_oneof![Just(f64::NAN), Just(0.0), -1e3f64..1e3], 0..70)) {
+            let mut best: Option<(f64, usize)> = None;
+            for (i, &x) in v.iter().enumerate() {
+                if !x.is_nan() && best.is_none_or(|(b, _)| x > b) {
+                    best = Some((x, i));
+                }
+            }
+            prop_assert_eq!(max_first(&v), best);
+        }
+    }
 
     // ---- Weibull plotting positions ----
 
