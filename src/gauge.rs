@@ -131,6 +131,8 @@ pub enum GaugeErrorKind {
     UnknownInterval,
     /// The dense series would be longer than `max_intervals`.
     TooLong,
+    /// The file could not be read to its end.
+    Unreadable,
 }
 
 /// An error in a gauge file, with where it is and what was expected.
@@ -518,14 +520,6 @@ struct Lines<'a> {
 }
 
 impl<'a> Lines<'a> {
-    fn new(text: &'a [u8]) -> Self {
-        Lines {
-            text,
-            pos: 0,
-            line_no: 0,
-        }
-    }
-
     /// Moves past one line that ends just before byte `next`.
     fn skip_to(&mut self, next: usize) {
         self.pos = next;
@@ -549,28 +543,6 @@ impl<'a> Iterator for Lines<'a> {
         self.pos += advance;
         Some((self.line_no, line))
     }
-}
-
-/// Data lines (after the header, not blank) with their line numbers.
-fn data_lines(text: &[u8]) -> impl Iterator<Item = (usize, &[u8])> {
-    Lines::new(text).filter(|(_, l)| !is_blank(l)).skip(1)
-}
-
-/// Line numbers of the data rows with the given 0-based indices (sorted
-/// ascending); used only to word errors found after the main pass.
-fn row_lines(text: &[u8], rows: &[usize]) -> Vec<usize> {
-    let mut out = Vec::with_capacity(rows.len());
-    let mut want = rows.iter().peekable();
-    for (i, (line_no, _)) in data_lines(text).enumerate() {
-        while want.peek() == Some(&&i) {
-            out.push(line_no);
-            want.next();
-        }
-        if want.peek().is_none() {
-            break;
-        }
-    }
-    out
 }
 
 fn describe_s(s: i64) -> String {
@@ -601,6 +573,25 @@ fn describe_s(s: i64) -> String {
 /// lengths, missing intervals (without `missing_zero`), a single row with
 /// no interval given, or a series longer than `max_intervals`.
 pub fn parse_gauge(text: &[u8], opts: &GaugeOptions) -> Result<GaugeSeries, GaugeError> {
+    parse_gauge_reader(text, Some(text.len() as u64), opts)
+}
+
+/// Bytes read from the source at a time by [`parse_gauge_reader`].
+const CHUNK_BYTES: usize = 1 << 20;
+
+/// [`parse_gauge`] reading from a stream in chunks of about a megabyte, so
+/// that a file of hundreds of megabytes is never held whole. `size_hint`
+/// (the file's length in bytes, if known) only sizes the output.
+///
+/// # Errors
+///
+/// As [`parse_gauge`], and [`GaugeErrorKind::Unreadable`] when reading
+/// fails part way.
+pub fn parse_gauge_reader<R: std::io::Read>(
+    mut reader: R,
+    size_hint: Option<u64>,
+    opts: &GaugeOptions,
+) -> Result<GaugeSeries, GaugeError> {
     use GaugeErrorKind as K;
     if let Some(g) = opts.interval_s
         && g <= 0
@@ -613,64 +604,160 @@ pub fn parse_gauge(text: &[u8], opts: &GaugeOptions) -> Result<GaugeSeries, Gaug
             "a positive interval",
         ));
     }
-    let text = text.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(text);
-
-    // Header: the first non-blank line.
-    let mut cursor = Lines::new(text);
-    let (header_line, header) = loop {
-        match cursor.next() {
-            None => {
-                return Err(GaugeError::new(
-                    K::Empty,
-                    0,
-                    None,
-                    "the file is empty",
-                    EXPECTED_HEADER,
-                ));
-            }
-            Some((_, l)) if is_blank(l) => continue,
-            Some(found) => break found,
-        }
-    };
-    let (time_first, column) = parse_header(header).ok_or_else(|| {
-        GaugeError::new(
-            K::BadHeader,
-            header_line,
-            Some(1),
-            format!("bad header {}", show(header)),
-            EXPECTED_HEADER,
-        )
-    })?;
-
-    // Main pass: rows -> times and per-row depths. Plain rows in the usual
-    // layout take the fast path; any other line, and any row that would
-    // fail a check, goes through the general path, which words the error.
-    let first_len = text
-        .get(cursor.pos..)
-        .and_then(|r| r.iter().position(|&c| c == b'\n'))
-        .unwrap_or(0)
-        .max(8);
-    let capacity = (text.len() / first_len)
-        .saturating_add(16)
-        .min(opts.max_intervals.saturating_add(1));
-    let mut row_state = RowState::new(capacity, column, header_line);
+    let mut buf: Vec<u8> = Vec::with_capacity(CHUNK_BYTES + 4096);
+    let mut eof = false;
+    let mut first_chunk = true;
+    // Lines wholly consumed before `buf[0]`.
+    let mut lines_before = 0usize;
+    // (header line, times first) once the header has been read.
+    let mut header: Option<(usize, bool)> = None;
+    let mut row_state: Option<RowState> = None;
     let mut cache = DateCache::default();
     loop {
-        if time_first
-            && let Some((t, v, next)) = fast_row(text, cursor.pos, &mut cache)
-            && row_state.try_fast(t, v, cursor.line_no + 1, opts.max_intervals)
-        {
-            cursor.skip_to(next);
-            continue;
+        // Fill up to a chunk (or to the end of the source).
+        while !eof && buf.len() < CHUNK_BYTES {
+            let old = buf.len();
+            buf.resize(CHUNK_BYTES, 0);
+            match reader.read(&mut buf[old..]) {
+                Ok(0) => {
+                    buf.truncate(old);
+                    eof = true;
+                }
+                Ok(k) => buf.truncate(old + k),
+                Err(e) if e.kind() == std::io::ErrorKind::Interrupted => buf.truncate(old),
+                Err(e) => {
+                    return Err(GaugeError::new(
+                        K::Unreadable,
+                        lines_before,
+                        None,
+                        format!("reading stopped after line {lines_before}: {e}"),
+                        "a readable file",
+                    ));
+                }
+            }
         }
-        let Some((line_no, line)) = cursor.next() else {
-            break;
+        let skip = if first_chunk && buf.starts_with(b"\xEF\xBB\xBF") {
+            3
+        } else {
+            0
         };
-        if is_blank(line) {
-            continue;
+        first_chunk = false;
+        // Whole lines only, except at the end of the source.
+        let usable = if eof {
+            buf.len()
+        } else {
+            match buf.iter().rposition(|&c| c == b'\n') {
+                Some(i) => i + 1,
+                None => {
+                    // A line longer than the chunk: read on.
+                    buf.reserve(CHUNK_BYTES);
+                    let old = buf.len();
+                    buf.resize(old + CHUNK_BYTES, 0);
+                    match reader.read(&mut buf[old..]) {
+                        Ok(0) => {
+                            buf.truncate(old);
+                            eof = true;
+                        }
+                        Ok(k) => buf.truncate(old + k),
+                        Err(e) => {
+                            return Err(GaugeError::new(
+                                K::Unreadable,
+                                lines_before,
+                                None,
+                                format!("reading stopped after line {lines_before}: {e}"),
+                                "a readable file",
+                            ));
+                        }
+                    }
+                    continue;
+                }
+            }
+        };
+        let text = buf.get(skip..usable).unwrap_or(&[]);
+        let mut cursor = Lines {
+            text,
+            pos: 0,
+            line_no: lines_before,
+        };
+        // Header: the first non-blank line.
+        if header.is_none() {
+            for (line_no, l) in cursor.by_ref() {
+                if is_blank(l) {
+                    continue;
+                }
+                let (time_first, column) = parse_header(l).ok_or_else(|| {
+                    GaugeError::new(
+                        K::BadHeader,
+                        line_no,
+                        Some(1),
+                        format!("bad header {}", show(l)),
+                        EXPECTED_HEADER,
+                    )
+                })?;
+                let first_len = text
+                    .get(cursor.pos..)
+                    .and_then(|r| r.iter().position(|&c| c == b'\n'))
+                    .unwrap_or(0)
+                    .max(8);
+                let total =
+                    size_hint.map_or(text.len(), |h| usize::try_from(h).unwrap_or(usize::MAX));
+                let capacity = (total / first_len)
+                    .saturating_add(16)
+                    .min(opts.max_intervals.saturating_add(1));
+                header = Some((line_no, time_first));
+                row_state = Some(RowState::new(capacity, column, line_no));
+                break;
+            }
         }
-        row_state.general_row(line_no, line, time_first, &mut cache, opts.max_intervals)?;
+        // Main pass: rows -> times and per-row depths. Plain rows in the
+        // usual layout take the fast path; any other line, and any row that
+        // would fail a check, goes through the general path, which words
+        // the error.
+        if let (Some((_, time_first)), Some(row_state)) = (header, row_state.as_mut()) {
+            loop {
+                if time_first
+                    && let Some((t, v, next)) = fast_row(text, cursor.pos, &mut cache)
+                    && row_state.try_fast(t, v, cursor.line_no + 1, opts.max_intervals)
+                {
+                    cursor.skip_to(next);
+                    continue;
+                }
+                let Some((line_no, line)) = cursor.next() else {
+                    break;
+                };
+                if is_blank(line) {
+                    continue;
+                }
+                row_state.general_row(line_no, line, time_first, &mut cache, opts.max_intervals)?;
+            }
+        }
+        lines_before = cursor.line_no;
+        buf.drain(..usable);
+        if eof {
+            break;
+        }
     }
+    let (Some((header_line, _)), Some(row_state)) = (header, row_state) else {
+        return Err(GaugeError::new(
+            K::Empty,
+            0,
+            None,
+            "the file is empty",
+            EXPECTED_HEADER,
+        ));
+    };
+    finish(row_state, header_line, opts)
+}
+
+/// The checks and filling that need every row: the interval, the gaps,
+/// the length limit and the dense series.
+fn finish(
+    mut row_state: RowState,
+    header_line: usize,
+    opts: &GaugeOptions,
+) -> Result<GaugeSeries, GaugeError> {
+    use GaugeErrorKind as K;
+    let column = row_state.column;
     let rows = row_state.depth.len();
     if rows == 0 {
         return Err(GaugeError::new(
@@ -685,7 +772,7 @@ pub fn parse_gauge(text: &[u8], opts: &GaugeOptions) -> Result<GaugeSeries, Gaug
         Some(g) => (g, true),
         None if rows >= 2 => (row_state.min_gap, false),
         None => {
-            let line = row_lines(text, &[0]).first().copied().unwrap_or(0);
+            let line = row_state.row_lines(&[0]).first().copied().unwrap_or(0);
             return Err(GaugeError::new(
                 K::UnknownInterval,
                 line,
@@ -704,7 +791,7 @@ pub fn parse_gauge(text: &[u8], opts: &GaugeOptions) -> Result<GaugeSeries, Gaug
     } else {
         row_state.take_times()
     };
-    let depth = row_state.depth;
+    let depth = std::mem::take(&mut row_state.depth);
 
     // Gaps: every one a whole multiple of the interval; longer than one
     // interval only with zero filling.
@@ -719,7 +806,7 @@ pub fn parse_gauge(text: &[u8], opts: &GaugeOptions) -> Result<GaugeSeries, Gaug
             continue;
         }
         if gap % interval != 0 {
-            let lines = row_lines(text, &sorted_pair(i + 1, min_gap_row));
+            let lines = row_state.row_lines(&sorted_pair(i + 1, min_gap_row));
             let (this_line, other_line) = line_pair(&lines, i + 1, min_gap_row);
             let message = if given {
                 format!(
@@ -743,7 +830,7 @@ pub fn parse_gauge(text: &[u8], opts: &GaugeOptions) -> Result<GaugeSeries, Gaug
             ));
         }
         if !opts.missing_zero {
-            let lines = row_lines(text, &[i, i + 1]);
+            let lines = row_state.row_lines(&[i, i + 1]);
             let la = lines.first().copied().unwrap_or(0);
             let lb = lines.get(1).copied().unwrap_or(0);
             return Err(GaugeError::new(
@@ -819,6 +906,10 @@ struct RowState {
     prev_total: f64,
     min_gap: i64,
     min_gap_row: usize,
+    /// (row index, line number) of every row that does not follow the
+    /// previous row's line directly (the first row, rows after blank
+    /// lines): the line of any row, for errors found after the main pass.
+    line_breaks: Vec<(usize, usize)>,
 }
 
 impl RowState {
@@ -836,7 +927,21 @@ impl RowState {
             prev_total: 0.0,
             min_gap: i64::MAX,
             min_gap_row: 0,
+            line_breaks: Vec::new(),
         }
+    }
+
+    /// Line numbers of the rows with the given 0-based indices.
+    fn row_lines(&self, rows: &[usize]) -> Vec<usize> {
+        rows.iter()
+            .map(|&i| {
+                let k = self.line_breaks.partition_point(|&(r, _)| r <= i);
+                match k.checked_sub(1).and_then(|k| self.line_breaks.get(k)) {
+                    Some(&(r, line)) => line + (i - r),
+                    None => 0,
+                }
+            })
+            .collect()
     }
 
     /// Time of every row, explicit or implied (leaves `times` empty).
@@ -853,6 +958,9 @@ impl RowState {
     #[inline]
     fn commit(&mut self, t: i64, has_offset: bool, v: f64, line_no: usize) {
         let n = self.depth.len();
+        if n == 0 || line_no != self.prev_line + 1 {
+            self.line_breaks.push((n, line_no));
+        }
         if n == 0 {
             self.first_time = t;
         } else {
@@ -1150,6 +1258,104 @@ mod tests {
 
     fn ts(y: i32, m: u32, d: u32, hh: i64, mm: i64, ss: i64) -> i64 {
         days_from_civil(y, m, d) * 86_400 + hh * 3_600 + mm * 60 + ss
+    }
+
+    // ---- reading in chunks (format rules of the scenario contract) ----
+
+    /// A dense 5-minute file of `rows` rows (about 24 bytes each), every
+    /// 7th interval with 0.01 of rain, CRLF line ends and a byte-order mark.
+    fn long_text(rows: usize) -> String {
+        let start = ts(2001, 1, 1, 0, 0, 0);
+        let mut t = String::from("\u{feff}time,depth\r\n");
+        for k in 1..=rows {
+            let stamp = format_timestamp(start + k as i64 * 300);
+            let d = if k % 7 == 0 { "0.01" } else { "0" };
+            t.push_str(&format!("{} {},{d}\r\n", &stamp[..10], &stamp[11..16]));
+        }
+        t
+    }
+
+    /// A reader that hands out at most `step` bytes per call.
+    struct Trickle<'a>(&'a [u8], usize);
+    impl std::io::Read for Trickle<'_> {
+        fn read(&mut self, out: &mut [u8]) -> std::io::Result<usize> {
+            let k = self.1.min(out.len()).min(self.0.len());
+            out[..k].copy_from_slice(&self.0[..k]);
+            self.0 = &self.0[k..];
+            Ok(k)
+        }
+    }
+
+    #[test]
+    fn rows_across_chunk_boundaries_are_all_read() {
+        let rows = 200_000; // about 4.6 MB: several chunks
+        let text = long_text(rows);
+        assert!(text.len() > 3 * CHUNK_BYTES);
+        for s in [
+            parse_gauge(text.as_bytes(), &opts()).unwrap(),
+            parse_gauge_reader(Trickle(text.as_bytes(), 999_983), None, &opts()).unwrap(),
+        ] {
+            assert_eq!(s.depth.len(), rows);
+            assert_eq!(s.interval_s, 300);
+            assert_eq!(s.start_s, ts(2001, 1, 1, 0, 0, 0));
+            let wet = s.depth.iter().filter(|d| **d > 0.0).count();
+            assert_eq!(wet, rows / 7);
+            assert_abs_diff_eq!(
+                s.depth.iter().sum::<f64>(),
+                0.01 * (rows / 7) as f64,
+                epsilon = 1e-6
+            );
+        }
+    }
+
+    #[test]
+    fn errors_after_the_main_pass_name_lines_past_the_first_chunk() {
+        // Blank lines shift the line numbers; a 7-minute gap far into the
+        // file is a mixed interval, reported on its own line.
+        let text = long_text(150_000);
+        let mut lines: Vec<&str> = text.split("\r\n").collect();
+        lines.insert(10_000, "");
+        lines.insert(20_000, "   ");
+        let bad_line = 120_000; // 1-based line number of the changed row
+        let changed = {
+            let row = lines[bad_line - 1];
+            let (time, value) = row.split_once(',').unwrap();
+            let minute: i64 = time[14..16].parse().unwrap();
+            format!("{}{:02},{value}", &time[..14], (minute + 2) % 60)
+        };
+        assert!(changed.len() > 10);
+        let mut owned: Vec<String> = lines.iter().map(|l| l.to_string()).collect();
+        owned[bad_line - 1] = changed;
+        let text = owned.join("\r\n");
+        let given = GaugeOptions {
+            interval_s: Some(300),
+            ..opts()
+        };
+        let e = parse_gauge_reader(Trickle(text.as_bytes(), 65_537), None, &given).unwrap_err();
+        assert_eq!(e.kind, GaugeErrorKind::MixedInterval, "{e}");
+        assert_eq!(e.line, bad_line, "{e}");
+        // The same text read whole gives the same error.
+        assert_eq!(parse_gauge(text.as_bytes(), &given).unwrap_err(), e);
+    }
+
+    #[test]
+    fn a_read_failure_is_an_error_not_a_short_record() {
+        struct Fails(usize);
+        impl std::io::Read for Fails {
+            fn read(&mut self, out: &mut [u8]) -> std::io::Result<usize> {
+                if self.0 == 0 {
+                    return Err(std::io::Error::other("device gone"));
+                }
+                let head = b"time,depth\n2001-01-01 00:05,0\n2001-01-01 00:10,0\n";
+                let k = head.len().min(out.len());
+                out[..k].copy_from_slice(&head[..k]);
+                self.0 -= 1;
+                Ok(k)
+            }
+        }
+        let e = parse_gauge_reader(Fails(1), None, &opts()).unwrap_err();
+        assert_eq!(e.kind, GaugeErrorKind::Unreadable);
+        assert!(e.message.contains("device gone"), "{e}");
     }
 
     // ---- calendar ----

@@ -1022,13 +1022,14 @@ impl<'a> Builder<'a> {
             }
             None => false,
         };
-        let bytes = std::fs::read(&path).map_err(|e| {
+        let file = std::fs::File::open(&path).map_err(|e| {
             self.err(
                 &g.span(),
                 &format!("{ctx}, gauge"),
                 format!("cannot read {}: {e}", path.display()),
             )
         })?;
+        let size_hint = file.metadata().ok().map(|m| m.len());
         let opts = gauge::GaugeOptions {
             interval_s,
             missing_zero,
@@ -1038,17 +1039,15 @@ impl<'a> Builder<'a> {
                 max_intervals
             },
         };
-        let series = gauge::parse_gauge(&bytes, &opts).map_err(|e| {
+        // Read in chunks: a long record's file is never held whole.
+        let series = gauge::parse_gauge_reader(file, size_hint, &opts).map_err(|e| {
             let mut ie = InputError::new(&path, e.message.clone()).context(format!("{ctx}, gauge"));
             if e.line > 0 {
                 ie = ie.at_line(e.line);
                 if let Some(c) = e.column {
                     ie.column = Some(c);
                 }
-                ie.snippet = String::from_utf8_lossy(&bytes)
-                    .lines()
-                    .nth(e.line - 1)
-                    .map(|s| s.chars().take(120).collect());
+                ie.snippet = line_of_file(&path, e.line);
             }
             if !e.expected.is_empty() {
                 ie = ie.expected(e.expected.clone());
@@ -2718,6 +2717,19 @@ fn read_hydrograph_csv(path: &Path) -> R<Vec<(f64, f64)>> {
         out.push((num(0)?, num(1)?));
     }
     Ok(out)
+}
+
+/// Line `line` (1-based) of a file, cut to 120 characters, for an error's
+/// snippet; read again only when there is an error to show.
+fn line_of_file(path: &std::path::Path, line: usize) -> Option<String> {
+    use std::io::BufRead;
+    let file = std::fs::File::open(path).ok()?;
+    let raw = std::io::BufReader::new(file)
+        .split(b'\n')
+        .nth(line.checked_sub(1)?)?
+        .ok()?;
+    let text = String::from_utf8_lossy(&raw);
+    Some(text.trim_end_matches('\r').chars().take(120).collect())
 }
 
 #[cfg(test)]
