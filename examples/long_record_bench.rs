@@ -1,8 +1,9 @@
 //! Speed and memory of a whole `runnel run` on a 100-year, 5-minute record
 //! (10.5 million intervals, dense CSV): two conditions, three catchments,
 //! one pond, one point. Writes the invented CSV and scenario into a
-//! temporary folder, runs the release binary on it and prints the times of
-//! each stage and the peak memory.
+//! temporary folder, runs the release binary on it and prints the time of
+//! the whole run, the intervals per second of each stage (reading, excess,
+//! convolution, routing, statistics) and the peak memory.
 //!
 //! `cargo build --release && cargo run --release --example long_record_bench`
 
@@ -99,6 +100,7 @@ moisture = "event"
     let out = dir.join("out");
     let t1 = Instant::now();
     let status = std::process::Command::new("/usr/bin/time")
+        .env("RUNNEL_TIMINGS", "1")
         .arg("-v")
         .arg(&exe)
         .args([
@@ -124,6 +126,10 @@ moisture = "event"
                 n as f64 / wall / 1e6,
                 rss.trim()
             );
+            // Per stage (intervals of the record per second of that stage).
+            for l in err.lines().filter(|l| l.starts_with("timings:")) {
+                println!("{l}");
+            }
         }
         Err(e) => println!("could not run {}: {e}", exe.display()),
     }

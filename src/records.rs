@@ -212,10 +212,24 @@ impl Pool {
 }
 
 /// Bytes a record run needs at its peak, for the memory cap.
-pub fn estimate_bytes(_study: &Study, r: &Record) -> u64 {
+pub fn estimate_bytes(study: &Study, r: &Record) -> u64 {
     let n = (r.depth_in.len() as f64 * r.interval_h / r.step_h).ceil() as u64 + 1;
-    // rain, excess, one outflow, one pond input, pond routing (3), plus the points of each condition
-    n * 8 * (7 + (_study.points.len() * _study.conditions.len()) as u64)
+    // Series held at once within one condition: the gauge depths, the rain
+    // at the step, the excess, the element being computed, a pond's outflow
+    // and stage, one input per element that others drain to, and the
+    // points (reduced before the next condition).
+    let targets = study
+        .elements
+        .iter()
+        .enumerate()
+        .filter(|(j, _)| {
+            study
+                .elements
+                .iter()
+                .any(|e| matches!(e.to, Target::Element(k) if k == *j))
+        })
+        .count();
+    n * 8 * (6 + targets + study.points.len()) as u64
 }
 
 struct Stats {
