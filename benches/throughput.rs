@@ -97,3 +97,26 @@ fn size_two_dimensions_four_storms(b: divan::Bencher) {
         runnel::sizing::solve(&mut s).map(|z| z.outputs.len())
     });
 }
+
+/// A flow-duration table and curve (69 exceedance fractions) of a
+/// 10.5-million-interval series shaped like a record's flows: storms every
+/// 4 days with recessions, dry in between (invented).
+#[divan::bench(sample_count = 10)]
+fn flow_duration_10_5_million(b: divan::Bencher) {
+    let n = 10_519_200;
+    let flows: Vec<f64> = (0..n)
+        .map(|k| {
+            let phase = k % 3456;
+            if phase < 1152 {
+                let peak = 1.0 + ((k / 3456) % 17) as f64;
+                peak * (-(phase as f64) / 90.0).exp()
+            } else {
+                0.0
+            }
+        })
+        .collect();
+    let fractions: Vec<f64> = (0..69)
+        .map(|k| 10f64.powf(-4.0 + 4.0 * k as f64 / 68.0))
+        .collect();
+    b.bench_local(|| runnel::stats::flow_duration(divan::black_box(&flows), &fractions));
+}

@@ -107,7 +107,7 @@ pub fn volume_ft3(flow_cfs: &[f64], step_h: f64) -> f64 {
     if n < 2 {
         return 0.0;
     }
-    let inner: f64 = flow_cfs.iter().sum::<f64>() - 0.5 * (flow_cfs[0] + flow_cfs[n - 1]);
+    let inner: f64 = crate::stats::sum(flow_cfs) - 0.5 * (flow_cfs[0] + flow_cfs[n - 1]);
     inner * dt
 }
 

@@ -899,67 +899,83 @@ pub fn route_into(table: &PondTable, inflow_cfs: &[f64], start_stage_ft: f64, ou
     out.outflow_cfs.reserve(n);
     out.stage_ft.reserve(n);
     out.storage_ft3.reserve(n);
-    route_each(table, inflow_cfs, start_stage_ft, |o, s, h| {
-        out.outflow_cfs.push(o);
-        out.storage_ft3.push(s);
-        out.stage_ft.push(h);
-    });
+    route_each(
+        table,
+        n,
+        start_stage_ft,
+        |k| inflow_cfs.get(k).copied().unwrap_or(0.0),
+        |_, o, s, h| {
+            out.outflow_cfs.push(o);
+            out.storage_ft3.push(s);
+            out.stage_ft.push(h);
+        },
+    );
 }
 
-/// [`route_into`] without the storage series, for long records: fills the
-/// outflow (cfs) and stage (ft) buffers (cleared first) and returns the
-/// storage (ft3) at the first and the last step, which the mass balance
-/// needs; `(0, 0)` for an empty inflow.
+/// [`route_into`] for long records, without a storage series and without a
+/// separate stage buffer: `series` holds the inflow (cfs) on entry and the
+/// stage (ft) on return, each ordinate overwritten once it has been read;
+/// `outflow_cfs` is cleared and filled. Returns the storage (ft3) at the
+/// first and the last step, which the mass balance needs (`(0, 0)` for an
+/// empty series).
 ///
 /// # Formula
 /// `(I_n + I_{n+1}) + (2 S_n/dt - O_n) = (2 S_{n+1}/dt + O_{n+1})`
 /// (Bedient, Huber & Vieux eq. 4-13); I, O cfs, S ft3, dt s.
-pub fn route_stage_into(
+pub fn route_stage_in_place(
     table: &PondTable,
-    inflow_cfs: &[f64],
+    series: &mut [f64],
     start_stage_ft: f64,
     outflow_cfs: &mut Vec<f64>,
-    stage_ft: &mut Vec<f64>,
 ) -> (f64, f64) {
     outflow_cfs.clear();
-    stage_ft.clear();
-    outflow_cfs.reserve(inflow_cfs.len());
-    stage_ft.reserve(inflow_cfs.len());
+    outflow_cfs.reserve(series.len());
+    let n = series.len();
+    let cells = std::cell::Cell::from_mut(series).as_slice_of_cells();
     let mut first = None;
     let mut last = 0.0;
-    route_each(table, inflow_cfs, start_stage_ft, |o, s, h| {
-        outflow_cfs.push(o);
-        stage_ft.push(h);
-        first.get_or_insert(s);
-        last = s;
-    });
+    route_each(
+        table,
+        n,
+        start_stage_ft,
+        |k| cells.get(k).map_or(0.0, std::cell::Cell::get),
+        |k, o, s, h| {
+            outflow_cfs.push(o);
+            if let Some(c) = cells.get(k) {
+                c.set(h);
+            }
+            first.get_or_insert(s);
+            last = s;
+        },
+    );
     (first.unwrap_or(0.0), last)
 }
 
-/// The storage-indication step loop of [`route_into`]: calls `emit(outflow
-/// cfs, storage ft3, stage ft)` for the start and then once per inflow
-/// ordinate after the first.
+/// The storage-indication step loop of [`route_into`] over `n` steps:
+/// `inflow(k)` gives the inflow (cfs) at step k, read before `emit(k,
+/// outflow cfs, storage ft3, stage ft)` reports the state there.
 #[inline(always)]
 fn route_each(
     table: &PondTable,
-    inflow_cfs: &[f64],
+    n: usize,
     start_stage_ft: f64,
-    mut emit: impl FnMut(f64, f64, f64),
+    inflow: impl Fn(usize) -> f64,
+    mut emit: impl FnMut(usize, f64, f64, f64),
 ) {
-    let Some((&first, rest)) = inflow_cfs.split_first() else {
+    if n == 0 {
         return;
-    };
+    }
     let segs = table.segments.as_slice();
     let last = segs.len() - 1;
     let two_over_dt = 2.0 / table.dt_s;
+    let mut i_prev = finite_or_zero(inflow(0));
     let (mut j, h0, s0, o0) = table.state_at_stage(start_stage_ft);
-    emit(o0, s0, h0);
+    emit(0, o0, s0, h0);
 
     let x_min = segs[0].indicator_cfs;
     let mut carry = two_over_dt * s0 - o0; // 2 S_n/dt - O_n
-    let mut i_prev = finite_or_zero(first);
-    for &q in rest {
-        let i_next = finite_or_zero(q);
+    for k in 1..n {
+        let i_next = finite_or_zero(inflow(k));
         let x = (i_prev + i_next + carry).max(x_min);
         while j < last && x > segs[j + 1].indicator_cfs {
             j += 1;
@@ -971,6 +987,7 @@ fn route_each(
         let f = (x - sg.indicator_cfs) * sg.inv_d_indicator;
         let o = sg.outflow_cfs + f * sg.d_outflow_cfs;
         emit(
+            k,
             o,
             sg.storage_ft3 + f * sg.d_storage_ft3,
             sg.stage_ft + f * sg.d_stage_ft,
@@ -1775,17 +1792,18 @@ mod tests {
         );
         // The record form gives the same outflow and stage, and the storage
         // at both ends (same storage-indication step, BHV eq. 4-13).
-        let (mut q, mut h) = (Vec::new(), Vec::new());
-        let (s_first, s_last) = route_stage_into(&table, &inflow, 100.0, &mut q, &mut h);
+        let mut q = Vec::new();
+        let mut h = inflow.clone();
+        let (s_first, s_last) = route_stage_in_place(&table, &mut h, 100.0, &mut q);
         assert_eq!(q, expected.outflow_cfs);
         assert_eq!(h, expected.stage_ft);
         assert_eq!(Some(&s_first), expected.storage_ft3.first());
         assert_eq!(Some(&s_last), expected.storage_ft3.last());
         assert_eq!(
-            route_stage_into(&table, &[], 100.0, &mut q, &mut h),
+            route_stage_in_place(&table, &mut [], 100.0, &mut q),
             (0.0, 0.0)
         );
-        assert!(q.is_empty() && h.is_empty());
+        assert!(q.is_empty());
     }
 
     #[test]

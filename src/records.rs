@@ -378,7 +378,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
             };
         res.timings.rain_s += clock.elapsed().as_secs_f64();
         res.timings.intervals += n;
-        let rain_total: f64 = rain.iter().sum();
+        let rain_total = stats::sum(&rain);
         let len = n + 1;
         let month_of = |k: usize| gauge::month_of(r.start_s + k as i64 * step_s);
         let bar = (progress && n > 2_000_000).then(|| {
@@ -411,13 +411,10 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
         // Buffers are reused between elements: fresh 80-MB vectors cost
         // more in page faults than the arithmetic on them.
         let mut pool = Pool::default();
-        // Pond stage: the only series routing keeps besides the outflow.
-        let mut stage: Vec<f64> = Vec::new();
         for &c in &order {
             let cname = &study.conditions[c];
             let mut inputs: Vec<Vec<f64>> = vec![Vec::new(); study.elements.len()];
             let mut points: Vec<Vec<f64>> = vec![Vec::new(); study.points.len()];
-            let mut excess = pool.take(n);
             for i in network::order(&study.elements, c) {
                 let e = &study.elements[i];
                 let mut out = pool.take(len);
@@ -425,6 +422,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                 match &e.kind {
                     ElementKind::Catchment(cat) => {
                         let clock = std::time::Instant::now();
+                        let mut excess = pool.take(n);
                         let events = match &r.moisture {
                             MoistureMode::Event {
                                 dry_gap_h,
@@ -489,8 +487,9 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                             &o,
                             None,
                         );
-                        rec_entry.runoff_depth = o.depth(excess.iter().sum());
+                        rec_entry.runoff_depth = o.depth(stats::sum(&excess));
                         rec_entry.events = Some(events);
+                        pool.give(excess);
                     }
                     ElementKind::Inflow(inf) => {
                         // An inflow hydrograph belongs to design storms; over a record it adds nothing.
@@ -513,34 +512,36 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                     }
                     ElementKind::Pond(p) => {
                         let inflow = std::mem::take(&mut inputs[i]);
-                        let inflow = if inflow.is_empty() {
+                        let mut inflow = if inflow.is_empty() {
                             pool.take(len)
                         } else {
                             inflow
                         };
                         let dt_s = step_h * 3600.0;
                         let start = network::start_stage_ft(p);
-                        // Table up to the largest 30-day inflow volume above the start (a generous bound).
+                        // Table up to a bound on the largest 30-day inflow
+                        // volume above the start: any 30-day window lies
+                        // within two consecutive 30-day blocks.
                         let window = ((30.0 * 24.0 / step_h) as usize).max(1);
-                        let mut run = 0.0;
-                        let mut best: f64 = 0.0;
-                        for k in 0..inflow.len() {
-                            run += inflow[k];
-                            if k >= window {
-                                run -= inflow[k - window];
-                            }
-                            best = best.max(run);
-                        }
+                        let blocks: Vec<f64> = inflow.chunks(window).map(stats::sum).collect();
+                        let best = blocks
+                            .windows(2)
+                            .map(|w| w[0] + w[1])
+                            .chain(blocks.first().copied())
+                            .fold(0.0, f64::max);
                         let max_storage = p.storage.volume_ft3(start) + best * dt_s * 1.05 + 1.0;
                         let table = network::pond_table_to(p, dt_s, max_storage).map_err(|e| {
                             Error::Compute {
                                 message: format!("pond \"{}\": {e}", study.elements[i].name),
                             }
                         })?;
+                        let vin = network::volume_ft3(&inflow, step_h);
                         let clock = std::time::Instant::now();
+                        // The inflow's buffer becomes the stage series.
                         let (storage_first, storage_last) =
-                            pond::route_stage_into(&table, &inflow, start, &mut out, &mut stage);
+                            pond::route_stage_in_place(&table, &mut inflow, start, &mut out);
                         res.timings.routing_s += clock.elapsed().as_secs_f64();
+                        let mut stage = inflow;
                         let st = series_stats(&out, r.start_s, step_s, step_h);
                         let area = crate::analysis::area_to_element_ac(study, i, c);
                         rec_entry = entry(
@@ -591,7 +592,6 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                                 })
                                 .collect(),
                         );
-                        let vin = network::volume_ft3(&inflow, step_h);
                         let vout = network::volume_ft3(&out, step_h);
                         let ds = storage_last - storage_first;
                         rec_entry.mass_balance_error = Some(if vin > 0.0 {
@@ -599,7 +599,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         } else {
                             0.0
                         });
-                        pool.give(inflow);
+                        pool.give(stage);
                     }
                 }
                 res.entries.push(rec_entry);
@@ -679,13 +679,12 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                 }
                 daily_max[c][pi] = p
                     .chunks(per_day)
-                    .map(|ch| ch.iter().copied().fold(0.0, f64::max))
+                    .map(|ch| stats::max_value(ch).max(0.0))
                     .collect();
             }
             for p in points {
                 pool.give(p);
             }
-            pool.give(excess);
         }
         // Entries in the order of the conditions, as for design storms.
         res.entries[first_entry..].sort_by_key(|e| {

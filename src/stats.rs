@@ -556,10 +556,31 @@ fn duration_rank(p: f64, n: usize) -> Option<usize> {
 /// rank and recurse into each side, O(n log k) on average for k requested
 /// fractions.
 pub fn flow_duration(flows: &[f64], exceedances: &[f64]) -> Vec<f64> {
-    if flows.len() > 100_000 && flows.iter().all(|q| *q >= 0.0 && q.is_finite()) {
+    if flows.len() > 100_000 && all_finite_non_negative(flows) {
         return flow_duration_radix(flows, exceedances);
     }
     flow_duration_select(flows, exceedances)
+}
+
+/// True when every value is finite and `>= 0` (NaN fails).
+///
+/// Eight running minima and sums side by side, which vectorise: a negative
+/// value shows in the minima, a NaN or infinity in the sums (a sum that
+/// overflows also says no, which only sends the caller to the general path).
+fn all_finite_non_negative(values: &[f64]) -> bool {
+    const LANES: usize = 8;
+    let mut lo = [0.0f64; LANES];
+    let mut sum = [0.0f64; LANES];
+    let chunks = values.chunks_exact(LANES);
+    let tail = chunks.remainder();
+    for ch in chunks {
+        for ((l, s), &q) in lo.iter_mut().zip(sum.iter_mut()).zip(ch) {
+            *l = if q < *l { q } else { *l };
+            *s += q;
+        }
+    }
+    let lanes_ok = lo.iter().all(|l| *l >= 0.0) && sum.iter().all(|s| s.is_finite());
+    lanes_ok && tail.iter().all(|q| *q >= 0.0 && q.is_finite())
 }
 
 /// [`flow_duration`] by selection on a copy, for any input.
@@ -589,13 +610,23 @@ fn flow_duration_radix(flows: &[f64], exceedances: &[f64]) -> Vec<f64> {
     const BUCKETS: usize = 1 << 16;
     let n = flows.len();
     let mut out = vec![f64::NAN; exceedances.len()];
-    // Exact zeros (dry intervals, most of a long record) are counted apart.
-    let mut hist = vec![0u32; BUCKETS];
-    for q in flows {
-        if *q > 0.0 {
-            hist[(q.to_bits() >> SHIFT) as usize] += 1;
+    // Four histograms filled in turn, so that runs of equal buckets (a
+    // smooth series) do not wait on each other's counts; the sign bit is
+    // dropped, so -0.0 falls with the zeros in bucket 0, whose positive
+    // values alone are gathered below (zeros rank last).
+    const MAGNITUDE: u64 = !(1 << 63);
+    let mut hists = vec![[0u32; 4]; BUCKETS];
+    let chunks = flows.chunks_exact(4);
+    let tail = chunks.remainder();
+    for ch in chunks {
+        for (lane, q) in ch.iter().enumerate() {
+            hists[((q.to_bits() & MAGNITUDE) >> SHIFT) as usize][lane] += 1;
         }
     }
+    for q in tail {
+        hists[((q.to_bits() & MAGNITUDE) >> SHIFT) as usize][0] += 1;
+    }
+    let hist: Vec<u32> = hists.iter().map(|h| h.iter().sum()).collect();
     // Descending rank r (1-based) -> bucket and rank within the bucket.
     let mut wanted: Vec<(usize, usize)> = exceedances
         .iter()
@@ -637,12 +668,23 @@ fn flow_duration_radix(flows: &[f64], exceedances: &[f64]) -> Vec<f64> {
             groups[slot[k]].push(*q);
         }
     }
-    for (bucket, r, i) in targets {
+    // All the ranks wanted from one bucket in one multi-selection (targets
+    // are in bucket order, ranks ascending within a bucket).
+    let mut t0 = 0;
+    while t0 < targets.len() {
+        let bucket = targets[t0].0;
+        let t1 = t0 + targets[t0..].iter().take_while(|t| t.0 == bucket).count();
+        let ranks: Vec<(usize, usize)> = targets[t0..t1].iter().map(|t| (t.1, t.2)).collect();
         let g = &mut groups[slot[bucket]];
-        if let Some(k) = r.checked_sub(1).filter(|k| *k < g.len()) {
-            let (_, v, _) = g.select_nth_unstable_by(k, |a, b| b.total_cmp(a));
-            out[i] = *v;
+        let positives = g.len();
+        select_ranks(g, 1, &ranks, &mut out);
+        for &(r, i) in &ranks {
+            if bucket == 0 && r > positives {
+                // Past the positive values of the lowest bucket: a zero.
+                out[i] = 0.0;
+            }
         }
+        t0 = t1;
     }
     out
 }
@@ -762,10 +804,17 @@ pub struct AnnualMax {
 
 /// The largest non-NaN value and the index of its first occurrence (None
 /// when every value is NaN or there are none).
+pub fn max_first(values: &[f64]) -> Option<(f64, usize)> {
+    let m = max_value(values);
+    let first = values.iter().position(|&v| v == m)?;
+    Some((m, first))
+}
+
+/// The largest non-NaN value (negative infinity when there is none).
 ///
 /// Eight running maxima side by side, so that the compiler can keep them in
-/// vector registers; then one scan for the first index holding the maximum.
-pub fn max_first(values: &[f64]) -> Option<(f64, usize)> {
+/// vector registers.
+pub fn max_value(values: &[f64]) -> f64 {
     const LANES: usize = 8;
     let mut acc = [f64::NEG_INFINITY; LANES];
     let chunks = values.chunks_exact(LANES);
@@ -780,8 +829,22 @@ pub fn max_first(values: &[f64]) -> Option<(f64, usize)> {
     for &v in acc.iter().chain(tail) {
         m = if v > m { v } else { m };
     }
-    let first = values.iter().position(|&v| v == m)?;
-    Some((m, first))
+    m
+}
+
+/// The sum of the values, in eight running partial sums (which vectorise,
+/// and round no worse than one running sum).
+pub fn sum(values: &[f64]) -> f64 {
+    const LANES: usize = 8;
+    let mut acc = [0.0f64; LANES];
+    let chunks = values.chunks_exact(LANES);
+    let tail = chunks.remainder();
+    for ch in chunks {
+        for (a, &v) in acc.iter_mut().zip(ch) {
+            *a += v;
+        }
+    }
+    acc.iter().sum::<f64>() + tail.iter().sum::<f64>()
 }
 
 /// Splits a regular record into calendar years and returns each year's
@@ -850,7 +913,44 @@ mod tests {
     use approx::assert_abs_diff_eq;
     use proptest::prelude::*;
 
+    #[test]
+    fn the_fast_duration_path_takes_only_finite_non_negative_series() {
+        let mut v = vec![0.5; 1003];
+        assert!(all_finite_non_negative(&v));
+        v[17] = -0.0; // equal to zero: allowed
+        assert!(all_finite_non_negative(&v));
+        for (k, bad) in [
+            (5, -1e-300),
+            (1001, -2.0),
+            (400, f64::NAN),
+            (3, f64::INFINITY),
+        ] {
+            let mut w = v.clone();
+            w[k] = bad;
+            assert!(!all_finite_non_negative(&w), "{bad} at {k}");
+        }
+        // -0.0 in a long series ranks with the zeros, not above the flows.
+        let mut long = vec![0.0; 200_000];
+        long[7] = -0.0;
+        long[9] = 3.0;
+        assert_eq!(
+            flow_duration(&long, &[1.0 / 200_000.0, 0.5]),
+            vec![3.0, 0.0]
+        );
+    }
+
     // ---- Running maximum (no method: plain arithmetic) ----
+    #[test]
+    fn lane_sums_and_maxima_match_plain_loops() {
+        let v: Vec<f64> = (0..1_003).map(|k| ((k * 37) % 101) as f64 * 0.25).collect();
+        let plain: f64 = v.iter().sum();
+        assert_abs_diff_eq!(sum(&v), plain, epsilon = 1e-9);
+        assert_eq!(sum(&[]), 0.0);
+        assert_eq!(sum(&[1.5, 2.0]), 3.5);
+        assert_eq!(max_value(&v), 25.0);
+        assert_eq!(max_value(&[]), f64::NEG_INFINITY);
+        assert_eq!(max_value(&[f64::NAN, -3.0]), -3.0);
+    }
 
     #[test]
     fn max_first_skips_nan_and_takes_the_first_of_equal_highs() {
