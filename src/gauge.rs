@@ -315,6 +315,12 @@ struct DateCache {
     key: [u8; 10],
     days: i64,
     valid: bool,
+    /// The fast path's last `YYYY-MM-DD HH` (the first 14 bytes of a
+    /// 16-byte time) and the seconds at its minute 00: rows of one hour
+    /// then read only their minutes.
+    hour_key: [u8; 14],
+    hour_s: i64,
+    hour_valid: bool,
 }
 
 /// Parses a time field. Errors carry a message; the caller adds the line.
@@ -1164,10 +1170,27 @@ fn fast_row(text: &[u8], pos: usize, cache: &mut DateCache) -> Option<(i64, f64,
     } else {
         return None;
     };
-    let stamp = parse_time(rest.get(..time_len)?, cache).ok()?;
-    if stamp.has_offset {
-        return None;
-    }
+    let hour: Option<&[u8; 14]> = rest.get(..14).and_then(|h| h.try_into().ok());
+    let seconds = match hour {
+        Some(h) if time_len == 16 && cache.hour_valid && *h == cache.hour_key => {
+            let mm = two_digits(rest, 14).filter(|m| *m < 60)?;
+            cache.hour_s + mm * 60
+        }
+        _ => {
+            let stamp = parse_time(rest.get(..time_len)?, cache).ok()?;
+            if stamp.has_offset {
+                return None;
+            }
+            if time_len == 16
+                && let (Some(h), Some(mm)) = (hour, two_digits(rest, 14))
+            {
+                cache.hour_key = *h;
+                cache.hour_s = stamp.seconds - mm * 60;
+                cache.hour_valid = true;
+            }
+            stamp.seconds
+        }
+    };
     let mut i = time_len + 1;
     let mut mantissa: u64 = 0;
     let mut n_digits = 0usize;
@@ -1194,7 +1217,7 @@ fn fast_row(text: &[u8], pos: usize, cache: &mut DateCache) -> Option<(i64, f64,
         return None;
     }
     let p = POW10.get(frac_digits)?;
-    Some((stamp.seconds, mantissa as f64 / p, pos + end))
+    Some((seconds, mantissa as f64 / p, pos + end))
 }
 
 fn sorted_pair(a: usize, b: usize) -> Vec<usize> {

@@ -278,7 +278,7 @@ pub fn event_excess_in(
     month_of_step: &dyn Fn(usize) -> u32,
 ) -> Result<Vec<f64>, MoistureError> {
     let mut out = vec![0.0; rain_in.len()];
-    event_excess_core(rain_in, step_h, cn, lambda, opts, month_of_step, &mut out)?;
+    event_excess_into(rain_in, step_h, cn, lambda, opts, month_of_step, &mut out)?;
     Ok(out)
 }
 
@@ -302,18 +302,27 @@ pub fn event_excess_into(
         });
     }
     out.fill(0.0);
-    event_excess_core(rain_in, step_h, cn, lambda, opts, month_of_step, out)
+    event_excess_each(rain_in, step_h, cn, lambda, opts, month_of_step, |j, e| {
+        if let Some(slot) = out.get_mut(j) {
+            *slot = e;
+        }
+    })
 }
 
-/// Event computation into a buffer that already holds zeros.
-fn event_excess_core(
+/// As [`event_excess_into`], handing each rainy interval's excess (in) to
+/// `sink(interval, excess)` instead of storing a series (dry intervals have
+/// none), so that a long record's excess can go straight into its
+/// convolution. Returns the number of events.
+///
+/// On an error, some intervals may already have been handed over.
+pub fn event_excess_each(
     rain_in: &[f64],
     step_h: f64,
     cn: f64,
     lambda: Lambda,
     opts: &EventOptions,
     month_of_step: &dyn Fn(usize) -> u32,
-    out: &mut [f64],
+    mut sink: impl FnMut(usize, f64),
 ) -> Result<usize, MoistureError> {
     let window_steps =
         antecedent_window_steps(step_h).ok_or(MoistureError::InvalidStep { step_h })?;
@@ -330,7 +339,7 @@ fn event_excess_core(
     let mut s_in = s_average_in;
 
     let mut splitter = EventSplitter::new(opts.dry_gap_steps);
-    for (j, (&r, slot)) in rain_in.iter().zip(out.iter_mut()).enumerate() {
+    for (j, &r) in rain_in.iter().enumerate() {
         let Some(starts_event) = splitter.feed(j, r)? else {
             continue;
         };
@@ -354,7 +363,7 @@ fn event_excess_core(
         p_in += r;
         let q_in = runoff_depth_in(p_in, s_in, ia_ratio);
         // Q(P + r) - Q(P) lies in [0, r]; the clamp keeps rounding from leaving it.
-        *slot = (q_in - q_prev_in).max(0.0).min(r);
+        sink(j, (q_in - q_prev_in).max(0.0).min(r));
         q_prev_in = q_in;
     }
     Ok(events)

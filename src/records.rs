@@ -146,10 +146,10 @@ pub struct RecordsResult {
 pub struct Timings {
     /// Rain at the step.
     pub rain_s: f64,
-    /// Excess rainfall (moisture accounting).
-    pub excess_s: f64,
-    /// Unit-hydrograph convolution and adding into targets.
-    pub convolution_s: f64,
+    /// Excess rainfall (moisture accounting) and its unit-hydrograph
+    /// convolution, computed together one rainy interval at a time (the
+    /// benchmarks time each alone).
+    pub runoff_s: f64,
     /// Pond routing.
     pub routing_s: f64,
     /// Statistics (annual series, frequency, durations) and plot data.
@@ -203,6 +203,13 @@ impl Pool {
             }
         }
     }
+    /// A buffer of `len` values whose contents are left over from its last
+    /// use, for a caller that writes every value before reading any.
+    fn take_overwritten(&mut self, len: usize) -> Vec<f64> {
+        let mut v = self.0.pop().unwrap_or_default();
+        v.resize(len, 0.0);
+        v
+    }
     /// Returns a buffer for reuse.
     fn give(&mut self, v: Vec<f64>) {
         if v.capacity() > 0 {
@@ -237,20 +244,29 @@ struct Stats {
     peak_index: usize,
     volume_ft3: f64,
     annual: Vec<stats::AnnualMax>,
+    /// The one pass over the series, kept for its flow-duration ranking.
+    scan: stats::SeriesScan,
 }
 
+/// Peak, volume and annual maxima of a record series in one pass over it
+/// (see [`stats::scan_series`]); the volume is trapezoidal in time, as
+/// [`network::volume_ft3`].
 fn series_stats(values: &[f64], start_s: i64, step_s: i64, step_h: f64) -> Stats {
-    let (peak, peak_index) = network::peak(values);
-    let annual = if values.len() > 1 {
-        stats::annual_maxima(start_s, step_s, &values[1..])
-    } else {
-        Vec::new()
+    let scan = stats::scan_series(start_s, step_s, values);
+    let (peak, peak_index) = match scan.peak {
+        Some((v, i)) if v > 0.0 => (v, i),
+        _ => (0.0, 0),
+    };
+    let ends = match values {
+        [] | [_] => scan.sum,
+        [a, .., b] => 0.5 * (a + b),
     };
     Stats {
         peak,
         peak_index,
-        volume_ft3: network::volume_ft3(values, step_h),
-        annual,
+        volume_ft3: (scan.sum - ends) * step_h * 3600.0,
+        annual: scan.annual.clone(),
+        scan,
     }
 }
 
@@ -311,7 +327,7 @@ fn entry(
             .collect(),
         None => Vec::new(),
     };
-    let fdc = fdc.unwrap_or_else(|| stats::flow_duration(values, &EXCEEDANCES));
+    let fdc = fdc.unwrap_or_else(|| st.scan.flow_duration(values, &EXCEEDANCES));
     RecordOut {
         record: r.name.clone(),
         condition: cond.to_string(),
@@ -361,8 +377,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
         let step_s = (step_h * 3600.0).round() as i64;
         let n = (r.depth_in.len() as f64 * r.interval_h / step_h).round() as usize;
         let record_clock = std::time::Instant::now();
-        let routing_before =
-            res.timings.routing_s + res.timings.excess_s + res.timings.convolution_s;
+        let routing_before = res.timings.routing_s + res.timings.runoff_s;
         let clock = std::time::Instant::now();
         // At the gauge interval the record's own depths are the rain per step.
         let rain: std::borrow::Cow<'_, [f64]> =
@@ -417,12 +432,28 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
             let mut points: Vec<Vec<f64>> = vec![Vec::new(); study.points.len()];
             for i in network::order(&study.elements, c) {
                 let e = &study.elements[i];
-                let mut out = pool.take(len);
+                // Routing writes a pond's outflow from empty; the others add into zeros.
+                let mut out = if matches!(e.kind, ElementKind::Pond(_)) {
+                    pool.take_overwritten(0)
+                } else {
+                    pool.take(len)
+                };
                 let mut rec_entry;
                 match &e.kind {
                     ElementKind::Catchment(cat) => {
                         let clock = std::time::Instant::now();
-                        let mut excess = pool.take(n);
+                        let tp =
+                            unit_hydrograph::time_to_peak_h(step_h, crate::timing::lag_h(cat.tc_h));
+                        let uh = unit_hydrograph::ordinates_cfs_per_in(
+                            cat.shape,
+                            cat.area_ac,
+                            tp,
+                            step_h,
+                        );
+                        // Each rainy interval's excess goes straight into the
+                        // convolution (no excess series is stored), so the
+                        // two stages are timed together.
+                        let mut runoff_in = 0.0;
                         let events = match &r.moisture {
                             MoistureMode::Event {
                                 dry_gap_h,
@@ -437,14 +468,17 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                                         ..Default::default()
                                     }),
                                 };
-                                moisture::event_excess_into(
+                                moisture::event_excess_each(
                                     &rain,
                                     step_h,
                                     cat.cn,
                                     cat.lambda,
                                     &opts,
                                     &month_of,
-                                    &mut excess,
+                                    |j, e| {
+                                        runoff_in += e;
+                                        unit_hydrograph::add_response(&mut out, j, e, &uh);
+                                    },
                                 )
                                 .map_err(|e| Error::Compute {
                                     message: format!("record \"{}\": {e}", r.name),
@@ -460,18 +494,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                                 });
                             }
                         };
-                        let tp =
-                            unit_hydrograph::time_to_peak_h(step_h, crate::timing::lag_h(cat.tc_h));
-                        let uh = unit_hydrograph::ordinates_cfs_per_in(
-                            cat.shape,
-                            cat.area_ac,
-                            tp,
-                            step_h,
-                        );
-                        res.timings.excess_s += clock.elapsed().as_secs_f64();
-                        let clock = std::time::Instant::now();
-                        unit_hydrograph::convolve_into(&excess, &uh, &mut out);
-                        res.timings.convolution_s += clock.elapsed().as_secs_f64();
+                        res.timings.runoff_s += clock.elapsed().as_secs_f64();
                         let st = series_stats(&out, r.start_s, step_s, step_h);
                         rec_entry = entry(
                             r,
@@ -487,9 +510,8 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                             &o,
                             None,
                         );
-                        rec_entry.runoff_depth = o.depth(stats::sum(&excess));
+                        rec_entry.runoff_depth = o.depth(runoff_in);
                         rec_entry.events = Some(events);
-                        pool.give(excess);
                     }
                     ElementKind::Inflow(inf) => {
                         // An inflow hydrograph belongs to design storms; over a record it adds nothing.
@@ -603,21 +625,25 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                     }
                 }
                 res.entries.push(rec_entry);
-                match e.to {
-                    Target::Point(pi) => {
-                        if points[pi].is_empty() {
-                            points[pi] = pool.take(len);
+                let target = match e.to {
+                    Target::Point(pi) => points.get_mut(pi),
+                    Target::Element(j) => inputs.get_mut(j),
+                };
+                if let Some(target) = target {
+                    if target.is_empty() && e.lag_h == 0.0 && out.len() == len {
+                        // The first series into a target, unshifted: it
+                        // becomes the target's sum as it is.
+                        *target = out;
+                    } else {
+                        if target.is_empty() {
+                            *target = pool.take(len);
                         }
-                        network::add_lagged(&mut points[pi], &out, e.lag_h, step_h);
+                        network::add_lagged(target, &out, e.lag_h, step_h);
+                        pool.give(out);
                     }
-                    Target::Element(j) => {
-                        if inputs[j].is_empty() {
-                            inputs[j] = pool.take(len);
-                        }
-                        network::add_lagged(&mut inputs[j], &out, e.lag_h, step_h);
-                    }
+                } else {
+                    pool.give(out);
                 }
-                pool.give(out);
                 if let Some(b) = &bar {
                     b.inc(1);
                 }
@@ -631,7 +657,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                 // The table's fractions and the plot's, in one ranking.
                 let mut wanted = EXCEEDANCES.to_vec();
                 wanted.extend(plot_exceedances());
-                let mut all = stats::flow_duration(p, &wanted);
+                let mut all = st.scan.flow_duration(p, &wanted);
                 let curve = all.split_off(EXCEEDANCES.len());
                 point_curves.push((
                     (c, pi),
@@ -854,8 +880,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                 },
             ));
         }
-        let inner = res.timings.routing_s + res.timings.excess_s + res.timings.convolution_s
-            - routing_before;
+        let inner = res.timings.routing_s + res.timings.runoff_s - routing_before;
         res.timings.statistics_s +=
             (record_clock.elapsed().as_secs_f64() - inner - res.timings.rain_s).max(0.0);
     }

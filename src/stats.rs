@@ -606,27 +606,34 @@ fn flow_duration_select(flows: &[f64], exceedances: &[f64]) -> Vec<f64> {
 /// the numbers, so a histogram of their top 16 bits locates each rank's
 /// bucket, and only the values of those buckets are gathered and selected.
 fn flow_duration_radix(flows: &[f64], exceedances: &[f64]) -> Vec<f64> {
+    let mut hist = vec![0u32; BUCKETS];
+    for q in flows {
+        hist[bucket_of(*q)] += 1;
+    }
+    flow_duration_ranked(flows, exceedances, &hist)
+}
+
+/// Number of histogram buckets of the duration ranking (top 16 bits).
+const BUCKETS: usize = 1 << 16;
+
+/// The duration ranking's bucket of a finite non-negative value: the top
+/// 16 bits of its IEEE 754 pattern without the sign, so that -0.0 falls
+/// with the zeros in bucket 0 (whose positive values alone are gathered;
+/// zeros rank last).
+#[inline(always)]
+fn bucket_of(q: f64) -> usize {
+    const MAGNITUDE: u64 = !(1 << 63);
+    ((q.to_bits() & MAGNITUDE) >> 48) as usize
+}
+
+/// [`flow_duration_radix`] from the histogram of [`bucket_of`] over `flows`.
+fn flow_duration_ranked(flows: &[f64], exceedances: &[f64], hist: &[u32]) -> Vec<f64> {
     const SHIFT: u32 = 48;
-    const BUCKETS: usize = 1 << 16;
     let n = flows.len();
     let mut out = vec![f64::NAN; exceedances.len()];
-    // Four histograms filled in turn, so that runs of equal buckets (a
-    // smooth series) do not wait on each other's counts; the sign bit is
-    // dropped, so -0.0 falls with the zeros in bucket 0, whose positive
-    // values alone are gathered below (zeros rank last).
-    const MAGNITUDE: u64 = !(1 << 63);
-    let mut hists = vec![[0u32; 4]; BUCKETS];
-    let chunks = flows.chunks_exact(4);
-    let tail = chunks.remainder();
-    for ch in chunks {
-        for (lane, q) in ch.iter().enumerate() {
-            hists[((q.to_bits() & MAGNITUDE) >> SHIFT) as usize][lane] += 1;
-        }
+    if hist.len() != BUCKETS {
+        return flow_duration_select(flows, exceedances);
     }
-    for q in tail {
-        hists[((q.to_bits() & MAGNITUDE) >> SHIFT) as usize][0] += 1;
-    }
-    let hist: Vec<u32> = hists.iter().map(|h| h.iter().sum()).collect();
     // Descending rank r (1-based) -> bucket and rank within the bucket.
     let mut wanted: Vec<(usize, usize)> = exceedances
         .iter()
@@ -650,22 +657,22 @@ fn flow_duration_radix(flows: &[f64], exceedances: &[f64]) -> Vec<f64> {
     for &(_, i) in wanted.get(w..).unwrap_or(&[]) {
         out[i] = 0.0;
     }
-    let mut need = vec![false; BUCKETS];
-    for t in &targets {
-        need[t.0] = true;
-    }
-    let mut slot = vec![usize::MAX; BUCKETS];
+    // Per bucket: 1 + its group's index, or 0 when no rank falls in it.
+    let mut slot = vec![0u16; BUCKETS];
     let mut groups: Vec<Vec<f64>> = Vec::new();
     for t in &targets {
-        if slot[t.0] == usize::MAX {
-            slot[t.0] = groups.len();
+        if slot[t.0] == 0 {
             groups.push(Vec::with_capacity(hist[t.0] as usize));
+            slot[t.0] = u16::try_from(groups.len()).unwrap_or(u16::MAX);
         }
     }
-    for q in flows {
-        let k = (q.to_bits() >> SHIFT) as usize;
-        if *q > 0.0 && need[k] {
-            groups[slot[k]].push(*q);
+    for &q in flows {
+        let g = slot[(q.to_bits() >> SHIFT) as usize];
+        if g != 0
+            && q > 0.0
+            && let Some(group) = groups.get_mut(usize::from(g) - 1)
+        {
+            group.push(q);
         }
     }
     // All the ranks wanted from one bucket in one multi-selection (targets
@@ -675,7 +682,10 @@ fn flow_duration_radix(flows: &[f64], exceedances: &[f64]) -> Vec<f64> {
         let bucket = targets[t0].0;
         let t1 = t0 + targets[t0..].iter().take_while(|t| t.0 == bucket).count();
         let ranks: Vec<(usize, usize)> = targets[t0..t1].iter().map(|t| (t.1, t.2)).collect();
-        let g = &mut groups[slot[bucket]];
+        let Some(g) = groups.get_mut(usize::from(slot[bucket]).wrapping_sub(1)) else {
+            t0 = t1;
+            continue;
+        };
         let positives = g.len();
         select_ranks(g, 1, &ranks, &mut out);
         for &(r, i) in &ranks {
@@ -847,6 +857,129 @@ pub fn sum(values: &[f64]) -> f64 {
     acc.iter().sum::<f64>() + tail.iter().sum::<f64>()
 }
 
+/// What one pass over a long series gives: its calendar-year maxima, sum
+/// and peak, and the histogram that its flow-duration ranking needs, so
+/// that a record's series is read from memory once for all of them.
+#[derive(Debug, Clone)]
+pub struct SeriesScan {
+    /// Calendar-year maxima of `values[1..]`, as [`annual_maxima`] gives
+    /// them (value 0 is the state at the start, in no interval).
+    pub annual: Vec<AnnualMax>,
+    /// Sum of every value (NaN when one is NaN).
+    pub sum: f64,
+    /// Largest non-NaN value and the index of its first occurrence.
+    pub peak: Option<(f64, usize)>,
+    /// Histogram of [`bucket_of`], when the series is long and every value
+    /// is finite and non-negative.
+    histogram: Option<Vec<u32>>,
+}
+
+impl SeriesScan {
+    /// [`flow_duration`] of the scanned `values` (the same slice).
+    pub fn flow_duration(&self, values: &[f64], exceedances: &[f64]) -> Vec<f64> {
+        match &self.histogram {
+            Some(h) => flow_duration_ranked(values, exceedances, h),
+            None => flow_duration(values, exceedances),
+        }
+    }
+}
+
+/// Scans a regular record (`start_s`, `step_s` as for [`annual_maxima`])
+/// once; see [`SeriesScan`]. The results equal those of [`annual_maxima`]
+/// on `values[1..]`, [`sum`] and [`max_first`] on `values` (the sum up to
+/// rounding).
+pub fn scan_series(start_s: i64, step_s: i64, values: &[f64]) -> SeriesScan {
+    let Some((&first, rest)) = values.split_first() else {
+        return SeriesScan {
+            annual: Vec::new(),
+            sum: 0.0,
+            peak: None,
+            histogram: None,
+        };
+    };
+    let ranked = values.len() > 100_000;
+    let mut hist = if ranked {
+        vec![0u32; BUCKETS]
+    } else {
+        Vec::new()
+    };
+    let mut total = first;
+    let mut lowest = first;
+    let mut peak: Option<(f64, usize)> = (!first.is_nan()).then_some((first, 0));
+    if ranked {
+        hist[bucket_of(first) & (BUCKETS - 1)] += 1;
+    }
+    let mut covered = 0usize;
+    let annual = for_each_year(start_s, step_s, rest, |i0, year_values| {
+        const LANES: usize = 8;
+        let mut mx = [f64::NEG_INFINITY; LANES];
+        let mut sm = [0.0f64; LANES];
+        let mut mn = [f64::INFINITY; LANES];
+        let chunks = year_values.chunks_exact(LANES);
+        let tail = chunks.remainder();
+        for ch in chunks {
+            for (l, &v) in ch.iter().enumerate() {
+                mx[l] = if v > mx[l] { v } else { mx[l] };
+                mn[l] = if v < mn[l] { v } else { mn[l] };
+                sm[l] += v;
+                if ranked {
+                    hist[bucket_of(v) & (BUCKETS - 1)] += 1;
+                }
+            }
+        }
+        let mut m = f64::NEG_INFINITY;
+        let mut y_sum = 0.0;
+        for &v in tail {
+            m = if v > m { v } else { m };
+            lowest = if v < lowest { v } else { lowest };
+            y_sum += v;
+            if ranked {
+                hist[bucket_of(v) & (BUCKETS - 1)] += 1;
+            }
+        }
+        for l in 0..LANES {
+            m = if mx[l] > m { mx[l] } else { m };
+            lowest = if mn[l] < lowest { mn[l] } else { lowest };
+            y_sum += sm[l];
+        }
+        total += y_sum;
+        covered += year_values.len();
+        // NaN shows in the sum; only then are the values counted one by one.
+        let count = if y_sum.is_nan() {
+            year_values.iter().filter(|v| !v.is_nan()).count()
+        } else {
+            year_values.len()
+        };
+        let found = year_values.iter().position(|&v| v == m);
+        if let Some(j) = found
+            && peak.is_none_or(|(p, _)| m > p)
+        {
+            peak = Some((m, 1 + i0 + j));
+        }
+        match found {
+            Some(j) if count > 0 => (m, i0 + j, count),
+            _ => (f64::NAN, i0, 0),
+        }
+    });
+    let whole = covered == rest.len();
+    if !whole {
+        // A record whose times overflow the calendar: plain passes.
+        return SeriesScan {
+            annual,
+            sum: sum(values),
+            peak: max_first(values),
+            histogram: None,
+        };
+    }
+    let usable = ranked && lowest >= 0.0 && total.is_finite();
+    SeriesScan {
+        annual,
+        sum: total,
+        peak,
+        histogram: usable.then_some(hist),
+    }
+}
+
 /// Splits a regular record into calendar years and returns each year's
 /// maximum.
 ///
@@ -862,6 +995,25 @@ pub fn sum(values: &[f64]) -> f64 {
 /// Returns an empty vector for `step_s <= 0` or no values. Runs in one pass
 /// over the values with one calendar conversion per year.
 pub fn annual_maxima(start_s: i64, step_s: i64, values: &[f64]) -> Vec<AnnualMax> {
+    for_each_year(start_s, step_s, values, |i0, year_values| {
+        let count = year_values.len() - year_values.iter().filter(|v| v.is_nan()).count();
+        match max_first(year_values) {
+            Some((v, j)) if count > 0 => (v, i0 + j, count),
+            _ => (f64::NAN, i0, 0),
+        }
+    })
+}
+
+/// The calendar-year split of [`annual_maxima`]: calls `year(first index,
+/// the year's values)`, which returns (peak, peak index, non-NaN count),
+/// for each year in order. Stops early (leaving the rest uncovered) only
+/// when a time overflows.
+fn for_each_year(
+    start_s: i64,
+    step_s: i64,
+    values: &[f64],
+    mut year: impl FnMut(usize, &[f64]) -> (f64, usize, usize),
+) -> Vec<AnnualMax> {
     let mut out = Vec::new();
     if step_s <= 0 || values.is_empty() {
         return out;
@@ -877,26 +1029,21 @@ pub fn annual_maxima(start_s: i64, step_s: i64, values: &[f64]) -> Vec<AnnualMax
         let Ok(t0_s) = i64::try_from(t0) else {
             break;
         };
-        let (year, _, _) = civil_from_days(t0_s.div_euclid(86_400));
-        let year_start = i128::from(days_from_civil(year, 1, 1)) * DAY_S;
-        let next_start = if year == i32::MAX {
+        let (y, _, _) = civil_from_days(t0_s.div_euclid(86_400));
+        let year_start = i128::from(days_from_civil(y, 1, 1)) * DAY_S;
+        let next_start = if y == i32::MAX {
             i128::MAX / 4
         } else {
-            i128::from(days_from_civil(year + 1, 1, 1)) * DAY_S
+            i128::from(days_from_civil(y + 1, 1, 1)) * DAY_S
         };
         let k_first = ceil_div(year_start - start, step);
         let k_next = ceil_div(next_start - start, step);
         let expected = usize::try_from((k_next - k_first).max(0)).unwrap_or(usize::MAX);
         // k_next > i0 because interval i0 starts before next_start.
         let i1 = usize::try_from(k_next.clamp(i0 as i128 + 1, n as i128)).unwrap_or(n);
-        let year_values = values.get(i0..i1).unwrap_or(&[]);
-        let count = year_values.len() - year_values.iter().filter(|v| v.is_nan()).count();
-        let (peak, peak_index) = match max_first(year_values) {
-            Some((v, j)) if count > 0 => (v, i0 + j),
-            _ => (f64::NAN, i0),
-        };
+        let (peak, peak_index, count) = year(i0, values.get(i0..i1).unwrap_or(&[]));
         out.push(AnnualMax {
-            year,
+            year: y,
             peak,
             peak_index,
             intervals: count,
@@ -937,6 +1084,77 @@ mod tests {
             flow_duration(&long, &[1.0 / 200_000.0, 0.5]),
             vec![3.0, 0.0]
         );
+    }
+
+    // ---- One-pass scan (the same results as the separate passes) ----
+
+    fn assert_scan_matches(start_s: i64, step_s: i64, v: &[f64]) {
+        let scan = scan_series(start_s, step_s, v);
+        let annual = if v.len() > 1 {
+            annual_maxima(start_s, step_s, &v[1..])
+        } else {
+            Vec::new()
+        };
+        assert_eq!(scan.annual.len(), annual.len());
+        for (a, b) in scan.annual.iter().zip(&annual) {
+            assert_eq!(
+                (a.year, a.peak_index, a.intervals),
+                (b.year, b.peak_index, b.intervals)
+            );
+            assert!(a.peak == b.peak || (a.peak.is_nan() && b.peak.is_nan()));
+        }
+        assert_eq!(scan.peak, max_first(v));
+        let plain = sum(v);
+        assert!(
+            (scan.sum - plain).abs() <= 1e-9 * plain.abs().max(1.0)
+                || (scan.sum.is_nan() && plain.is_nan())
+        );
+        let fractions = [0.0001, 0.001, 0.01, 0.1, 0.5, 0.9];
+        let a = scan.flow_duration(v, &fractions);
+        let b = flow_duration(v, &fractions);
+        assert!(
+            a.iter()
+                .zip(&b)
+                .all(|(x, y)| x == y || (x.is_nan() && y.is_nan()))
+        );
+    }
+
+    #[test]
+    fn one_pass_scan_matches_the_separate_passes_on_long_series() {
+        // Three years of 5-minute values from 2003 (invented recessions).
+        let start = days_from_civil(2003, 1, 1) * 86_400;
+        let n = 3 * 105_120 + 5;
+        let mut v: Vec<f64> = (0..n)
+            .map(|k| {
+                let phase = k % 2_000;
+                if phase < 600 {
+                    3.0 * (-(phase as f64) / 80.0).exp()
+                } else {
+                    0.0
+                }
+            })
+            .collect();
+        assert_scan_matches(start, 300, &v);
+        assert!(scan_series(start, 300, &v).histogram.is_some());
+        v[7] = -0.0;
+        assert_scan_matches(start, 300, &v);
+        v[150_000] = f64::NAN; // a missing value: counted out of its year
+        assert_scan_matches(start, 300, &v);
+        assert!(scan_series(start, 300, &v).histogram.is_none());
+        v[150_000] = -1.0;
+        assert_scan_matches(start, 300, &v);
+        assert_scan_matches(start, 0, &v); // no calendar: plain passes
+    }
+
+    proptest! {
+        #[test]
+        fn one_pass_scan_matches_the_separate_passes(
+            v in proptest::collection::vec(prop_oneof![Just(f64::NAN), Just(0.0), 0.0f64..50.0, -5.0f64..5.0], 0..400),
+            start_day in -30_000i64..30_000,
+            step_s in prop_oneof![Just(3_600i64), Just(86_400 * 7), Just(900)],
+        ) {
+            assert_scan_matches(start_day * 86_400, step_s, &v);
+        }
     }
 
     // ---- Running maximum (no method: plain arithmetic) ----

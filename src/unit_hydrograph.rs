@@ -225,15 +225,24 @@ pub fn convolve(excess_in: &[f64], uh_cfs_per_in: &[f64], n_steps: usize) -> Vec
 
 /// [`convolve`] adding into a caller's buffer.
 pub fn convolve_into(excess_in: &[f64], uh_cfs_per_in: &[f64], q: &mut [f64]) {
-    let n = q.len();
     for (j, &e) in excess_in.iter().enumerate() {
-        if e == 0.0 || j >= n {
-            continue;
-        }
-        let end = (n - j).min(uh_cfs_per_in.len());
-        for (qv, &u) in q[j..j + end].iter_mut().zip(&uh_cfs_per_in[..end]) {
-            *qv += e * u;
-        }
+        add_response(q, j, e, uh_cfs_per_in);
+    }
+}
+
+/// Adds the response to `excess_in` (in) of interval `j` into the flows
+/// `q` (cfs): `q[j + k] += excess_in * U_k` for every ordinate that falls
+/// within `q`; nothing for zero excess. One term of [`convolve_into`].
+#[inline]
+pub fn add_response(q: &mut [f64], j: usize, excess_in: f64, uh_cfs_per_in: &[f64]) {
+    if excess_in == 0.0 {
+        return;
+    }
+    let Some(tail) = q.get_mut(j..) else {
+        return;
+    };
+    for (qv, &u) in tail.iter_mut().zip(uh_cfs_per_in) {
+        *qv += excess_in * u;
     }
 }
 

@@ -99,13 +99,11 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
             }
         };
         eprintln!(
-            "timings: load and read {t_load:.3} s = {}; records {t_records:.3} s (rain {:.3} s, excess {:.3} s = {}, convolution {:.3} s = {}, routing {:.3} s = {}, statistics {:.3} s = {}); report {:.3} s",
+            "timings: load and read {t_load:.3} s = {}; records {t_records:.3} s (rain {:.3} s, excess and convolution {:.3} s = {}, routing {:.3} s = {}, statistics {:.3} s = {}); report {:.3} s",
             per(t_load),
             t.rain_s,
-            t.excess_s,
-            per(t.excess_s),
-            t.convolution_s,
-            per(t.convolution_s),
+            t.runoff_s,
+            per(t.runoff_s),
             t.routing_s,
             per(t.routing_s),
             t.statistics_s,
