@@ -961,7 +961,7 @@ impl RowState {
             .collect()
     }
 
-    #[inline]
+    #[inline(always)]
     fn commit(&mut self, t: i64, has_offset: bool, v: f64, line_no: usize) {
         let n = self.depth.len();
         if n == 0 || line_no != self.prev_line + 1 {

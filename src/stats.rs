@@ -606,11 +606,33 @@ fn flow_duration_select(flows: &[f64], exceedances: &[f64]) -> Vec<f64> {
 /// the numbers, so a histogram of their top 16 bits locates each rank's
 /// bucket, and only the values of those buckets are gathered and selected.
 fn flow_duration_radix(flows: &[f64], exceedances: &[f64]) -> Vec<f64> {
-    let mut hist = vec![0u32; BUCKETS];
-    for q in flows {
-        hist[bucket_of(*q)] += 1;
+    let mut counts = Counts::new();
+    for (k, q) in flows.iter().enumerate() {
+        counts.add(k, *q);
     }
-    flow_duration_ranked(flows, exceedances, &hist)
+    flow_duration_ranked(flows, exceedances, &counts.total())
+}
+
+/// The duration histogram being filled: four counts per bucket, taken in
+/// turn, so that a run of values in one bucket (a smooth series) does not
+/// wait on its own last count.
+struct Counts(Vec<[u32; 4]>);
+
+impl Counts {
+    fn new() -> Self {
+        Counts(vec![[0; 4]; BUCKETS])
+    }
+    /// Counts value number `k` of the series, `q`.
+    #[inline(always)]
+    fn add(&mut self, k: usize, q: f64) {
+        if let Some(c) = self.0.get_mut(bucket_of(q)) {
+            c[k & 3] += 1;
+        }
+    }
+    /// One count per bucket.
+    fn total(&self) -> Vec<u32> {
+        self.0.iter().map(|c| c.iter().sum()).collect()
+    }
 }
 
 /// Number of histogram buckets of the duration ranking (top 16 bits).
@@ -898,16 +920,12 @@ pub fn scan_series(start_s: i64, step_s: i64, values: &[f64]) -> SeriesScan {
         };
     };
     let ranked = values.len() > 100_000;
-    let mut hist = if ranked {
-        vec![0u32; BUCKETS]
-    } else {
-        Vec::new()
-    };
+    let mut counts = ranked.then(Counts::new);
     let mut total = first;
     let mut lowest = first;
     let mut peak: Option<(f64, usize)> = (!first.is_nan()).then_some((first, 0));
-    if ranked {
-        hist[bucket_of(first) & (BUCKETS - 1)] += 1;
+    if let Some(c) = counts.as_mut() {
+        c.add(0, first);
     }
     let mut covered = 0usize;
     let annual = for_each_year(start_s, step_s, rest, |i0, year_values| {
@@ -922,8 +940,8 @@ pub fn scan_series(start_s: i64, step_s: i64, values: &[f64]) -> SeriesScan {
                 mx[l] = if v > mx[l] { v } else { mx[l] };
                 mn[l] = if v < mn[l] { v } else { mn[l] };
                 sm[l] += v;
-                if ranked {
-                    hist[bucket_of(v) & (BUCKETS - 1)] += 1;
+                if let Some(c) = counts.as_mut() {
+                    c.add(l, v);
                 }
             }
         }
@@ -933,8 +951,8 @@ pub fn scan_series(start_s: i64, step_s: i64, values: &[f64]) -> SeriesScan {
             m = if v > m { v } else { m };
             lowest = if v < lowest { v } else { lowest };
             y_sum += v;
-            if ranked {
-                hist[bucket_of(v) & (BUCKETS - 1)] += 1;
+            if let Some(c) = counts.as_mut() {
+                c.add(0, v);
             }
         }
         for l in 0..LANES {
@@ -976,7 +994,7 @@ pub fn scan_series(start_s: i64, step_s: i64, values: &[f64]) -> SeriesScan {
         annual,
         sum: total,
         peak,
-        histogram: usable.then_some(hist),
+        histogram: counts.filter(|_| usable).map(|c| c.total()),
     }
 }
 
