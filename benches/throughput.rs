@@ -134,15 +134,20 @@ fn record_rain() -> Vec<f64> {
         .collect()
 }
 
+/// Events split by 6 h of dry 5-minute intervals, no antecedent adjustment.
+fn six_hour_events() -> runnel::moisture::EventOptions {
+    runnel::moisture::EventOptions {
+        dry_gap_steps: 72,
+        antecedent: None,
+    }
+}
+
 /// Event curve-number excess over 10.5 million 5-minute intervals (the
 /// long record's excess stage alone).
 #[divan::bench(sample_count = 10)]
 fn event_excess_10_5_million(b: divan::Bencher) {
     let rain = record_rain();
-    let opts = runnel::moisture::EventOptions {
-        dry_gap_steps: 72,
-        antecedent: None,
-    };
+    let opts = six_hour_events();
     let mut out = vec![0.0; rain.len()];
     b.bench_local(|| {
         runnel::moisture::event_excess_into(
@@ -162,10 +167,7 @@ fn event_excess_10_5_million(b: divan::Bencher) {
 #[divan::bench(sample_count = 10)]
 fn convolution_10_5_million(b: divan::Bencher) {
     let rain = record_rain();
-    let opts = runnel::moisture::EventOptions {
-        dry_gap_steps: 72,
-        antecedent: None,
-    };
+    let opts = six_hour_events();
     let excess = runnel::moisture::event_excess_in(
         &rain,
         5.0 / 60.0,

@@ -622,25 +622,8 @@ pub fn parse_gauge_reader<R: std::io::Read>(
     loop {
         // Fill up to a chunk (or to the end of the source).
         while !eof && buf.len() < CHUNK_BYTES {
-            let old = buf.len();
-            buf.resize(CHUNK_BYTES, 0);
-            match reader.read(&mut buf[old..]) {
-                Ok(0) => {
-                    buf.truncate(old);
-                    eof = true;
-                }
-                Ok(k) => buf.truncate(old + k),
-                Err(e) if e.kind() == std::io::ErrorKind::Interrupted => buf.truncate(old),
-                Err(e) => {
-                    return Err(GaugeError::new(
-                        K::Unreadable,
-                        lines_before,
-                        None,
-                        format!("reading stopped after line {lines_before}: {e}"),
-                        "a readable file",
-                    ));
-                }
-            }
+            let want = CHUNK_BYTES - buf.len();
+            eof = read_more(&mut reader, &mut buf, want, lines_before)?;
         }
         let skip = if first_chunk && buf.starts_with(b"\xEF\xBB\xBF") {
             3
@@ -656,25 +639,7 @@ pub fn parse_gauge_reader<R: std::io::Read>(
                 Some(i) => i + 1,
                 None => {
                     // A line longer than the chunk: read on.
-                    buf.reserve(CHUNK_BYTES);
-                    let old = buf.len();
-                    buf.resize(old + CHUNK_BYTES, 0);
-                    match reader.read(&mut buf[old..]) {
-                        Ok(0) => {
-                            buf.truncate(old);
-                            eof = true;
-                        }
-                        Ok(k) => buf.truncate(old + k),
-                        Err(e) => {
-                            return Err(GaugeError::new(
-                                K::Unreadable,
-                                lines_before,
-                                None,
-                                format!("reading stopped after line {lines_before}: {e}"),
-                                "a readable file",
-                            ));
-                        }
-                    }
+                    eof = read_more(&mut reader, &mut buf, CHUNK_BYTES, lines_before)?;
                     continue;
                 }
             }
@@ -753,6 +718,38 @@ pub fn parse_gauge_reader<R: std::io::Read>(
         ));
     };
     finish(row_state, header_line, opts)
+}
+
+/// Appends what one read of at most `want` bytes gives to `buf`; true at
+/// the end of the source (an interrupted read reads nothing and is not the
+/// end). `lines_before` words the error.
+fn read_more<R: std::io::Read>(
+    reader: &mut R,
+    buf: &mut Vec<u8>,
+    want: usize,
+    lines_before: usize,
+) -> Result<bool, GaugeError> {
+    let old = buf.len();
+    buf.resize(old + want.max(1), 0);
+    match reader.read(&mut buf[old..]) {
+        Ok(k) => {
+            buf.truncate(old + k);
+            Ok(k == 0)
+        }
+        Err(e) => {
+            buf.truncate(old);
+            if e.kind() == std::io::ErrorKind::Interrupted {
+                return Ok(false);
+            }
+            Err(GaugeError::new(
+                GaugeErrorKind::Unreadable,
+                lines_before,
+                None,
+                format!("reading stopped after line {lines_before}: {e}"),
+                "a readable file",
+            ))
+        }
+    }
 }
 
 /// The checks and filling that need every row: the interval, the gaps,
