@@ -42,6 +42,34 @@ fn previous_results(parent: &Path) -> PathBuf {
     out
 }
 
+/// True when this process ignores SIGINT, which its children then inherit
+/// (a test harness started as a background job of a non-interactive shell
+/// runs that way). Linux only; elsewhere false.
+fn interrupt_ignored() -> bool {
+    std::fs::read_to_string("/proc/self/status")
+        .ok()
+        .and_then(|s| {
+            s.lines()
+                .find_map(|l| l.strip_prefix("SigIgn:"))
+                .and_then(|m| u64::from_str_radix(m.trim(), 16).ok())
+        })
+        .is_some_and(|mask| mask & (1 << (2 - 1)) != 0)
+}
+
+/// The runnel command, with SIGINT set back to its default action when this
+/// process ignores it (by GNU env's `--default-signal`), so that the test
+/// interrupts runnel as Ctrl-C would in a terminal.
+fn runnel_with_default_interrupt() -> Command {
+    if interrupt_ignored() {
+        let mut c = Command::new("env");
+        c.arg("--default-signal=INT")
+            .arg(env!("CARGO_BIN_EXE_runnel"));
+        c
+    } else {
+        Command::new(env!("CARGO_BIN_EXE_runnel"))
+    }
+}
+
 #[derive(Debug, Clone, Copy)]
 enum Stop {
     /// `Child::kill()`: SIGKILL, no chance to clean up.
@@ -58,7 +86,7 @@ fn stop_part_way(stop: Stop, after_ms: u64) {
     let before = snapshot(tmp.path());
     let summary = std::fs::read(out.join("summary.json")).unwrap_or_else(|e| panic!("{e}"));
 
-    let mut child = Command::new(env!("CARGO_BIN_EXE_runnel"))
+    let mut child = runnel_with_default_interrupt()
         .arg("run")
         .arg(root().join("tests/data/slow.toml"))
         .arg("--out")
