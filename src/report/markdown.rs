@@ -354,7 +354,12 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
                     .map(|d| f(d, 1))
                     .unwrap_or_else(|| "not within run".into()),
                 ev.mass_balance_error
-                    .map(|x| format!("{:.4} %", x * 100.0))
+                    .map(|x| {
+                        // Rounding noise on either side of zero prints as 0.
+                        let pct = x * 100.0;
+                        let pct = if pct.abs() < 0.00005 { 0.0 } else { pct };
+                        format!("{pct:.4} %")
+                    })
                     .unwrap_or_default()
             );
         }
