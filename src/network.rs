@@ -102,13 +102,15 @@ pub fn peak(values: &[f64]) -> (f64, usize) {
 
 /// Volume of a hydrograph (ft3), trapezoidal in time.
 pub fn volume_ft3(flow_cfs: &[f64], step_h: f64) -> f64 {
-    let dt = step_h * 3600.0;
-    let n = flow_cfs.len();
-    if n < 2 {
-        return 0.0;
+    volume_from_sum_ft3(crate::stats::sum(flow_cfs), flow_cfs, step_h)
+}
+
+/// [`volume_ft3`] from the already known sum of the same `flow_cfs`.
+pub fn volume_from_sum_ft3(sum_cfs: f64, flow_cfs: &[f64], step_h: f64) -> f64 {
+    match flow_cfs {
+        [first, .., last] => (sum_cfs - 0.5 * (first + last)) * (step_h * 3600.0),
+        _ => 0.0,
     }
-    let inner: f64 = crate::stats::sum(flow_cfs) - 0.5 * (flow_cfs[0] + flow_cfs[n - 1]);
-    inner * dt
 }
 
 /// The starting stage of a pond: `start`, else the lowest outlet, else the bottom.

@@ -243,29 +243,23 @@ struct Stats {
     peak: f64,
     peak_index: usize,
     volume_ft3: f64,
-    annual: Vec<stats::AnnualMax>,
-    /// The one pass over the series, kept for its flow-duration ranking.
+    /// The one pass over the series: annual maxima, and the histogram for
+    /// its flow-duration ranking.
     scan: stats::SeriesScan,
 }
 
 /// Peak, volume and annual maxima of a record series in one pass over it
-/// (see [`stats::scan_series`]); the volume is trapezoidal in time, as
-/// [`network::volume_ft3`].
+/// (see [`stats::scan_series`]).
 fn series_stats(values: &[f64], start_s: i64, step_s: i64, step_h: f64) -> Stats {
     let scan = stats::scan_series(start_s, step_s, values);
     let (peak, peak_index) = match scan.peak {
         Some((v, i)) if v > 0.0 => (v, i),
         _ => (0.0, 0),
     };
-    let ends = match values {
-        [] | [_] => scan.sum,
-        [a, .., b] => 0.5 * (a + b),
-    };
     Stats {
         peak,
         peak_index,
-        volume_ft3: (scan.sum - ends) * step_h * 3600.0,
-        annual: scan.annual.clone(),
+        volume_ft3: network::volume_from_sum_ft3(scan.sum, values, step_h),
         scan,
     }
 }
@@ -301,7 +295,7 @@ fn entry(
     let mut incomplete = Vec::new();
     let mut zero = Vec::new();
     let mut fit_values = Vec::new();
-    for a in &st.annual {
+    for a in &st.scan.annual {
         if (a.intervals as f64) < 0.9 * a.expected_intervals as f64 {
             incomplete.push(a.year);
             continue;

@@ -6,16 +6,25 @@ use runnel::rainfall::NrcsType;
 use runnel::runoff;
 use runnel::unit_hydrograph::{self, Shape};
 
-/// Hydrograph peak (cfs) of one catchment in a Type II storm, step by the contract rule.
-fn hydrograph_peak(area_ac: f64, cn: f64, tc_h: f64, depth_in: f64) -> f64 {
+/// Hydrograph (cfs) of one catchment in a Type II storm, with its step (h)
+/// by the contract rule.
+fn hydrograph(area_ac: f64, cn: f64, tc_h: f64, depth_in: f64) -> (Vec<f64>, f64) {
     let step_h = runnel::scenario::default_step_h(tc_h);
     let n = ((24.0 + 10.0 * tc_h + 2.0) / step_h).ceil() as usize;
     let rain = runnel::rainfall::hyetograph(&NrcsType::II.mass_curve(), depth_in, 24.0, step_h, n);
     let excess = runoff::excess_per_step_in(&rain, runoff::retention_in(cn), 0.2);
     let tp = unit_hydrograph::time_to_peak_h(step_h, 0.6 * tc_h);
     let uh = unit_hydrograph::ordinates_cfs_per_in(Shape::Standard, area_ac, tp, step_h);
-    let q = unit_hydrograph::convolve(&excess, &uh, n + 1);
-    q.iter().copied().fold(0.0, f64::max)
+    (unit_hydrograph::convolve(&excess, &uh, n + 1), step_h)
+}
+
+/// Hydrograph peak (cfs) of one catchment in a Type II storm.
+fn hydrograph_peak(area_ac: f64, cn: f64, tc_h: f64, depth_in: f64) -> f64 {
+    hydrograph(area_ac, cn, tc_h, depth_in)
+        .0
+        .iter()
+        .copied()
+        .fold(0.0, f64::max)
 }
 
 #[test]
@@ -65,13 +74,7 @@ fn hydrograph_volume_equals_runoff_depth_over_the_area() {
         (80.0, 72.0, 0.6, 5.5),
         (640.0, 61.0, 1.8, 8.0),
     ] {
-        let step_h = runnel::scenario::default_step_h(tc);
-        let n = ((24.0 + 10.0 * tc + 2.0) / step_h).ceil() as usize;
-        let rain = runnel::rainfall::hyetograph(&NrcsType::II.mass_curve(), p, 24.0, step_h, n);
-        let excess = runoff::excess_per_step_in(&rain, runoff::retention_in(cn), 0.2);
-        let tp = unit_hydrograph::time_to_peak_h(step_h, 0.6 * tc);
-        let uh = unit_hydrograph::ordinates_cfs_per_in(Shape::Standard, area, tp, step_h);
-        let q = unit_hydrograph::convolve(&excess, &uh, n + 1);
+        let (q, step_h) = hydrograph(area, cn, tc, p);
         let vol = runnel::network::volume_ft3(&q, step_h);
         let want =
             runoff::runoff_depth_in(p, runoff::retention_in(cn), 0.2) / 12.0 * area * 43_560.0;

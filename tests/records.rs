@@ -116,6 +116,15 @@ fn storms_further_apart_than_the_dry_gap_are_separate_events_and_closer_ones_one
     }
 }
 
+/// `field` of every object in a JSON list, as numbers.
+fn column(list: &serde_json::Value, field: &str) -> Vec<f64> {
+    list.as_array()
+        .into_iter()
+        .flatten()
+        .map(|x| num(&x[field]))
+        .collect()
+}
+
 #[test]
 fn the_shipped_record_gives_monotone_statistics_and_holds_its_mass() {
     let (_, s, _d) = run_scenario(&example("wrenfield-commons.toml"));
@@ -123,24 +132,14 @@ fn the_shipped_record_gives_monotone_statistics_and_holds_its_mass() {
     assert_eq!(recs.len(), 7);
     for r in &recs {
         // Flow-duration curve: flow never rises as the exceedance grows.
-        let fd: Vec<f64> = r["flow_duration"]
-            .as_array()
-            .into_iter()
-            .flatten()
-            .map(|x| num(&x["flow"]))
-            .collect();
+        let fd = column(&r["flow_duration"], "flow");
         assert!(
             fd.windows(2).all(|w| w[1] <= w[0] + 1e-12),
             "{}",
             r["element"]
         );
         // Frequency curve grows with return period.
-        let fq: Vec<f64> = r["frequency"]
-            .as_array()
-            .into_iter()
-            .flatten()
-            .map(|x| num(&x["flow"]))
-            .collect();
+        let fq = column(&r["frequency"], "flow");
         assert!(fq.windows(2).all(|w| w[1] >= w[0]), "{}", r["element"]);
         assert_eq!(r["annual_peaks"].as_array().map(Vec::len), Some(30));
         if r["kind"] == "pond" {
@@ -301,11 +300,8 @@ fn a_twenty_year_record_agrees_with_an_independent_implementation() {
             }
         }
         if b["kind"] == "pond" {
-            let highest = a["annual_max_stage"]
-                .as_array()
+            let highest = column(&a["annual_max_stage"], "peak_stage")
                 .into_iter()
-                .flatten()
-                .map(|x| num(&x["peak_stage"]))
                 .fold(f64::NEG_INFINITY, f64::max);
             assert!(
                 (highest - num(&b["peak_stage"])).abs() < 0.01,
