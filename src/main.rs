@@ -3,7 +3,7 @@
 #![forbid(unsafe_code)]
 
 use clap::{Parser, Subcommand};
-use std::io::IsTerminal;
+use std::io::{IsTerminal, Write};
 use std::path::PathBuf;
 use std::process::ExitCode;
 
@@ -38,19 +38,54 @@ enum Command {
         /// The scenario TOML file.
         scenario: PathBuf,
     },
-    /// Write a commented starter scenario and a small rainfall CSV.
+    /// Write a commented starter scenario and a small rainfall CSV (never over an existing file).
     Init {
         /// Folder to write into.
         #[arg(default_value = ".")]
         dir: PathBuf,
-        /// Overwrite existing files.
-        #[arg(long)]
-        force: bool,
     },
+}
+
+/// Standard output and error that stop quietly when the reader has gone
+/// (`runnel run x.toml | head`): a closed pipe is not an error of the run,
+/// whose results are already written and whose exit code still holds.
+struct Console {
+    out_closed: bool,
+    err_closed: bool,
+}
+
+impl Console {
+    fn out(&mut self, text: &str) {
+        if !self.out_closed {
+            let mut o = std::io::stdout().lock();
+            if o.write_all(text.as_bytes())
+                .and_then(|()| o.flush())
+                .is_err()
+            {
+                self.out_closed = true;
+            }
+        }
+    }
+
+    fn err(&mut self, text: &str) {
+        if !self.err_closed {
+            let mut e = std::io::stderr().lock();
+            if e.write_all(text.as_bytes())
+                .and_then(|()| e.flush())
+                .is_err()
+            {
+                self.err_closed = true;
+            }
+        }
+    }
 }
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
+    let mut con = Console {
+        out_closed: false,
+        err_closed: false,
+    };
     let result = match cli.command {
         Command::Run {
             scenario,
@@ -62,29 +97,35 @@ fn main() -> ExitCode {
             !quiet && std::io::stderr().is_terminal(),
         )
         .map(|o| {
+            let mut text = String::new();
             for l in &o.lines {
-                println!("{l}");
+                text.push_str(l);
+                text.push('\n');
             }
-            println!("results written to {}", o.out_dir.display());
+            text.push_str(&format!("results written to {}\n", o.out_dir.display()));
+            con.out(&text);
             for w in &o.warnings {
-                eprintln!("warning: {w}");
+                con.err(&format!("warning: {w}\n"));
+            }
+            if let Some(t) = &o.timings {
+                con.err(&format!("{t}\n"));
             }
             if o.failed { 1 } else { 0 }
         }),
         Command::Check { scenario } => runnel::cli::check(&scenario).map(|(text, warnings)| {
-            print!("{text}");
+            con.out(&text);
             for w in &warnings {
-                eprintln!("warning: {w}");
+                con.err(&format!("warning: {w}\n"));
             }
             0
         }),
         Command::Estimate { scenario } => runnel::cli::estimate(&scenario).map(|text| {
-            print!("{text}");
+            con.out(&text);
             0
         }),
-        Command::Init { dir, force } => runnel::cli::init(&dir, force).map(|files| {
+        Command::Init { dir } => runnel::cli::init(&dir).map(|files| {
             for f in files {
-                println!("wrote {}", f.display());
+                con.out(&format!("wrote {}\n", f.display()));
             }
             0
         }),
@@ -92,7 +133,7 @@ fn main() -> ExitCode {
     match result {
         Ok(code) => ExitCode::from(code),
         Err(e) => {
-            eprintln!("error: {e}");
+            con.err(&format!("error: {e}\n"));
             ExitCode::from(e.exit_code() as u8)
         }
     }

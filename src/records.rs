@@ -845,11 +845,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
             }
             let (y, mo, d) = gauge::civil_from_days(r.start_s.div_euclid(86_400));
             let title = format!("{} - record \"{}\"", pt.name, r.name);
-            let base = format!(
-                "record-{}-{}",
-                output::slug(&r.name),
-                output::slug(&pt.name)
-            );
+            let base = output::record_plot_base(&r.name, &pt.name);
             res.plots.push((
                 format!("record {} at {}", r.name, pt.name),
                 base,

@@ -441,7 +441,7 @@ pub fn sized_scenario_text(study: &Study, out_dir: &Path, _scenario: &Path) -> S
     for (span, path) in &study.provenance.path_spans {
         let abs = std::fs::canonicalize(path).unwrap_or_else(|_| path.clone());
         let rel = relative(&abs, &base).unwrap_or(abs);
-        edits.push((span.clone(), format!("{:?}", rel.display().to_string())));
+        edits.push((span.clone(), toml_string(&rel.to_string_lossy())));
     }
     edits.sort_by_key(|e| std::cmp::Reverse(e.0.start));
     let mut out = text.clone();
@@ -457,6 +457,26 @@ pub fn sized_scenario_text(study: &Study, out_dir: &Path, _scenario: &Path) -> S
         "# Written by runnel {} with every sized outlet dimension fixed at its chosen value.\n{out}",
         env!("CARGO_PKG_VERSION")
     )
+}
+
+/// `s` as a TOML basic string: `"` and `\\` escaped, control characters as
+/// `\\uXXXX` (or their short escapes), every other character as it is.
+pub fn toml_string(s: &str) -> String {
+    let mut out = String::with_capacity(s.len() + 2);
+    out.push('"');
+    for c in s.chars() {
+        match c {
+            '"' => out.push_str("\\\""),
+            '\\' => out.push_str("\\\\"),
+            '\n' => out.push_str("\\n"),
+            '\t' => out.push_str("\\t"),
+            '\r' => out.push_str("\\r"),
+            c if c.is_control() => out.push_str(&format!("\\u{:04X}", c as u32)),
+            c => out.push(c),
+        }
+    }
+    out.push('"');
+    out
 }
 
 /// `path` relative to `base` (both absolute).

@@ -109,6 +109,12 @@ const CASES: &[Case] = &[
     case("baseline-no-elements", LineCol(4, 12), &["baseline", "\"predevelopment\"", "never reaches a point"]),
     case("condition-list-empty", LineCol(20, 13), &["catchment \"EX-1\", condition", "empty"]),
     // Points and limits.
+    // Names that give the same result file name.
+    case("file-name-clash-storms", LineCol(12, 8), &["storm \"10/yr\" and storm \"10-yr\" (line 7)", "storm-10-yr.csv", "rename one"]),
+    case("file-name-clash-points", LineCol(77, 8), &["point \"OUTFALL\" and point \"outfall\" (line 73)", "storm-10-yr-outfall.png"]),
+    case("file-name-clash-ponds", LineCol(77, 8), &["pond \"pond a\" and pond \"Pond A\" (line 56)", "pond-pond-a-10-yr-proposed.png"]),
+    case("file-name-clash-records", LineCol(78, 8), &["record \"June!\" and record \"june\" (line 74)", "record-june-outfall-duration.png"]),
+    case("file-name-clash-across-kinds", Whole, &["storm \"10-yr\" at point \"outfall\"", "storm \"10\" at point \"yr outfall\"", "storm-10-yr-outfall.png"]),
     case("limits-unknown-storm", LineCol(75, 23), &["point \"outfall\", limits", "no storm is named \"100-yr\""]),
     case("limit-unknown-condition", LineCol(74, 9), &["point \"outfall\", limit", "\"exsting\" is not a condition", "did you mean \"existing\""]),
     case("limit-unreadable", LineCol(74, 9), &["point \"outfall\", limit", "bananas"]),
@@ -153,6 +159,7 @@ const CASES: &[Case] = &[
     case("gauge-mixed-interval", FileLine("rain.csv", 3), &["mixed interval lengths", "15 min", "10 min"]),
     case("gauge-gap", FileLine("rain.csv", 4), &["missing intervals", "missing = \"zero\""]),
     case("gauge-file-missing", LineCol(13, 9), &["storm \"june\", gauge", "file not found", "{dir}/rain.csv"]),
+    case("gauge-is-folder", LineCol(13, 9), &["storm \"june\", gauge", "is a folder, not a file", "{dir}/rain.csv"]),
     case("gauge-missing-value-unknown", LineCol(14, 11), &["storm \"june\", missing", "\"skip\"", "\"zero\""]),
     case("gauge-and-pattern", LineCol(14, 11), &["storm \"june\", pattern", "either `gauge` or `pattern`"]),
     // Long records.

@@ -46,6 +46,7 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
         s.baseline,
         s.conditions.join(", ")
     );
+    let _ = writeln!(t, "{}", crate::cli::run::memory_line(&study));
     let _ = writeln!(t, "\nCatchments");
     for c in &s.catchments {
         let _ = writeln!(

@@ -21,6 +21,8 @@ pub struct RunOutcome {
     pub warnings: Vec<String>,
     /// Lines summarising the comparisons, for stdout.
     pub lines: Vec<String>,
+    /// The stage timings line, when `RUNNEL_TIMINGS` is set, for stderr.
+    pub timings: Option<String>,
 }
 
 /// The default results folder: `output/<scenario stem>/`.
@@ -51,6 +53,15 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let mut study = crate::scenario::load(scenario)?;
     let t_load = t0.elapsed().as_secs_f64();
     check_memory(&study)?;
+    // The results folder is judged before any work: runnel only replaces
+    // what it wrote, and never a folder holding what this run reads.
+    let mut inputs = vec![scenario.to_path_buf()];
+    inputs.extend(study.provenance.inputs.iter().cloned());
+    let out_dir = output::check_target(
+        &out.map(Path::to_path_buf)
+            .unwrap_or_else(|| default_out(scenario)),
+        &inputs,
+    )?;
     let sized = crate::sizing::solve(&mut study)?;
     let a = analysis::analyse(&study);
     let t1 = std::time::Instant::now();
@@ -66,15 +77,12 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         rec.comparisons.clone(),
         run_date,
     );
-    let out_dir = out
-        .map(Path::to_path_buf)
-        .unwrap_or_else(|| default_out(scenario));
-    let stage = Staging::new(&out_dir)?;
+    let stage = Staging::new(&out_dir, &inputs)?;
     let plots = write_plots(&study, &a, &stage)?;
     let mut all_plots = plots;
     all_plots.extend(crate::records::write_plots(&study, &rec, &stage)?);
     for st in &a.storms {
-        let name = format!("storm-{}.csv", output::slug(&study.storms[st.storm].name));
+        let name = output::storm_csv_name(&study.storms[st.storm].name);
         stage.write(&name, report::csv::storm_csv(&study, st).as_bytes())?;
     }
     let json = serde_json::to_string_pretty(&s).map_err(|e| Error::Write {
@@ -85,11 +93,19 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let md = report::markdown::render(&study, &s, &all_plots, &rec.markdown);
     stage.write("summary.md", md.as_bytes())?;
     if !study.sizing.is_empty() {
-        let text = crate::sizing::sized_scenario_text(&study, &out_dir, scenario);
+        let text = crate::sizing::sized_scenario_text(&study, stage.target(), scenario);
         stage.write("sized-scenario.toml", text.as_bytes())?;
     }
-    let out_dir = stage.commit()?;
-    if std::env::var_os("RUNNEL_TIMINGS").is_some() {
+    let committed = stage.commit()?;
+    let out_dir = committed.dir;
+    let mut warnings = s.warnings.to_vec();
+    if let Some(kept) = committed.kept_aside {
+        warnings.push(format!(
+            "the previous results were kept in {} because a file runnel did not write appeared in them during the run; look at it and remove that folder yourself",
+            kept.display()
+        ));
+    }
+    let timings = std::env::var_os("RUNNEL_TIMINGS").map(|_| {
         let t = &rec.timings;
         let per = |s: f64| {
             if s > 0.0 {
@@ -98,7 +114,7 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
                 "-".into()
             }
         };
-        eprintln!(
+        format!(
             "timings: load and read {t_load:.3} s = {}; records {t_records:.3} s (rain {:.3} s, excess and convolution {:.3} s = {}, routing {:.3} s = {}, statistics {:.3} s = {}); report {:.3} s",
             per(t_load),
             t.rain_s,
@@ -109,8 +125,8 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
             t.statistics_s,
             per(t.statistics_s),
             t2.elapsed().as_secs_f64()
-        );
-    }
+        )
+    });
     let o = summary::Out(study.units);
     let fu = o.unit(Quantity::Flow);
     let mut lines = Vec::new();
@@ -140,9 +156,136 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     Ok(RunOutcome {
         out_dir,
         failed: !s.all_pass || a.any_failure(),
-        warnings: s.warnings.to_vec(),
+        warnings,
         lines,
+        timings,
     })
+}
+
+/// Series memory a run holds at its peak, by phase, in bytes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct MemoryEstimate {
+    /// Every design storm's results for every condition: all are held from
+    /// the analysis to the end of the report (each series at the length
+    /// simulated, before trimming), plus each worker thread's scratch.
+    pub storms: u64,
+    /// Sizing's trial results beside the storms' (0 without sizing).
+    pub sizing: u64,
+    /// The largest long record, run while the storms' results are held.
+    pub records: u64,
+    /// The plots' copies of the storms' series in output units, made
+    /// while the storms' results are held.
+    pub plots: u64,
+}
+
+impl MemoryEstimate {
+    /// The peak: the storms' results plus the largest of what is held
+    /// beside them in one phase (sizing, records, plots).
+    pub fn peak(&self) -> u64 {
+        self.storms + self.sizing.max(self.records).max(self.plots)
+    }
+}
+
+/// Bytes of one design storm's results for every condition (see
+/// `network::simulate_storm`): the rain, per condition each member
+/// element's outflow (a pond's inflow, stage and storage too) and each
+/// point's flow.
+fn storm_result_bytes(study: &Study, storm: usize) -> u64 {
+    let len = network::horizon_steps(study, storm) as u64 + 1;
+    let series: u64 = (0..study.conditions.len())
+        .map(|c| {
+            study
+                .elements
+                .iter()
+                .filter(|e| e.conditions[c])
+                .map(|e| match e.kind {
+                    ElementKind::Pond(_) => 4,
+                    _ => 1,
+                })
+                .sum::<u64>()
+                + study.points.len() as u64
+        })
+        .sum::<u64>()
+        + 1;
+    len * 8 * series
+}
+
+/// Bytes of one design storm's plot data: per point the rain and each
+/// condition's flow, per pond and condition its inflow, outflow and stage.
+fn storm_plot_bytes(study: &Study, storm: usize) -> u64 {
+    let len = network::horizon_steps(study, storm) as u64 + 1;
+    let conditions = study.conditions.len() as u64;
+    let ponds: u64 = (0..study.conditions.len())
+        .map(|c| {
+            study
+                .elements
+                .iter()
+                .filter(|e| e.conditions[c] && matches!(e.kind, ElementKind::Pond(_)))
+                .count() as u64
+        })
+        .sum();
+    len * 8 * (study.points.len() as u64 * (conditions + 1) + 3 * ponds)
+}
+
+/// Estimates the series memory of a run of `study` (see [`MemoryEstimate`]).
+pub fn estimate_memory(study: &Study) -> MemoryEstimate {
+    let results: u64 = (0..study.storms.len())
+        .map(|s| storm_result_bytes(study, s))
+        .sum();
+    let plots: u64 = (0..study.storms.len())
+        .map(|s| storm_plot_bytes(study, s))
+        .sum();
+    // Each worker simulating a storm also holds a catchment's excess, its
+    // convolution and the inputs of the ponds downstream.
+    let longest = (0..study.storms.len())
+        .map(|s| network::horizon_steps(study, s) as u64 + 1)
+        .max()
+        .unwrap_or(0);
+    let workers = rayon::current_num_threads().min(study.storms.len()) as u64;
+    let scratch = workers * longest * 8 * 3;
+    let records = study
+        .records
+        .iter()
+        .map(|r| crate::records::estimate_bytes(study, r))
+        .max()
+        .unwrap_or(0);
+    MemoryEstimate {
+        storms: results + scratch,
+        sizing: if study.sizing.is_empty() { 0 } else { results },
+        records,
+        plots,
+    }
+}
+
+/// A byte count in decimal units, as `memory_limit` reads them (1 GB = 10^9 bytes).
+pub fn format_bytes(b: u64) -> String {
+    let b = b as f64;
+    if b >= 1e9 {
+        format!("{:.2} GB", b / 1e9)
+    } else if b >= 1e6 {
+        format!("{:.0} MB", b / 1e6)
+    } else {
+        format!("{:.0} kB", (b / 1e3).ceil())
+    }
+}
+
+/// One line saying what the memory estimate is, for `check`.
+pub fn memory_line(study: &Study) -> String {
+    let m = estimate_memory(study);
+    let mut parts = vec![format!("design storms {}", format_bytes(m.storms))];
+    if m.sizing > 0 {
+        parts.push(format!("sizing {}", format_bytes(m.sizing)));
+    }
+    if m.records > 0 {
+        parts.push(format!("largest record {}", format_bytes(m.records)));
+    }
+    parts.push(format!("plots {}", format_bytes(m.plots)));
+    format!(
+        "series memory at the peak of a run: about {} ({}), under the cap of {} (`memory_limit`)",
+        format_bytes(m.peak()),
+        parts.join(", "),
+        format_bytes(study.memory_limit_bytes)
+    )
 }
 
 /// Refuses a run whose series would not fit under the memory cap.
@@ -150,25 +293,28 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
 /// # Errors
 /// [`Error::TooLarge`] naming the need and the cap.
 pub fn check_memory(study: &Study) -> Result<(), Error> {
-    let storms: u64 = (0..study.storms.len())
-        .map(|s| network::estimate_bytes(study, s))
-        .max()
-        .unwrap_or(0)
-        * rayon::current_num_threads().min(study.storms.len().max(1)) as u64;
-    let records: u64 = study
-        .records
-        .iter()
-        .map(|r| crate::records::estimate_bytes(study, r))
-        .max()
-        .unwrap_or(0);
-    let need = storms.max(records);
+    let m = estimate_memory(study);
+    let need = m.peak();
     if need > study.memory_limit_bytes {
+        let mut parts = vec![format!(
+            "{} design storm(s) {}",
+            study.storms.len(),
+            format_bytes(m.storms)
+        )];
+        if m.sizing > 0 {
+            parts.push(format!("sizing trials {}", format_bytes(m.sizing)));
+        }
+        if m.records > 0 {
+            parts.push(format!("largest record {}", format_bytes(m.records)));
+        }
+        parts.push(format!("plots {}", format_bytes(m.plots)));
         return Err(Error::TooLarge {
             message: format!(
-                "{}: this run would need about {:.1} GB for its series, over the cap of {:.1} GB; use a coarser `step`, a shorter record, or raise `memory_limit`",
+                "{}: this run would hold about {} of series at once ({}), over the cap of {}; use a coarser `step`, fewer storms or a shorter record per run, or raise `memory_limit`",
                 study.provenance.scenario.display(),
-                need as f64 / 1e9,
-                study.memory_limit_bytes as f64 / 1e9
+                format_bytes(need),
+                parts.join(", "),
+                format_bytes(study.memory_limit_bytes)
             ),
         });
     }
@@ -181,8 +327,6 @@ type PlotJob<'a> = (
     String,
     Box<dyn Fn() -> Result<Vec<u8>, plot::PlotError> + Send + Sync + 'a>,
 );
-/// A drawn plot: caption, file name, PNG bytes.
-type Drawn = Result<(String, String, Vec<u8>), plot::PlotError>;
 
 fn write_plots(
     study: &Study,
@@ -197,11 +341,7 @@ fn write_plots(
     for st in &a.storms {
         let storm = &study.storms[st.storm];
         for (pi, p) in study.points.iter().enumerate() {
-            let file = format!(
-                "storm-{}-{}.png",
-                output::slug(&storm.name),
-                output::slug(&p.name)
-            );
+            let file = output::storm_plot_name(&storm.name, &p.name);
             let hydrographs: Vec<plot::Series> = st
                 .conditions
                 .iter()
@@ -278,12 +418,7 @@ fn write_plots(
                 }
                 let name = &study.elements[i].name;
                 let cname = &study.conditions[c.condition];
-                let file = format!(
-                    "pond-{}-{}-{}.png",
-                    output::slug(name),
-                    output::slug(&storm.name),
-                    output::slug(cname)
-                );
+                let file = output::pond_plot_name(name, &storm.name, cname);
                 let data = plot::PondPlot {
                     title: format!("Pond {name} - {} ({cname})", storm.name),
                     subtitle: format!(
@@ -308,20 +443,18 @@ fn write_plots(
             }
         }
     }
-    let rendered: Vec<Drawn> = jobs
-        .into_par_iter()
-        .map(|(cap, file, job)| job().map(|b| (cap, file, b)))
-        .collect();
-    let mut out = Vec::new();
-    for r in rendered {
-        let (cap, file, bytes) = r.map_err(|e| Error::Write {
-            path: stage.temp_dir().to_path_buf(),
-            message: e.to_string(),
-        })?;
-        stage.write(&file, &bytes)?;
-        out.push((cap, file));
-    }
-    Ok(out)
+    // Each plot is written as soon as it is drawn, so that the PNGs are
+    // never all held at once.
+    jobs.into_par_iter()
+        .map(|(cap, file, job)| {
+            let bytes = job().map_err(|e| Error::Write {
+                path: stage.temp_dir().to_path_buf(),
+                message: e.to_string(),
+            })?;
+            stage.write(&file, &bytes)?;
+            Ok((cap, file))
+        })
+        .collect()
 }
 
 fn kind_word(d: &crate::hydraulics::Outlet) -> &'static str {

@@ -27,8 +27,13 @@ use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 use toml::Spanned;
 
-/// Default cap on the memory one run may use for its series, bytes.
-pub const DEFAULT_MEMORY_LIMIT_BYTES: u64 = 8 * 1024 * 1024 * 1024;
+/// Default cap on the memory one run may use for its series, bytes (8 GB,
+/// decimal as `memory_limit` reads it).
+pub const DEFAULT_MEMORY_LIMIT_BYTES: u64 = 8_000_000_000;
+
+/// Largest scenario or inflow-table file read, bytes (16 MiB). Gauge files
+/// are read in chunks and have no such cap.
+pub const MAX_TEXT_FILE_BYTES: u64 = 16 * 1024 * 1024;
 
 /// Most steps one storm or record may have.
 pub const MAX_STEPS: usize = 50_000_000;
@@ -39,10 +44,7 @@ pub const MAX_STEPS: usize = 50_000_000;
 /// Any problem with the scenario or the files it names, as an
 /// [`Error::Input`] that names the file, line, element and key.
 pub fn load(path: &Path) -> Result<Study, Error> {
-    let bytes = std::fs::read(path).map_err(|source| Error::Read {
-        path: path.to_path_buf(),
-        source,
-    })?;
+    let bytes = read_capped(path, "a scenario")?;
     let text = String::from_utf8(bytes).map_err(|e| {
         let at = e.utf8_error().valid_up_to();
         let before = std::str::from_utf8(e.as_bytes().get(..at).unwrap_or_default()).unwrap_or("");
@@ -78,6 +80,80 @@ pub fn load(path: &Path) -> Result<Study, Error> {
     };
     study.warnings.extend(b.warnings);
     Ok(study)
+}
+
+/// What kind of thing a path that is not a regular file is, in words.
+fn file_kind(meta: &std::fs::Metadata) -> &'static str {
+    let t = meta.file_type();
+    if t.is_dir() {
+        return "a folder";
+    }
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::FileTypeExt;
+        if t.is_fifo() {
+            return "a named pipe";
+        }
+        if t.is_char_device() || t.is_block_device() {
+            return "a device";
+        }
+        if t.is_socket() {
+            return "a socket";
+        }
+    }
+    "not a regular file"
+}
+
+/// Reads a whole text input (`what`: "a scenario", "an inflow table") of
+/// at most [`MAX_TEXT_FILE_BYTES`]. Folders, devices and pipes are refused
+/// before they are opened, so `/dev/zero` or a pipe never hangs a run.
+///
+/// # Errors
+/// [`Error::Read`] when the file is missing or cannot be read; an input
+/// error when it is not a regular file or is too large.
+pub fn read_capped(path: &Path, what: &str) -> Result<Vec<u8>, Error> {
+    use std::io::Read;
+    let meta = std::fs::metadata(path).map_err(|source| Error::Read {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    if !meta.is_file() {
+        return Err(
+            InputError::new(path, format!("this is {}, not a file", file_kind(&meta)))
+                .expected(format!("{what} file"))
+                .into(),
+        );
+    }
+    let too_large = || -> Error {
+        InputError::new(
+            path,
+            format!(
+                "the file is larger than {} MiB, more than {what} file can sensibly be",
+                MAX_TEXT_FILE_BYTES / (1024 * 1024)
+            ),
+        )
+        .expected(format!("{what} file of at most 16 MiB"))
+        .hint("check that the path names the right file; long rainfall series belong in a gauge CSV (`gauge = ...`), which has no size cap")
+        .into()
+    };
+    if meta.len() > MAX_TEXT_FILE_BYTES {
+        return Err(too_large());
+    }
+    let file = std::fs::File::open(path).map_err(|source| Error::Read {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    let mut bytes = Vec::new();
+    file.take(MAX_TEXT_FILE_BYTES + 1)
+        .read_to_end(&mut bytes)
+        .map_err(|source| Error::Read {
+            path: path.to_path_buf(),
+            source,
+        })?;
+    if bytes.len() as u64 > MAX_TEXT_FILE_BYTES {
+        return Err(too_large());
+    }
+    Ok(bytes)
 }
 
 fn hex(bytes: &[u8]) -> String {
@@ -231,10 +307,22 @@ impl<'a> Builder<'a> {
 
     fn resolve(&mut self, rel: &Spanned<String>, ctx: &str) -> R<PathBuf> {
         let p = self.dir.join(rel.get_ref());
-        if !p.is_file() {
-            return Err(self
-                .err(&rel.span(), ctx, format!("file not found: {}", p.display()))
-                .expected("a path relative to the scenario file"));
+        match std::fs::metadata(&p) {
+            Ok(m) if m.is_file() => {}
+            Ok(m) => {
+                return Err(self
+                    .err(
+                        &rel.span(),
+                        ctx,
+                        format!("{} is {}, not a file", p.display(), file_kind(&m)),
+                    )
+                    .expected("the path of a file, relative to the scenario file"));
+            }
+            Err(_) => {
+                return Err(self
+                    .err(&rel.span(), ctx, format!("file not found: {}", p.display()))
+                    .expected("a path relative to the scenario file"));
+            }
         }
         self.inputs.push(p.clone());
         self.path_spans.push((rel.span(), p.clone()));
@@ -268,7 +356,7 @@ impl<'a> Builder<'a> {
                     "memory_limit",
                     format!("cannot read \"{}\" as a memory size", v.get_ref()),
                 )
-                .expected("a size such as \"4 GB\" or \"512 MB\"")
+                .expected("a size such as \"4 GB\" or \"512 MB\" (decimal: 1 GB = 10^9 bytes; GiB and MiB are binary)")
             })?,
             None => DEFAULT_MEMORY_LIMIT_BYTES,
         };
@@ -335,6 +423,8 @@ impl<'a> Builder<'a> {
                     .expected("each record named once"));
             }
         }
+
+        self.check_file_name_parts(&raw)?;
 
         // Conditions, in order of first mention, baseline first.
         let baseline_name = raw
@@ -829,7 +919,7 @@ impl<'a> Builder<'a> {
                 .expected("at least one design storm or long record"));
         }
 
-        Ok(Study {
+        let study = Study {
             title: raw.title.clone().unwrap_or_default(),
             units: self.units,
             step_h,
@@ -845,7 +935,135 @@ impl<'a> Builder<'a> {
             provenance: Provenance::default(),
             sizing: sizing_raw,
             memory_limit_bytes,
-        })
+        };
+        self.check_result_files(&study)?;
+        Ok(study)
+    }
+
+    /// Two storms, ponds, points or records whose names give the same
+    /// file name (`10/yr` and `10-yr` both become `10-yr`) would write the
+    /// same result files: an input error naming both.
+    fn check_file_name_parts(&self, raw: &RawScenario) -> R<()> {
+        use crate::output::{pond_plot_name, record_plot_base, storm_csv_name, storm_plot_name};
+        let storm = raw.storm.first().map_or_else(
+            || "STORM".to_string(),
+            |s| s.get_ref().name.get_ref().clone(),
+        );
+        let point = raw.point.first().map_or_else(
+            || "POINT".to_string(),
+            |p| p.get_ref().name.get_ref().trim().to_string(),
+        );
+        let baseline = raw
+            .baseline
+            .as_ref()
+            .map_or_else(|| "existing".to_string(), |b| b.get_ref().clone());
+        let record_plot = |r: &str, p: &str| format!("{}-duration.png", record_plot_base(r, p));
+        // Per kind: each name and one file it writes.
+        let kinds: [(&str, Vec<(&Spanned<String>, String)>); 4] = [
+            (
+                "storm",
+                raw.storm
+                    .iter()
+                    .map(|s| {
+                        let n = &s.get_ref().name;
+                        (n, storm_csv_name(n.get_ref()))
+                    })
+                    .collect(),
+            ),
+            (
+                "pond",
+                raw.pond
+                    .iter()
+                    .map(|p| {
+                        let p = p.get_ref();
+                        let condition = p
+                            .condition
+                            .as_ref()
+                            .and_then(|c| c.get_ref().0.first().cloned())
+                            .unwrap_or_else(|| baseline.clone());
+                        let n = &p.name;
+                        (n, pond_plot_name(n.get_ref().trim(), &storm, &condition))
+                    })
+                    .collect(),
+            ),
+            (
+                "point",
+                raw.point
+                    .iter()
+                    .map(|p| {
+                        let n = &p.get_ref().name;
+                        let name = n.get_ref().trim();
+                        let file = match (raw.storm.is_empty(), raw.record.first()) {
+                            (true, Some(r)) => record_plot(r.get_ref().name.get_ref(), name),
+                            _ => storm_plot_name(&storm, name),
+                        };
+                        (n, file)
+                    })
+                    .collect(),
+            ),
+            (
+                "record",
+                raw.record
+                    .iter()
+                    .map(|r| {
+                        let n = &r.get_ref().name;
+                        (n, record_plot(n.get_ref(), &point))
+                    })
+                    .collect(),
+            ),
+        ];
+        for (kind, names) in &kinds {
+            let mut seen: HashMap<String, &Spanned<String>> = HashMap::new();
+            for (n, file) in names {
+                let name = n.get_ref().trim();
+                let part = crate::output::slug(name);
+                if let Some(other) = seen.get(&part) {
+                    let (l, _) = self.src.line_col(other.span().start);
+                    return Err(self
+                        .err(
+                            &n.span(),
+                            &format!("{kind} \"{name}\", name"),
+                            format!(
+                                "{kind} \"{name}\" and {kind} \"{}\" (line {l}) give the same file names: both would write {file}",
+                                other.get_ref().trim(),
+                            ),
+                        )
+                        .expected("names that stay different in file names, where runnel keeps letters (in lower case), digits, '-', '_' and '.' and turns every other character into '-'")
+                        .hint(format!("rename one of the two {kind}s")));
+                }
+                seen.insert(part, n);
+            }
+        }
+        Ok(())
+    }
+
+    /// Every result file name of a run is distinct and fits a file system
+    /// (names of different kinds can still meet: storm "a-b" at point "c"
+    /// and storm "a" at point "b-c" both give `storm-a-b-c.png`).
+    fn check_result_files(&self, study: &Study) -> R<()> {
+        let mut seen: HashMap<String, String> = HashMap::new();
+        for (file, from) in crate::output::result_files(study) {
+            if file.len() > 255 {
+                return Err(self
+                    .src
+                    .error(format!(
+                        "{from} would write a file named with {} bytes ({}...); file systems allow 255",
+                        file.len(),
+                        file.chars().take(40).collect::<String>()
+                    ))
+                    .expected("names short enough for file names")
+                    .hint("shorten the name"));
+            }
+            if let Some(other) = seen.get(&file) {
+                return Err(self
+                    .src
+                    .error(format!("{other} and {from} would both write {file}"))
+                    .expected("names that give distinct file names")
+                    .hint("rename one of them"));
+            }
+            seen.insert(file, from);
+        }
+        Ok(())
     }
 
     fn storm(&mut self, s: &Spanned<RawStorm>) -> R<Storm> {
@@ -2661,22 +2879,31 @@ pub fn default_step_h(min_tc_h: f64) -> f64 {
     m / 60.0
 }
 
+/// A memory size: decimal units (kB, MB, GB = 10^3, 10^6, 10^9 bytes), as
+/// runnel prints them, or binary ones (KiB, MiB, GiB = 2^10, 2^20, 2^30).
 fn parse_bytes(s: &str) -> Option<u64> {
     let (v, unit) = units::split_number(s).ok()?;
     let f = match unit.to_ascii_lowercase().as_str() {
         "b" | "" => 1.0,
-        "kb" | "kib" => 1024.0,
-        "mb" | "mib" => 1024.0 * 1024.0,
-        "gb" | "gib" => 1024.0 * 1024.0 * 1024.0,
+        "kb" => 1e3,
+        "mb" => 1e6,
+        "gb" => 1e9,
+        "tb" => 1e12,
+        "kib" => 1024.0,
+        "mib" => 1024.0 * 1024.0,
+        "gib" => 1024.0 * 1024.0 * 1024.0,
         _ => return None,
     };
-    (v > 0.0).then_some((v * f) as u64)
+    (v > 0.0 && v.is_finite() && v * f < 1.8e19).then_some((v * f) as u64)
 }
 
 /// Reads a `time_h,flow` hydrograph CSV.
 fn read_hydrograph_csv(path: &Path) -> R<Vec<(f64, f64)>> {
-    let text =
-        std::fs::read(path).map_err(|e| InputError::new(path, format!("cannot read: {e}")))?;
+    let text = read_capped(path, "an inflow table").map_err(|e| match e {
+        Error::Input(ie) => *ie,
+        Error::Read { source, .. } => InputError::new(path, format!("cannot read: {source}")),
+        other => InputError::new(path, other.to_string()),
+    })?;
     let mut rdr = csv::ReaderBuilder::new()
         .trim(csv::Trim::All)
         .from_reader(text.as_slice());
