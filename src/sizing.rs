@@ -496,3 +496,26 @@ fn relative(path: &Path, base: &Path) -> Option<std::path::PathBuf> {
     }
     Some(out)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::toml_string;
+
+    #[test]
+    fn toml_strings_read_back_as_written() {
+        // TOML 1.0, "String": basic strings escape `"`, `\` and control
+        // characters; every other character is written as it is.
+        for s in [
+            "plain.csv",
+            "Ville\u{301}/pluie.csv",
+            "C:\\data\\rain.csv",
+            "say \"when\"",
+            "tab\there\u{7f}\u{1}",
+        ] {
+            let doc = format!("k = {}", toml_string(s));
+            let t: toml::Table = toml::from_str(&doc).unwrap_or_else(|e| panic!("{e}: {doc}"));
+            assert_eq!(t["k"].as_str(), Some(s), "{doc}");
+        }
+        assert_eq!(toml_string("e\u{301}"), "\"e\u{301}\"");
+    }
+}

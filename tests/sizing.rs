@@ -124,3 +124,46 @@ fn an_infeasible_range_names_the_pond_storm_and_point_and_exits_1() {
             .is_some_and(|a| a.iter().any(|z| z["feasible"] == false))
     );
 }
+
+#[test]
+fn the_sized_scenario_is_valid_toml_for_a_path_with_a_combining_accent() {
+    // "Ville" + U+0301 COMBINING ACUTE ACCENT (a decomposed "é", as macOS
+    // writes file names): debug formatting wrote it as `\u{301}`, which is
+    // not TOML. The path must come back as written and the copy must run.
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let site = dir.path().join("Ville\u{301}");
+    std::fs::create_dir(&site).unwrap_or_else(|e| panic!("{e}"));
+    std::fs::write(
+        site.join("inflow \"a\".csv"),
+        "time_h,flow\n0,0\n1,0.5\n2,0\n",
+    )
+    .unwrap_or_else(|e| panic!("{e}"));
+    let text = std::fs::read_to_string(data("sizing-closed-form.toml")).unwrap_or_default()
+        + "\n[[inflow]]\nname = \"offsite\"\ncondition = \"proposed\"\nto = \"tank\"\nfile = 'inflow \"a\".csv'\n";
+    let sc = site.join("site.toml");
+    std::fs::write(&sc, text).unwrap_or_else(|e| panic!("{e}"));
+    let out = dir.path().join("out");
+    let o = runnel(&[
+        "run",
+        &sc.to_string_lossy(),
+        "--out",
+        &out.to_string_lossy(),
+    ]);
+    assert!(
+        matches!(o.status.code(), Some(0 | 1)),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let sized = std::fs::read_to_string(out.join("sized-scenario.toml")).unwrap_or_default();
+    let parsed: toml::Table = toml::from_str(&sized).unwrap_or_else(|e| panic!("{e}\n{sized}"));
+    let file = parsed["inflow"][0]["file"].as_str().unwrap_or("");
+    assert_eq!(file, "../Ville\u{301}/inflow \"a\".csv");
+    // The copy runs from the results folder and finds the inflow.
+    let o = runnel(&["check", &out.join("sized-scenario.toml").to_string_lossy()]);
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+}
