@@ -227,6 +227,9 @@ struct Builder<'a> {
 
 type R<T> = Result<T, InputError>;
 
+/// A name as written and one result file it gives.
+type NamedFile<'r> = (&'r Spanned<String>, String);
+
 /// One element's shared keys, collected before its kind is built.
 struct Pending {
     name: String,
@@ -959,7 +962,7 @@ impl<'a> Builder<'a> {
             .map_or_else(|| "existing".to_string(), |b| b.get_ref().clone());
         let record_plot = |r: &str, p: &str| format!("{}-duration.png", record_plot_base(r, p));
         // Per kind: each name and one file it writes.
-        let kinds: [(&str, Vec<(&Spanned<String>, String)>); 4] = [
+        let kinds: [(&str, Vec<NamedFile>); 4] = [
             (
                 "storm",
                 raw.storm
