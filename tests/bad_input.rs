@@ -191,17 +191,25 @@ fn runnel(args: &[&Path], cwd: &Path) -> Output {
         .unwrap_or_else(|e| panic!("cannot start runnel: {e}"))
 }
 
-/// A results folder from an earlier, complete run.
+/// A results folder from an earlier, complete run: runnel's marker and the
+/// files it lists, so that runnel may replace it and an error found after
+/// loading still reaches its own message.
 fn previous_results(parent: &Path) -> PathBuf {
     let out = parent.join("results");
     std::fs::create_dir(&out).unwrap_or_else(|e| panic!("{e}"));
     std::fs::write(
         out.join("summary.json"),
-        "{\"title\": \"earlier run\", \"comparisons\": [], \"warnings\": []}\n",
+        "{\"title\": \"earlier run\", \"comparisons\": [], \"warnings\": [], \"provenance\": {\"program\": \"runnel\"}}\n",
     )
     .unwrap_or_else(|e| panic!("{e}"));
     std::fs::write(out.join("storm-10-yr.csv"), "time_h,flow\n0,0\n")
         .unwrap_or_else(|e| panic!("{e}"));
+    std::fs::write(
+        out.join(".runnel-results"),
+        "runnel results folder: an earlier run's, made by tests/bad_input.rs\nstorm-10-yr.csv\nsummary.json\n",
+    )
+    .unwrap_or_else(|e| panic!("{e}"));
+    assert!(runnel::output::is_own_folder(&out));
     out
 }
 
