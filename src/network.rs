@@ -207,21 +207,6 @@ pub fn horizon_steps(study: &Study, storm: usize) -> usize {
     (end / study.step_h).ceil().max(1.0) as usize
 }
 
-/// Bytes of series memory a storm run needs, for the memory cap.
-pub fn estimate_bytes(study: &Study, storm: usize) -> u64 {
-    let len = horizon_steps(study, storm) as u64 + 1;
-    let per_condition: u64 = study
-        .elements
-        .iter()
-        .map(|e| match e.kind {
-            ElementKind::Pond(_) => 5,
-            _ => 2,
-        })
-        .sum::<u64>()
-        + study.points.len() as u64;
-    len * 8 * (per_condition * study.conditions.len() as u64 + 2)
-}
-
 /// Simulates one storm for the given conditions and trims the run to where
 /// every flow has fallen below 0.1 % of its peak and every pond has drained.
 pub fn simulate_storm(study: &Study, storm: usize, conditions: &[usize]) -> StormResult {
