@@ -133,7 +133,13 @@ pub enum GaugeErrorKind {
     TooLong,
     /// The file could not be read to its end.
     Unreadable,
+    /// A line is longer than [`MAX_LINE_BYTES`] (not a gauge row).
+    LineTooLong,
 }
+
+/// Longest line a gauge file may have, in bytes: a row is a time and a
+/// depth, well under 100 bytes; a longer line is not a row.
+pub const MAX_LINE_BYTES: usize = 4096;
 
 /// An error in a gauge file, with where it is and what was expected.
 ///
@@ -638,9 +644,17 @@ pub fn parse_gauge_reader<R: std::io::Read>(
             match buf.iter().rposition(|&c| c == b'\n') {
                 Some(i) => i + 1,
                 None => {
-                    // A line longer than the chunk: read on.
-                    eof = read_more(&mut reader, &mut buf, CHUNK_BYTES, lines_before)?;
-                    continue;
+                    // A whole chunk without a line end: not a gauge row.
+                    return Err(GaugeError::new(
+                        K::LineTooLong,
+                        lines_before + 1,
+                        Some(1),
+                        format!(
+                            "the line is longer than {MAX_LINE_BYTES} bytes ({} bytes read without a line end)",
+                            buf.len()
+                        ),
+                        "rows of a time and a depth, one per line",
+                    ));
                 }
             }
         };
@@ -1025,6 +1039,18 @@ impl RowState {
         max_rows: usize,
     ) -> Result<(), GaugeError> {
         use GaugeErrorKind as K;
+        if line.len() > MAX_LINE_BYTES {
+            return Err(GaugeError::new(
+                K::LineTooLong,
+                line_no,
+                Some(1),
+                format!(
+                    "the line is {} bytes long, more than {MAX_LINE_BYTES}",
+                    line.len()
+                ),
+                "rows of a time and a depth, one per line",
+            ));
+        }
         let value_name = match self.column {
             DepthColumn::Depth => "depth",
             DepthColumn::Cumulative => "cumulative total",

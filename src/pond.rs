@@ -507,6 +507,56 @@ impl Embankment {
     }
 }
 
+/// Rows of the fine grid (at the grid step) before the spacing grows with
+/// depth: 50 000 rows, 500 ft at the default 0.01-ft step.
+pub const FINE_GRID_ROWS: usize = 50_000;
+
+/// Relative spacing of the grid above [`FINE_GRID_ROWS`]: each stage is
+/// 0.1 % of its depth above the bottom higher than the one below.
+const DEEP_GRID_RATIO: f64 = 1e-3;
+
+/// The grid stages above `bottom` (exclusive) up to the first one at or
+/// above `end` whose storage reaches `max_storage_ft3`: every `step` ft for
+/// the first [`FINE_GRID_ROWS`] rows, then spaced by [`DEEP_GRID_RATIO`] of
+/// the depth, so that the number of rows grows with the logarithm of the
+/// depth the water can reach, not with the depth itself.
+fn grid_stages(
+    storage: &StageStorage,
+    bottom: f64,
+    step: f64,
+    end: f64,
+    max_storage_ft3: f64,
+) -> Result<Vec<f64>, PondError> {
+    let needed = ((end - bottom) / step).ceil();
+    let too_many = |rows: f64, to_ft: f64| PondError::TooManyRows {
+        rows,
+        limit: MAX_TABLE_ROWS,
+        from_ft: bottom,
+        to_ft,
+        step_ft: step,
+    };
+    if !needed.is_finite() {
+        return Err(too_many(needed, end));
+    }
+    let fine = (needed.max(1.0) as usize).min(FINE_GRID_ROWS);
+    let mut out: Vec<f64> = (1..=fine).map(|i| bottom + i as f64 * step).collect();
+    let mut h = bottom + fine as f64 * step;
+    // more while rounding (or the row cap) leaves the last stage short of the bound
+    while storage.volume_ft3(h) < max_storage_ft3 {
+        let next = if out.len() < FINE_GRID_ROWS {
+            bottom + (out.len() + 1) as f64 * step
+        } else {
+            h + step.max(DEEP_GRID_RATIO * (h - bottom))
+        };
+        if !(next.is_finite() && next > h) || out.len() + 1 >= MAX_TABLE_ROWS {
+            return Err(too_many(out.len() as f64 + 1.0, end));
+        }
+        h = next;
+        out.push(h);
+    }
+    Ok(out)
+}
+
 /// One grid segment of a [`PondTable`], laid out for the routing loop: the
 /// values at its lower row and their increments to the upper row.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -639,28 +689,13 @@ impl PondTable {
                 storage_ft3: max_storage_ft3,
             });
         }
-        let mut end = s_bound.max(bottom + step);
-        if let Some(e) = embankment {
-            end = end.max(e.top_ft + step);
-        }
-        let n_f = ((end - bottom) / step).ceil() + 1.0;
-        if !(n_f.is_finite() && n_f <= MAX_TABLE_ROWS as f64) {
-            return Err(PondError::TooManyRows {
-                rows: n_f,
-                limit: MAX_TABLE_ROWS,
-                from_ft: bottom,
-                to_ft: end,
-                step_ft: step,
-            });
-        }
-        // lattice intervals; one more while rounding leaves the last stage short of the bound
-        let mut n = (n_f as usize).max(2) - 1;
-        while n + 1 < MAX_TABLE_ROWS
-            && storage.volume_ft3(bottom + n as f64 * step) < max_storage_ft3
-        {
-            n += 1;
-        }
-        let last = bottom + n as f64 * step;
+        // The grid reaches as far as the water can go and no further: an
+        // embankment top above the storage bound is never reached, so it
+        // does not lengthen the table.
+        let end = s_bound.max(bottom + step);
+        let lattice = grid_stages(storage, bottom, step, end, max_storage_ft3)?;
+        let last = *lattice.last().unwrap_or(&bottom);
+        let n = lattice.len();
 
         // stages the grid must contain; and, in the first grid cell above
         // each stage where an outlet (or the embankment) begins to flow,
@@ -705,11 +740,7 @@ impl PondTable {
         };
         let mut stage_ft: Vec<f64> = Vec::with_capacity(n + 1 + must.len());
         stage_ft.push(bottom);
-        stage_ft.extend(
-            (1..=n)
-                .map(|i| bottom + i as f64 * step)
-                .filter(|&g| !near_must(g)),
-        );
+        stage_ft.extend(lattice.iter().copied().filter(|&g| !near_must(g)));
         stage_ft.extend(must.iter().copied());
         stage_ft.sort_by(f64::total_cmp);
 

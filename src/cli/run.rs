@@ -52,13 +52,13 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let t_load = t0.elapsed().as_secs_f64();
     check_memory(&study)?;
     let sized = crate::sizing::solve(&mut study)?;
-    let a = analysis::analyse(&study);
+    let a = analysis::analyse(&study)?;
     let t1 = std::time::Instant::now();
     let rec = crate::records::run(&study, progress)?;
     let t_records = t1.elapsed().as_secs_f64();
     let t2 = std::time::Instant::now();
     let run_date = now_utc();
-    let s = summary::build(
+    let mut s = summary::build(
         &study,
         &a,
         sized.outputs.clone(),
@@ -66,6 +66,16 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         rec.comparisons.clone(),
         run_date,
     );
+    // What the long records found: overtopping counts like a storm's.
+    s.all_pass &= rec.pond_checks.iter().all(|c| c.pass);
+    s.pond_checks.extend(rec.pond_checks.iter().cloned());
+    for w in &rec.warnings {
+        s.warning_details.push(summary::WarningOut {
+            code: w.code(),
+            message: w.to_string(),
+        });
+        s.warnings.push(w.to_string());
+    }
     let out_dir = out
         .map(Path::to_path_buf)
         .unwrap_or_else(|| default_out(scenario));
