@@ -1321,6 +1321,34 @@ mod tests {
         t
     }
 
+    #[test]
+    fn an_overlong_line_is_refused_at_its_line_without_reading_on() {
+        // contract (scenario-format.md, Rainfall CSV): one row per line. A
+        // line of 3 MB, and one of 5 kB, are not rows; the reader stops
+        // after the first megabyte of the long one.
+        let mut text = b"time,depth\n2001-01-01 00:05,0\n".to_vec();
+        text.extend(std::iter::repeat_n(b'7', 3 << 20));
+        let mut served = 0usize;
+        struct Counting<'a>(&'a [u8], &'a mut usize);
+        impl std::io::Read for Counting<'_> {
+            fn read(&mut self, out: &mut [u8]) -> std::io::Result<usize> {
+                let k = out.len().min(self.0.len());
+                out[..k].copy_from_slice(&self.0[..k]);
+                self.0 = &self.0[k..];
+                *self.1 += k;
+                Ok(k)
+            }
+        }
+        let e = parse_gauge_reader(Counting(&text, &mut served), None, &opts()).unwrap_err();
+        assert_eq!((e.kind, e.line), (GaugeErrorKind::LineTooLong, 3));
+        assert!(served <= 2 << 20, "read {served} bytes");
+        let mut short = String::from("time,depth\n2001-01-01 00:05,0\n2001-01-01 00:10,");
+        short.push_str(&"1".repeat(5000));
+        short.push('\n');
+        let e = parse(&short).unwrap_err();
+        assert_eq!((e.kind, e.line), (GaugeErrorKind::LineTooLong, 3));
+    }
+
     /// A reader that hands out at most `step` bytes per call.
     struct Trickle<'a>(&'a [u8], usize);
     impl std::io::Read for Trickle<'_> {

@@ -158,8 +158,13 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
 /// Refuses a run whose series would not fit under the memory cap.
 ///
 /// # Errors
-/// [`Error::TooLarge`] naming the need and the cap.
+/// A storm longer than runnel's step limit ([`network::SimulationError::TooLong`]),
+/// or [`Error::TooLarge`] naming the need and the cap.
 pub fn check_memory(study: &Study) -> Result<(), Error> {
+    // A storm too long to run at all says why (a lag or inflow time) first.
+    for s in 0..study.storms.len() {
+        network::horizon_steps(study, s)?;
+    }
     let storms: u64 = (0..study.storms.len())
         .map(|s| network::estimate_bytes(study, s))
         .max()
