@@ -498,7 +498,7 @@ fn incomplete_years(start_s: i64, step_s: i64, n: usize) -> Vec<(i32, usize, usi
 /// shift past the end of a series of `len` values (the same weights).
 fn lagged_past_end_ft3(src: &[f64], len: usize, lag_h: f64, step_h: f64) -> f64 {
     let shift = lag_h / step_h;
-    if !(shift > 0.0) {
+    if shift.is_nan() || shift <= 0.0 {
         return 0.0;
     }
     let whole = shift.floor();
