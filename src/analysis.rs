@@ -90,7 +90,10 @@ impl Analysis {
 }
 
 /// Runs every storm in parallel with the study's own ponds.
-pub fn run_storms_parallel(study: &Study) -> Vec<StormResult> {
+///
+/// # Errors
+/// The first storm that cannot be simulated ([`network::SimulationError`]).
+pub fn run_storms_parallel(study: &Study) -> Result<Vec<StormResult>, network::SimulationError> {
     let all: Vec<usize> = (0..study.conditions.len()).collect();
     (0..study.storms.len())
         .into_par_iter()
@@ -289,10 +292,17 @@ pub fn graphical_checks(study: &Study, storms: &[StormResult]) -> Vec<GraphicalC
 }
 
 /// Runs the whole design-storm analysis of a study.
-pub fn analyse(study: &Study) -> Analysis {
-    let storms = run_storms_parallel(study);
-    finish(study, storms)
+///
+/// # Errors
+/// A storm that cannot be simulated: a pond that cannot be routed, a
+/// result that is not a finite number, a run too long.
+pub fn analyse(study: &Study) -> Result<Analysis, crate::error::Error> {
+    let storms = run_storms_parallel(study)?;
+    Ok(finish(study, storms))
 }
+
+/// Mass-balance errors above this fraction of the inflow volume are warned about.
+pub const MASS_BALANCE_WARN: f64 = 0.001;
 
 /// The checks and warnings for a set of storm results.
 pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
@@ -326,6 +336,15 @@ pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
                         pond: pond.clone(),
                         storm: study.storms[s.storm].name.clone(),
                         condition: study.conditions[c.condition].clone(),
+                    });
+                }
+                let mb = pr.summary.mass_balance_error;
+                if mb.abs() > MASS_BALANCE_WARN {
+                    warnings.push(Warning::MassBalance {
+                        pond: pond.clone(),
+                        run: format!("storm \"{}\"", study.storms[s.storm].name),
+                        condition: study.conditions[c.condition].clone(),
+                        error: mb,
                     });
                 }
                 if pr.summary.never_filled_above_lowest_outlet {

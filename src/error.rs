@@ -140,6 +140,10 @@ pub enum Error {
         /// What and where.
         message: String,
     },
+    /// A storm or record cannot be simulated with these inputs (a pond that
+    /// cannot be routed, a result that is not finite, a run too long).
+    #[error("{0}")]
+    Simulation(#[from] crate::network::SimulationError),
     /// The run would need more memory than runnel allows itself.
     #[error("{message}")]
     TooLarge {
@@ -155,6 +159,7 @@ impl Error {
             Error::Input(_)
             | Error::Read { .. }
             | Error::TooLarge { .. }
+            | Error::Simulation(_)
             | Error::Compute { .. } => 2,
             Error::Write { .. } => 3,
         }

@@ -133,7 +133,13 @@ pub enum GaugeErrorKind {
     TooLong,
     /// The file could not be read to its end.
     Unreadable,
+    /// A line is longer than [`MAX_LINE_BYTES`] (not a gauge row).
+    LineTooLong,
 }
+
+/// Longest line a gauge file may have, in bytes: a row is a time and a
+/// depth, well under 100 bytes; a longer line is not a row.
+pub const MAX_LINE_BYTES: usize = 4096;
 
 /// An error in a gauge file, with where it is and what was expected.
 ///
@@ -638,9 +644,17 @@ pub fn parse_gauge_reader<R: std::io::Read>(
             match buf.iter().rposition(|&c| c == b'\n') {
                 Some(i) => i + 1,
                 None => {
-                    // A line longer than the chunk: read on.
-                    eof = read_more(&mut reader, &mut buf, CHUNK_BYTES, lines_before)?;
-                    continue;
+                    // A whole chunk without a line end: not a gauge row.
+                    return Err(GaugeError::new(
+                        K::LineTooLong,
+                        lines_before + 1,
+                        Some(1),
+                        format!(
+                            "the line is longer than {MAX_LINE_BYTES} bytes ({} bytes read without a line end)",
+                            buf.len()
+                        ),
+                        "rows of a time and a depth, one per line",
+                    ));
                 }
             }
         };
@@ -1025,6 +1039,18 @@ impl RowState {
         max_rows: usize,
     ) -> Result<(), GaugeError> {
         use GaugeErrorKind as K;
+        if line.len() > MAX_LINE_BYTES {
+            return Err(GaugeError::new(
+                K::LineTooLong,
+                line_no,
+                Some(1),
+                format!(
+                    "the line is {} bytes long, more than {MAX_LINE_BYTES}",
+                    line.len()
+                ),
+                "rows of a time and a depth, one per line",
+            ));
+        }
         let value_name = match self.column {
             DepthColumn::Depth => "depth",
             DepthColumn::Cumulative => "cumulative total",
@@ -1293,6 +1319,34 @@ mod tests {
             t.push_str(&format!("{} {},{d}\r\n", &stamp[..10], &stamp[11..16]));
         }
         t
+    }
+
+    #[test]
+    fn an_overlong_line_is_refused_at_its_line_without_reading_on() {
+        // contract (scenario-format.md, Rainfall CSV): one row per line. A
+        // line of 3 MB, and one of 5 kB, are not rows; the reader stops
+        // after the first megabyte of the long one.
+        let mut text = b"time,depth\n2001-01-01 00:05,0\n".to_vec();
+        text.extend(std::iter::repeat_n(b'7', 3 << 20));
+        let mut served = 0usize;
+        struct Counting<'a>(&'a [u8], &'a mut usize);
+        impl std::io::Read for Counting<'_> {
+            fn read(&mut self, out: &mut [u8]) -> std::io::Result<usize> {
+                let k = out.len().min(self.0.len());
+                out[..k].copy_from_slice(&self.0[..k]);
+                self.0 = &self.0[k..];
+                *self.1 += k;
+                Ok(k)
+            }
+        }
+        let e = parse_gauge_reader(Counting(&text, &mut served), None, &opts()).unwrap_err();
+        assert_eq!((e.kind, e.line), (GaugeErrorKind::LineTooLong, 3));
+        assert!(served <= 2 << 20, "read {served} bytes");
+        let mut short = String::from("time,depth\n2001-01-01 00:05,0\n2001-01-01 00:10,");
+        short.push_str(&"1".repeat(5000));
+        short.push('\n');
+        let e = parse(&short).unwrap_err();
+        assert_eq!((e.kind, e.line), (GaugeErrorKind::LineTooLong, 3));
     }
 
     /// A reader that hands out at most `step` bytes per call.

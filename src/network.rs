@@ -16,6 +16,74 @@ use crate::unit_hydrograph;
 /// Hours of simulation allowed after the last rain or inflow (contract: 7 days).
 pub const TAIL_H: f64 = 7.0 * 24.0;
 
+/// Largest number of steps one storm may run (the scenario's limit).
+pub const MAX_RUN_STEPS: usize = crate::scenario::MAX_STEPS;
+
+/// Why a storm could not be simulated. Each is a problem with the input
+/// (exit code 2): a value the methods cannot carry to a finite answer.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum SimulationError {
+    /// A pond's stage-storage-discharge table cannot be built for what flows into it.
+    #[error(
+        "pond \"{pond}\" ({condition}, {run}): it cannot be routed: {source}; check that the stage-area table gives areas in ft2 or m2 (not acres or hectares) and that the pond can hold the water that reaches it"
+    )]
+    PondTable {
+        /// Pond.
+        pond: String,
+        /// Storm or record.
+        run: String,
+        /// Condition.
+        condition: String,
+        /// Why the table failed.
+        source: pond::PondError,
+    },
+    /// A result is NaN or infinite.
+    #[error(
+        "{kind} \"{element}\" ({condition}, {run}): its {what} is not a finite number ({value}); some input is too large to compute with - check the depths, areas, flows and times that reach it"
+    )]
+    NotFinite {
+        /// catchment, pond, inflow or point.
+        kind: &'static str,
+        /// Element or point.
+        element: String,
+        /// Storm or record.
+        run: String,
+        /// Condition.
+        condition: String,
+        /// Which result (peak flow, volume, stage, storage).
+        what: &'static str,
+        /// The value found.
+        value: f64,
+    },
+    /// The run would be longer than runnel allows.
+    #[error(
+        "{run}: with its rain or inflow, the lags along the network and the {tail:.0}-h tail the run would last {hours:.3e} h, {steps:.3e} steps at the step of {step_min} min, more than runnel's limit of {limit}; shorten the `lag` or inflow times, or use a coarser `step`"
+    )]
+    TooLong {
+        /// Storm.
+        run: String,
+        /// Hours the run would last.
+        hours: f64,
+        /// Steps it would need.
+        steps: f64,
+        /// The step, min.
+        step_min: f64,
+        /// The tail after the last rain or inflow, h.
+        tail: f64,
+        /// [`MAX_RUN_STEPS`].
+        limit: usize,
+    },
+}
+
+/// Word for an element kind in messages.
+pub fn kind_word(k: &ElementKind) -> &'static str {
+    match k {
+        ElementKind::Catchment(_) => "catchment",
+        ElementKind::Pond(_) => "pond",
+        ElementKind::Inflow(_) => "inflow",
+    }
+}
+
 /// Results of one storm for the conditions simulated.
 #[derive(Debug, Clone)]
 pub struct StormResult {
@@ -190,34 +258,78 @@ pub fn catchment_uh(c: &crate::model::Catchment, step_h: f64) -> Vec<f64> {
     unit_hydrograph::ordinates_cfs_per_in(c.shape, c.area_ac, tp, step_h)
 }
 
-/// Number of steps simulated before trimming for a storm.
-pub fn horizon_steps(study: &Study, storm: usize) -> usize {
+/// Sum of the `lag`s (h) from element `i` down to its point, its own included.
+pub fn path_lag_h(study: &Study, i: usize) -> f64 {
+    let mut at = i;
+    let mut lag = 0.0;
+    for _ in 0..=study.elements.len() {
+        lag += study.elements[at].lag_h.max(0.0);
+        match study.elements[at].to {
+            Target::Point(_) => break,
+            Target::Element(j) => at = j,
+        }
+    }
+    lag
+}
+
+/// Number of steps simulated before trimming for a storm: the last rain or
+/// inflow, plus the longest sum of lags from any element to its point (so
+/// no lagged runoff falls off the end), plus [`TAIL_H`].
+///
+/// # Errors
+/// [`SimulationError::TooLong`] past [`MAX_RUN_STEPS`] steps.
+pub fn horizon_steps(study: &Study, storm: usize) -> Result<usize, SimulationError> {
     let s = &study.storms[storm];
     let inflow_end = study
         .elements
         .iter()
         .filter_map(|e| match &e.kind {
             ElementKind::Inflow(i) if i.storm.is_none() || i.storm == Some(storm) => {
-                Some(i.end_h() + e.lag_h)
+                Some(i.end_h())
             }
             _ => None,
         })
         .fold(0.0, f64::max);
-    let end = s.rain_end_h().max(inflow_end) + TAIL_H;
-    (end / study.step_h).ceil().max(1.0) as usize
+    let max_lag = (0..study.elements.len())
+        .map(|i| path_lag_h(study, i))
+        .fold(0.0, f64::max);
+    let end = s.rain_end_h().max(inflow_end) + max_lag + TAIL_H;
+    let steps = (end / study.step_h).ceil().max(1.0);
+    if !(steps.is_finite() && steps <= MAX_RUN_STEPS as f64) {
+        return Err(SimulationError::TooLong {
+            run: format!("storm \"{}\"", s.name),
+            hours: end,
+            steps,
+            step_min: study.step_h * 60.0,
+            tail: TAIL_H,
+            limit: MAX_RUN_STEPS,
+        });
+    }
+    Ok(steps as usize)
 }
 
 /// Simulates one storm for the given conditions and trims the run to where
 /// every flow has fallen below 0.1 % of its peak and every pond has drained.
-pub fn simulate_storm(study: &Study, storm: usize, conditions: &[usize]) -> StormResult {
+///
+/// # Errors
+/// A run longer than [`MAX_RUN_STEPS`], a pond that cannot be routed, or
+/// a result that is not a finite number ([`SimulationError`]).
+pub fn simulate_storm(
+    study: &Study,
+    storm: usize,
+    conditions: &[usize],
+) -> Result<StormResult, SimulationError> {
     let step_h = study.step_h;
-    let n = horizon_steps(study, storm);
+    let n = horizon_steps(study, storm)?;
     let len = n + 1;
     let rain = study.storms[storm].rain_at_step(step_h, n);
     let mut results: Vec<ConditionResult> = conditions
         .iter()
         .map(|&c| simulate_condition(study, storm, c, &rain, len))
-        .collect();
+        .collect::<Result<_, _>>()?;
+    for r in &results {
+        check_finite(study, storm, r)?;
+    }
 
     // Trim: last index where any series is at least 0.1 % of its peak.
     let rain_end = rain
@@ -298,12 +410,73 @@ pub fn simulate_storm(study: &Study, storm: usize, conditions: &[usize]) -> Stor
             er.outflow_cfs = e_out;
         }
     }
-    StormResult {
+    Ok(StormResult {
         storm,
         step_h,
         rain_in: rain,
         conditions: results,
+    })
+}
+
+/// The first value of `v` that is NaN or infinite, if any.
+fn first_non_finite(v: &[f64]) -> Option<f64> {
+    v.iter().copied().find(|x| !x.is_finite())
+}
+
+/// Every series of a condition's storm result must be finite: a NaN or an
+/// infinity anywhere is an error naming the element, never a result.
+fn check_finite(study: &Study, storm: usize, r: &ConditionResult) -> Result<(), SimulationError> {
+    let err = |kind, element: &str, what, value| SimulationError::NotFinite {
+        kind,
+        element: element.to_string(),
+        run: format!("storm \"{}\"", study.storms[storm].name),
+        condition: study.conditions[r.condition].clone(),
+        what,
+        value,
+    };
+    for (i, e) in r.elements.iter().enumerate() {
+        let Some(e) = e else { continue };
+        let el = &study.elements[i];
+        let kind = kind_word(&el.kind);
+        if let Some(v) = first_non_finite(&e.outflow_cfs) {
+            return Err(err(kind, &el.name, "outflow", v));
+        }
+        if let Some(p) = &e.pond {
+            for (what, series) in [
+                ("inflow", &p.inflow_cfs),
+                ("stage", &p.stage_ft),
+                ("storage", &p.storage_ft3),
+            ] {
+                if let Some(v) = first_non_finite(series) {
+                    return Err(err(kind, &el.name, what, v));
+                }
+            }
+        }
+        if let Some(ro) = &e.runoff
+            && !(ro.rain_in.is_finite() && ro.runoff_in.is_finite())
+        {
+            let v = if ro.rain_in.is_finite() {
+                ro.runoff_in
+            } else {
+                ro.rain_in
+            };
+            return Err(err(kind, &el.name, "rain or runoff depth", v));
+        }
+        let vol = volume_ft3(&e.outflow_cfs, study.step_h);
+        if !vol.is_finite() {
+            return Err(err(kind, &el.name, "outflow volume", vol));
+        }
     }
+    for (pi, q) in r.points.iter().enumerate() {
+        if let Some(v) = first_non_finite(q) {
+            return Err(err("point", &study.points[pi].name, "flow", v));
+        }
+        let vol = volume_ft3(q, study.step_h);
+        if !vol.is_finite() {
+            return Err(err("point", &study.points[pi].name, "volume", vol));
+        }
+    }
+    Ok(())
 }
 
 /// First index after the peak where storage above the start falls below 1 % of its peak.
@@ -331,7 +504,7 @@ fn simulate_condition(
     c: usize,
     rain: &[f64],
     len: usize,
-) -> ConditionResult {
+) -> Result<ConditionResult, SimulationError> {
     let step_h = study.step_h;
     let ne = study.elements.len();
     let mut inputs: Vec<Vec<f64>> = vec![Vec::new(); ne];
@@ -377,7 +550,22 @@ fn simulate_condition(
                 } else {
                     inflow
                 };
-                route_pond(p, inflow, step_h)
+                if let Some(value) = first_non_finite(&inflow) {
+                    return Err(SimulationError::NotFinite {
+                        kind: "pond",
+                        element: e.name.clone(),
+                        run: format!("storm \"{}\"", study.storms[storm].name),
+                        condition: study.conditions[c].clone(),
+                        what: "inflow",
+                        value,
+                    });
+                }
+                route_pond(p, inflow, step_h).map_err(|source| SimulationError::PondTable {
+                    pond: e.name.clone(),
+                    run: format!("storm \"{}\"", study.storms[storm].name),
+                    condition: study.conditions[c].clone(),
+                    source,
+                })?
             }
         };
         match e.to {
@@ -391,28 +579,29 @@ fn simulate_condition(
         }
         elements[i] = Some(result);
     }
-    ConditionResult {
+    Ok(ConditionResult {
         condition: c,
         elements,
         points,
-    }
+    })
 }
 
 /// Builds the pond's routing table for an inflow and routes it.
-pub fn route_pond(p: &Pond, inflow: Vec<f64>, step_h: f64) -> ElementResult {
+///
+/// # Errors
+/// When the table cannot be built for this inflow (never routed as zero
+/// outflow).
+pub fn route_pond(
+    p: &Pond,
+    inflow: Vec<f64>,
+    step_h: f64,
+) -> Result<ElementResult, pond::PondError> {
     let dt_s = step_h * 3600.0;
     let start = start_stage_ft(p);
-    let table = pond_table(p, &inflow, dt_s, start);
-    let routed = match &table {
-        Ok(t) => pond::route(t, &inflow, start),
-        Err(_) => Routed {
-            outflow_cfs: vec![0.0; inflow.len()],
-            stage_ft: vec![start; inflow.len()],
-            storage_ft3: vec![p.storage.volume_ft3(start); inflow.len()],
-        },
-    };
+    let table = pond_table(p, &inflow, dt_s, start)?;
+    let routed = pond::route(&table, &inflow, start);
     let summary = pond::summarize_series(&inflow, &routed, dt_s, start, p.top_ft, &p.outlets);
-    ElementResult {
+    Ok(ElementResult {
         outflow_cfs: routed.outflow_cfs,
         runoff: None,
         pond: Some(PondResult {
@@ -422,7 +611,7 @@ pub fn route_pond(p: &Pond, inflow: Vec<f64>, step_h: f64) -> ElementResult {
             summary,
             start_ft: start,
         }),
-    }
+    })
 }
 
 /// The stage-storage-discharge table of a pond for a given inflow.

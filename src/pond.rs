@@ -507,6 +507,56 @@ impl Embankment {
     }
 }
 
+/// Rows of the fine grid (at the grid step) before the spacing grows with
+/// depth: 50 000 rows, 500 ft at the default 0.01-ft step.
+pub const FINE_GRID_ROWS: usize = 50_000;
+
+/// Relative spacing of the grid above [`FINE_GRID_ROWS`]: each stage is
+/// 0.1 % of its depth above the bottom higher than the one below.
+const DEEP_GRID_RATIO: f64 = 1e-3;
+
+/// The grid stages above `bottom` (exclusive) up to the first one at or
+/// above `end` whose storage reaches `max_storage_ft3`: every `step` ft for
+/// the first [`FINE_GRID_ROWS`] rows, then spaced by [`DEEP_GRID_RATIO`] of
+/// the depth, so that the number of rows grows with the logarithm of the
+/// depth the water can reach, not with the depth itself.
+fn grid_stages(
+    storage: &StageStorage,
+    bottom: f64,
+    step: f64,
+    end: f64,
+    max_storage_ft3: f64,
+) -> Result<Vec<f64>, PondError> {
+    let needed = ((end - bottom) / step).ceil();
+    let too_many = |rows: f64, to_ft: f64| PondError::TooManyRows {
+        rows,
+        limit: MAX_TABLE_ROWS,
+        from_ft: bottom,
+        to_ft,
+        step_ft: step,
+    };
+    if !needed.is_finite() {
+        return Err(too_many(needed, end));
+    }
+    let fine = (needed.max(1.0) as usize).min(FINE_GRID_ROWS);
+    let mut out: Vec<f64> = (1..=fine).map(|i| bottom + i as f64 * step).collect();
+    let mut h = bottom + fine as f64 * step;
+    // more while rounding (or the row cap) leaves the last stage short of the bound
+    while storage.volume_ft3(h) < max_storage_ft3 {
+        let next = if out.len() < FINE_GRID_ROWS {
+            bottom + (out.len() + 1) as f64 * step
+        } else {
+            h + step.max(DEEP_GRID_RATIO * (h - bottom))
+        };
+        if !(next.is_finite() && next > h) || out.len() + 1 >= MAX_TABLE_ROWS {
+            return Err(too_many(out.len() as f64 + 1.0, end));
+        }
+        h = next;
+        out.push(h);
+    }
+    Ok(out)
+}
+
 /// One grid segment of a [`PondTable`], laid out for the routing loop: the
 /// values at its lower row and their increments to the upper row.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -639,28 +689,13 @@ impl PondTable {
                 storage_ft3: max_storage_ft3,
             });
         }
-        let mut end = s_bound.max(bottom + step);
-        if let Some(e) = embankment {
-            end = end.max(e.top_ft + step);
-        }
-        let n_f = ((end - bottom) / step).ceil() + 1.0;
-        if !(n_f.is_finite() && n_f <= MAX_TABLE_ROWS as f64) {
-            return Err(PondError::TooManyRows {
-                rows: n_f,
-                limit: MAX_TABLE_ROWS,
-                from_ft: bottom,
-                to_ft: end,
-                step_ft: step,
-            });
-        }
-        // lattice intervals; one more while rounding leaves the last stage short of the bound
-        let mut n = (n_f as usize).max(2) - 1;
-        while n + 1 < MAX_TABLE_ROWS
-            && storage.volume_ft3(bottom + n as f64 * step) < max_storage_ft3
-        {
-            n += 1;
-        }
-        let last = bottom + n as f64 * step;
+        // The grid reaches as far as the water can go and no further: an
+        // embankment top above the storage bound is never reached, so it
+        // does not lengthen the table.
+        let end = s_bound.max(bottom + step);
+        let lattice = grid_stages(storage, bottom, step, end, max_storage_ft3)?;
+        let last = *lattice.last().unwrap_or(&bottom);
+        let n = lattice.len();
 
         // stages the grid must contain; and, in the first grid cell above
         // each stage where an outlet (or the embankment) begins to flow,
@@ -705,11 +740,7 @@ impl PondTable {
         };
         let mut stage_ft: Vec<f64> = Vec::with_capacity(n + 1 + must.len());
         stage_ft.push(bottom);
-        stage_ft.extend(
-            (1..=n)
-                .map(|i| bottom + i as f64 * step)
-                .filter(|&g| !near_must(g)),
-        );
+        stage_ft.extend(lattice.iter().copied().filter(|&g| !near_must(g)));
         stage_ft.extend(must.iter().copied());
         stage_ft.sort_by(f64::total_cmp);
 
@@ -1519,8 +1550,11 @@ mod tests {
             crest_length_ft: 30.0,
             coefficient: 2.6,
         };
+        // the water can reach 106.6 ft, above every key stage
+        let reach = storage.volume_ft3(106.6);
         for step in [STEP_FT, 0.003 / 0.3048] {
-            let table = PondTable::build(&storage, &outlets, Some(&bank), 60.0, step, 0.0).unwrap();
+            let table =
+                PondTable::build(&storage, &outlets, Some(&bank), 60.0, step, reach).unwrap();
             let stages: Vec<f64> = table.rows().map(|r| r.0).collect();
             let mut keys: Vec<f64> = outlets.iter().flat_map(Outlet::key_stages_ft).collect();
             keys.extend([100.0, 102.0, 104.0, 106.0, 106.5]);
@@ -1601,10 +1635,12 @@ mod tests {
     fn impossible_tables_give_errors_not_panics() {
         let storage = StageStorage::from_stage_area(&example_area_rows()).unwrap();
         let o = many_outlets();
-        assert!(matches!(
-            PondTable::build(&storage, &o, None, 60.0, 1e-7, 1e5),
-            Err(PondError::TooManyRows { .. })
-        ));
+        // a step of 1e-7 ft: the fine grid stops after FINE_GRID_ROWS rows
+        // and the spacing then grows with depth, so the table stays bounded
+        let t = PondTable::build(&storage, &o, None, 60.0, 1e-7, 1e5).unwrap();
+        assert!(t.row_count() < FINE_GRID_ROWS + 20_000, "{}", t.row_count());
+        let (_, s_last, _) = t.rows().last().unwrap();
+        assert!(s_last >= 1e5);
         assert!(matches!(
             PondTable::build(&storage, &o, None, 0.0, STEP_FT, 1e5),
             Err(PondError::InvalidParameter { .. })
@@ -1629,6 +1665,72 @@ mod tests {
             coefficient: 2.6,
         };
         assert!(PondTable::build(&storage, &o, Some(&bad_bank), 60.0, STEP_FT, 1e5).is_err());
+    }
+
+    #[test]
+    fn a_tall_top_does_not_lengthen_the_table() {
+        // common practice, no published source: the table need reach only
+        // as high as the water can go. A top typed as 10310.97 ft for a pond
+        // near 103 ft gives the same table as a top of 107 ft.
+        let storage = StageStorage::from_stage_area(&example_area_rows()).unwrap();
+        let o = many_outlets();
+        let bound = storage.volume_ft3(105.0);
+        let bank = |top_ft| Embankment {
+            top_ft,
+            crest_length_ft: 30.0,
+            coefficient: 2.6,
+        };
+        let low = PondTable::build(&storage, &o, Some(&bank(107.0)), 60.0, STEP_FT, bound).unwrap();
+        let tall =
+            PondTable::build(&storage, &o, Some(&bank(10_310.97)), 60.0, STEP_FT, bound).unwrap();
+        assert_eq!(low.row_count(), tall.row_count());
+        assert!(tall.row_count() < 700, "{}", tall.row_count());
+        // and when the water could reach such a top, the rows grow with the
+        // logarithm of the depth, not with the depth
+        let deep = storage.volume_ft3(10_400.0);
+        let t =
+            PondTable::build(&storage, &o, Some(&bank(10_310.97)), 60.0, STEP_FT, deep).unwrap();
+        // 50 000 rows to 500 ft of depth, then ln(10 300 / 500) / ln(1.001) = 3027 more
+        assert!(t.row_count() < FINE_GRID_ROWS + 3_200, "{}", t.row_count());
+        let top_row = t.rows().map(|r| r.0).find(|&h| h == 10_310.97);
+        assert_eq!(top_row, Some(10_310.97));
+    }
+
+    #[test]
+    fn areas_typed_in_acres_are_routed_on_a_bounded_table() {
+        // common practice, no published source: a stage-area table in acres
+        // (0.5 and 1.2 "ft2") under a 100-cfs, 2-hour inflow: the orifice
+        // passes 100 cfs only about 10 800 ft up (orifice equation, Bedient,
+        // Huber & Vieux ch. 4), so the table must reach that far, in bounded
+        // rows. The pond holds next to nothing, so the outflow is the inflow;
+        // the step is far above 2 dS/dO, and the mass balance is off by more
+        // than 0.1 %, which the analysis warns about.
+        let storage = StageStorage::from_stage_area(&[(100.0, 0.5), (106.0, 1.2)]).unwrap();
+        let o = vec![Outlet::CircularOrifice {
+            invert_ft: 100.0,
+            diameter_ft: 0.5,
+            cd: 0.61,
+        }];
+        let dt = 300.0;
+        let inflow: Vec<f64> = (0..=48).map(|k| if k < 24 { 100.0 } else { 0.0 }).collect();
+        let bound = trapezoid(&inflow, dt) * 1.02 + 1.0;
+        let table = PondTable::build(&storage, &o, None, dt, STEP_FT, bound).unwrap();
+        assert!(
+            table.row_count() < FINE_GRID_ROWS + 20_000,
+            "{}",
+            table.row_count()
+        );
+        let routed = route(&table, &inflow, 100.0);
+        let s = summarize(&table, &inflow, &routed, dt, 100.0, None);
+        assert!(
+            (s.peak_outflow_cfs - 100.0).abs() < 5.0 && s.peak_stage_ft > 1000.0,
+            "{s:?}"
+        );
+        assert!(
+            s.mass_balance_error.is_finite() && s.mass_balance_error.abs() > 0.001,
+            "{}",
+            s.mass_balance_error
+        );
     }
 
     #[test]

@@ -95,11 +95,15 @@ fn value_at(d: &SizedDim, opening: f64) -> f64 {
 }
 
 /// Simulates the conditions that hold a sized pond, reusing the rest.
-fn simulate(study: &Study, cache: &[StormResult], conditions: &[usize]) -> Vec<StormResult> {
+fn simulate(
+    study: &Study,
+    cache: &[StormResult],
+    conditions: &[usize],
+) -> Result<Vec<StormResult>, network::SimulationError> {
     (0..study.storms.len())
         .into_par_iter()
         .map(|s| {
-            let mut fresh = network::simulate_storm(study, s, conditions);
+            let mut fresh = network::simulate_storm(study, s, conditions)?;
             let mut merged = cache[s].clone();
             for c in fresh.conditions.drain(..) {
                 if let Some(slot) = merged
@@ -122,7 +126,7 @@ fn simulate(study: &Study, cache: &[StormResult], conditions: &[usize]) -> Vec<S
                     p.resize(len, 0.0);
                 }
             }
-            merged
+            Ok(merged)
         })
         .collect()
 }
@@ -233,9 +237,13 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
     let cache: Vec<StormResult> = (0..study.storms.len())
         .into_par_iter()
         .map(|s| network::simulate_storm(study, s, &all))
-        .collect();
+        .collect::<Result<_, _>>()?;
+    // A trial value whose storms cannot be simulated meets nothing (the
+    // final values are simulated again by the analysis, which reports why).
     let feasible = |study: &Study, pond: usize| -> (bool, Vec<Check>) {
-        let storms = simulate(study, &cache, &conditions);
+        let Ok(storms) = simulate(study, &cache, &conditions) else {
+            return (false, Vec::new());
+        };
         let ch = checks(study, &storms, pond);
         (ch.iter().all(Check::pass), ch)
     };

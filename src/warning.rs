@@ -109,6 +109,96 @@ pub enum Warning {
         /// Graphical peak (results' units).
         graphical: String,
     },
+    /// A routing whose volumes do not balance to 0.1 %.
+    MassBalance {
+        /// Pond.
+        pond: String,
+        /// `storm "NAME"` or `record "NAME"`.
+        run: String,
+        /// Condition.
+        condition: String,
+        /// (inflow - outflow - change in storage) / inflow.
+        error: f64,
+    },
+    /// A pond rose over its top during a long record.
+    RecordOvertopped {
+        /// Pond.
+        pond: String,
+        /// Record.
+        record: String,
+        /// Condition.
+        condition: String,
+        /// When the highest stage came.
+        when: String,
+        /// The highest stage, with its unit.
+        stage: String,
+        /// How far above the top, with its unit.
+        above: String,
+    },
+    /// Water still stored in a pond, or not yet at a point, when a record ends.
+    RecordWaterLeft {
+        /// Record.
+        record: String,
+        /// Condition.
+        condition: String,
+        /// `pond "NAME"` or `point "NAME"`.
+        element: String,
+        /// The volume, with its unit.
+        left: String,
+        /// The volume as a percentage of what entered.
+        percent: f64,
+        /// Where the water is ("is still stored in it", ...).
+        what: &'static str,
+    },
+    /// Runoff shifted by a `lag` past the end of a record.
+    RecordLagPastEnd {
+        /// Record.
+        record: String,
+        /// Condition.
+        condition: String,
+        /// Element.
+        element: String,
+        /// The lag, h.
+        lag_h: f64,
+        /// The volume lost, with its unit.
+        lost: String,
+    },
+    /// Calendar years at the ends of a record with less than 90 % of their intervals.
+    RecordIncompleteYears {
+        /// Record.
+        record: String,
+        /// (year, percentage of its intervals in the record).
+        years: Vec<(i32, f64)>,
+    },
+    /// A log-Pearson III fit from fewer than 10 years.
+    RecordShortFit {
+        /// Record.
+        record: String,
+        /// The element (None: every element, the record is short).
+        element: Option<String>,
+        /// Years behind the fit.
+        years: usize,
+    },
+    /// A record's step over 0.25 Tp of a catchment.
+    RecordStepCoarse {
+        /// Record.
+        record: String,
+        /// Catchment.
+        catchment: String,
+        /// Step, h.
+        step_h: f64,
+        /// Tp at that step, h.
+        tp_h: f64,
+    },
+    /// A record's step coarser than its gauge interval.
+    RecordStepCoarserThanGauge {
+        /// Record.
+        record: String,
+        /// Step, h.
+        step_h: f64,
+        /// Gauge interval, h.
+        interval_h: f64,
+    },
     /// Anything else, worded in full.
     Note(String),
 }
@@ -129,6 +219,14 @@ impl Warning {
             Warning::OrificeNeverSubmerged { .. } => "orifice-never-submerged",
             Warning::Overtopped { .. } => "overtopped",
             Warning::GraphicalPeakDiffers { .. } => "graphical-peak-differs",
+            Warning::MassBalance { .. } => "mass-balance",
+            Warning::RecordOvertopped { .. } => "record-overtopped",
+            Warning::RecordWaterLeft { .. } => "record-water-left",
+            Warning::RecordLagPastEnd { .. } => "record-lag-past-end",
+            Warning::RecordIncompleteYears { .. } => "record-incomplete-years",
+            Warning::RecordShortFit { .. } => "record-short-fit",
+            Warning::RecordStepCoarse { .. } => "record-step-coarse",
+            Warning::RecordStepCoarserThanGauge { .. } => "record-step-coarser-than-gauge",
             Warning::Note(_) => "note",
         }
     }
@@ -216,6 +314,97 @@ impl fmt::Display for Warning {
             } => write!(
                 f,
                 "catchment \"{catchment}\", {storm}: the hydrograph peak {hydrograph} and the TR-55 graphical-method peak {graphical} differ by more than 25 % - check Tc, CN and the step"
+            ),
+            Warning::MassBalance {
+                pond,
+                run,
+                condition,
+                error,
+            } => write!(
+                f,
+                "pond \"{pond}\" ({condition}, {run}): the routing's mass balance is off by {:.2} % of the inflow volume (more than 0.1 %); its outflow and stage are not reliable - use a smaller `step` (the pond is small for its outlets at this step) or check the pond's tables",
+                error * 100.0
+            ),
+            Warning::RecordOvertopped {
+                pond,
+                record,
+                condition,
+                when,
+                stage,
+                above,
+            } => write!(
+                f,
+                "pond \"{pond}\" overtops in record \"{record}\" ({condition}): the water reaches {stage} at {when}, {above} above the top of embankment - enlarge the pond or the spillway"
+            ),
+            Warning::RecordWaterLeft {
+                record,
+                condition,
+                element,
+                left,
+                percent,
+                what,
+            } => write!(
+                f,
+                "record \"{record}\" ({condition}), {element}: when the record ends, {left} ({percent:.2} % of the water that entered) {what}; the record's totals and durations leave it out - extend the record past its last storm (dry rows at the end) to count it"
+            ),
+            Warning::RecordLagPastEnd {
+                record,
+                condition,
+                element,
+                lag_h,
+                lost,
+            } => write!(
+                f,
+                "record \"{record}\" ({condition}), \"{element}\": its lag of {lag_h} h shifts {lost} of its flow past the end of the record, where it is lost - extend the record past its last storm or check the `lag`"
+            ),
+            Warning::RecordIncompleteYears { record, years } => {
+                write!(f, "record \"{record}\": ")?;
+                for (k, (y, pct)) in years.iter().enumerate() {
+                    if k > 0 {
+                        write!(f, ", ")?;
+                    }
+                    write!(f, "{y} ({pct:.1} % of its intervals)")?;
+                }
+                write!(
+                    f,
+                    " {} not a complete calendar year; years with less than 90 % of their intervals are left out of the annual series and the LP3 fit (and listed as incomplete) - start and end the record on 1 January to use every year",
+                    if years.len() == 1 { "is" } else { "are" }
+                )
+            }
+            Warning::RecordShortFit {
+                record,
+                element,
+                years,
+            } => match element {
+                None => write!(
+                    f,
+                    "record \"{record}\": only {years} complete calendar year(s); log-Pearson III flows fitted to fewer than 10 annual peaks are very uncertain (Bulletin 17B asks for at least 10 years) - use a longer record, or read Q2 to Q100 as rough"
+                ),
+                Some(e) => write!(
+                    f,
+                    "record \"{record}\", {e}: the log-Pearson III fit rests on {years} year(s) with flow (years of zero flow are left out), fewer than 10 - its frequency flows are very uncertain"
+                ),
+            },
+            Warning::RecordStepCoarse {
+                record,
+                catchment,
+                step_h,
+                tp_h,
+            } => write!(
+                f,
+                "record \"{record}\", catchment \"{catchment}\": the record's step of {:.1} min is more than 0.25 Tp (Tp = {:.1} min); the unit hydrograph is poorly resolved and peaks are smoothed - set a smaller `step` on the record",
+                step_h * 60.0,
+                tp_h * 60.0
+            ),
+            Warning::RecordStepCoarserThanGauge {
+                record,
+                step_h,
+                interval_h,
+            } => write!(
+                f,
+                "record \"{record}\": the step of {:.1} min is coarser than the gauge interval of {:.1} min, so the rain of several intervals is lumped and peaks are lower than the gauge supports - set `step` to the gauge interval or a divisor of it",
+                step_h * 60.0,
+                interval_h * 60.0
             ),
             Warning::Note(s) => f.write_str(s),
         }

@@ -428,8 +428,14 @@ fn load_and_run(path: &Path) -> bool {
     }
     // Sizing is left out: it repeats the analysis many times, and a
     // generated range can make it take far too long for a unit of fuzzing.
-    let a = runnel::analysis::analyse(&study);
-    assert_eq!(a.storms.len(), study.storms.len());
+    match runnel::analysis::analyse(&study) {
+        Ok(a) => assert_eq!(a.storms.len(), study.storms.len()),
+        // A storm that cannot be simulated is refused as input, with a message.
+        Err(e) => {
+            assert!(!e.to_string().trim().is_empty());
+            assert_eq!(e.exit_code(), 2);
+        }
+    }
     let _ = runnel::records::run(&study, false);
     true
 }

@@ -19,7 +19,9 @@ use std::path::Path;
 pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
     let study = crate::scenario::load(scenario)?;
     crate::cli::run::check_memory(&study)?;
-    let a = analysis::analyse(&study);
+    // The records' gauges as `run` reads them (without simulating).
+    crate::records::validate(&study)?;
+    let a = analysis::analyse(&study)?;
     let s = summary::build(
         &study,
         &a,
@@ -155,7 +157,9 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
 pub fn estimate(scenario: &Path) -> Result<String, Error> {
     let study = crate::scenario::load(scenario)?;
     crate::cli::run::check_memory(&study)?;
-    let a = analysis::analyse(&study);
+    // The records' gauges as `run` reads them (without simulating).
+    crate::records::validate(&study)?;
+    let a = analysis::analyse(&study)?;
     let t = estimate_text(&study, &a);
     Ok(if t.is_empty() {
         "No pond receives an NRCS 24-hour design storm with a limit, so there is nothing to estimate.\n".into()

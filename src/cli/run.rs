@@ -63,13 +63,13 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         &inputs,
     )?;
     let sized = crate::sizing::solve(&mut study)?;
-    let a = analysis::analyse(&study);
+    let a = analysis::analyse(&study)?;
     let t1 = std::time::Instant::now();
     let rec = crate::records::run(&study, progress)?;
     let t_records = t1.elapsed().as_secs_f64();
     let t2 = std::time::Instant::now();
     let run_date = now_utc();
-    let s = summary::build(
+    let mut s = summary::build(
         &study,
         &a,
         sized.outputs.clone(),
@@ -77,6 +77,16 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         rec.comparisons.clone(),
         run_date,
     );
+    // What the long records found: overtopping counts like a storm's.
+    s.all_pass &= rec.pond_checks.iter().all(|c| c.pass);
+    s.pond_checks.extend(rec.pond_checks.iter().cloned());
+    for w in &rec.warnings {
+        s.warning_details.push(summary::WarningOut {
+            code: w.code(),
+            message: w.to_string(),
+        });
+        s.warnings.push(w.to_string());
+    }
     let stage = Staging::new(&out_dir, &inputs)?;
     let plots = write_plots(&study, &a, &stage)?;
     let mut all_plots = plots;
@@ -191,7 +201,7 @@ impl MemoryEstimate {
 /// element's outflow (a pond's inflow, stage and storage too) and each
 /// point's flow.
 fn storm_result_bytes(study: &Study, storm: usize) -> u64 {
-    let len = network::horizon_steps(study, storm) as u64 + 1;
+    let len = network::horizon_steps(study, storm).unwrap_or(usize::MAX - 1) as u64 + 1;
     let series: u64 = (0..study.conditions.len())
         .map(|c| {
             study
@@ -213,7 +223,7 @@ fn storm_result_bytes(study: &Study, storm: usize) -> u64 {
 /// Bytes of one design storm's plot data: per point the rain and each
 /// condition's flow, per pond and condition its inflow, outflow and stage.
 fn storm_plot_bytes(study: &Study, storm: usize) -> u64 {
-    let len = network::horizon_steps(study, storm) as u64 + 1;
+    let len = network::horizon_steps(study, storm).unwrap_or(usize::MAX - 1) as u64 + 1;
     let conditions = study.conditions.len() as u64;
     let ponds: u64 = (0..study.conditions.len())
         .map(|c| {
@@ -238,7 +248,7 @@ pub fn estimate_memory(study: &Study) -> MemoryEstimate {
     // Each worker simulating a storm also holds a catchment's excess, its
     // convolution and the inputs of the ponds downstream.
     let longest = (0..study.storms.len())
-        .map(|s| network::horizon_steps(study, s) as u64 + 1)
+        .map(|s| network::horizon_steps(study, s).unwrap_or(usize::MAX - 1) as u64 + 1)
         .max()
         .unwrap_or(0);
     let workers = rayon::current_num_threads().min(study.storms.len()) as u64;
@@ -291,8 +301,13 @@ pub fn memory_line(study: &Study) -> String {
 /// Refuses a run whose series would not fit under the memory cap.
 ///
 /// # Errors
-/// [`Error::TooLarge`] naming the need and the cap.
+/// A storm longer than runnel's step limit ([`network::SimulationError::TooLong`]),
+/// or [`Error::TooLarge`] naming the need and the cap.
 pub fn check_memory(study: &Study) -> Result<(), Error> {
+    // A storm too long to run at all says why (a lag or inflow time) first.
+    for s in 0..study.storms.len() {
+        network::horizon_steps(study, s)?;
+    }
     let m = estimate_memory(study);
     let need = m.peak();
     if need > study.memory_limit_bytes {

@@ -79,6 +79,9 @@ pub fn load(path: &Path) -> Result<Study, Error> {
         path_spans: b.path_spans.clone(),
     };
     study.warnings.extend(b.warnings);
+    study
+        .warnings
+        .extend(crate::records::input_warnings(&study));
     Ok(study)
 }
 
@@ -2666,6 +2669,23 @@ impl<'a> Builder<'a> {
                         .expected("a coarser step")
                         .hint(format!("use a step of at least {}", format_step_up(series.depth.len() as f64 * interval_h / MAX_STEPS as f64))));
                 }
+                // The record must be a whole number of steps, or its last
+                // step would hold only part of an interval's rain.
+                if (n - n.round()).abs() > 1e-6 * n.max(1.0) {
+                    return Err(self
+                        .err(
+                            &s.span(),
+                            &format!("{ctx}, step"),
+                            format!(
+                                "the step of {} does not divide the record ({} intervals of {}): it would need {n:.3} steps",
+                                format_step_up(v),
+                                series.depth.len(),
+                                format_step_up(interval_h)
+                            ),
+                        )
+                        .expected("a step that divides the record, best the gauge interval or a divisor of it")
+                        .hint(format!("use `step = \"{}\"` (the gauge interval)", format_step_up(interval_h))));
+                }
                 v
             }
             None => interval_h,
@@ -2953,11 +2973,43 @@ fn read_hydrograph_csv(path: &Path) -> R<Vec<(f64, f64)>> {
 /// snippet; read again only when there is an error to show.
 fn line_of_file(path: &std::path::Path, line: usize) -> Option<String> {
     use std::io::BufRead;
-    let file = std::fs::File::open(path).ok()?;
-    let raw = std::io::BufReader::new(file)
-        .split(b'\n')
-        .nth(line.checked_sub(1)?)?
-        .ok()?;
+    // Reads no more of the wanted line than the snippet shows, so a file of
+    // one enormous line costs no more than its first bytes.
+    const KEEP: usize = 480;
+    let mut reader = std::io::BufReader::new(std::fs::File::open(path).ok()?);
+    let mut at = 1usize;
+    let want = line.max(1);
+    let mut raw = Vec::new();
+    loop {
+        let chunk = reader.fill_buf().ok()?;
+        if chunk.is_empty() {
+            break;
+        }
+        let (used, done) = match chunk.iter().position(|&c| c == b'\n') {
+            Some(i) => {
+                if at == want {
+                    let take = i.min(KEEP.saturating_sub(raw.len()));
+                    raw.extend_from_slice(&chunk[..take]);
+                }
+                at += 1;
+                (i + 1, at > want)
+            }
+            None => {
+                if at == want {
+                    let take = chunk.len().min(KEEP.saturating_sub(raw.len()));
+                    raw.extend_from_slice(&chunk[..take]);
+                }
+                (chunk.len(), at == want && raw.len() >= KEEP)
+            }
+        };
+        reader.consume(used);
+        if done {
+            break;
+        }
+    }
+    if at < want {
+        return None;
+    }
     let text = String::from_utf8_lossy(&raw);
     Some(text.trim_end_matches('\r').chars().take(120).collect())
 }
