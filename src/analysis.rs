@@ -369,7 +369,10 @@ pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
             if max_stage.is_finite() && max_stage < crown {
                 warnings.push(Warning::OrificeNeverSubmerged {
                     pond: study.elements[i].name.clone(),
-                    outlet: k,
+                    outlet: crate::sizing::outlet_label(
+                        k,
+                        p.outlet_names.get(k).and_then(|n| n.as_deref()),
+                    ),
                 });
             }
         }

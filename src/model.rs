@@ -241,6 +241,8 @@ pub struct Pond {
     pub storage_kind: &'static str,
     /// Outlets, in the scenario's order.
     pub outlets: Vec<Outlet>,
+    /// Each outlet's optional `name`, in the same order.
+    pub outlet_names: Vec<Option<String>>,
     /// Initial water surface, ft (None: the lowest outlet, or the bottom).
     pub start_ft: Option<f64>,
     /// Top of embankment, ft.

@@ -70,8 +70,8 @@ pub enum Warning {
     OutletAboveTop {
         /// Pond.
         pond: String,
-        /// 0-based outlet index.
-        outlet: usize,
+        /// "outlet 2" or "outlet 2 (\"name\")", numbered from 1.
+        outlet: String,
     },
     /// A pond that never fills above its lowest outlet in a storm.
     PondNeverFills {
@@ -86,8 +86,8 @@ pub enum Warning {
     OrificeNeverSubmerged {
         /// Pond.
         pond: String,
-        /// 0-based outlet index.
-        outlet: usize,
+        /// "outlet 2" or "outlet 2 (\"name\")", numbered from 1.
+        outlet: String,
     },
     /// The water rose over the embankment top.
     Overtopped {
@@ -109,6 +109,21 @@ pub enum Warning {
         /// Graphical peak (results' units).
         graphical: String,
     },
+    /// No value in a sizing range meets every limit.
+    SizingInfeasible {
+        /// Pond.
+        pond: String,
+        /// "outlet 2" or "outlet 2 (\"name\")".
+        outlet: String,
+        /// Sized key.
+        field: String,
+        /// The range, with units.
+        range: String,
+        /// The limits that fail at every size, and why.
+        reason: String,
+        /// The value the results are written at, with its unit.
+        written_at: String,
+    },
     /// Anything else, worded in full.
     Note(String),
 }
@@ -129,6 +144,7 @@ impl Warning {
             Warning::OrificeNeverSubmerged { .. } => "orifice-never-submerged",
             Warning::Overtopped { .. } => "overtopped",
             Warning::GraphicalPeakDiffers { .. } => "graphical-peak-differs",
+            Warning::SizingInfeasible { .. } => "sizing-infeasible",
             Warning::Note(_) => "note",
         }
     }
@@ -186,7 +202,7 @@ impl fmt::Display for Warning {
             ),
             Warning::OutletAboveTop { pond, outlet } => write!(
                 f,
-                "pond \"{pond}\", outlet {outlet}: it sits above the top of embankment and can only act once the pond overtops"
+                "pond \"{pond}\", {outlet}: it sits above the top of embankment and can only act once the pond overtops"
             ),
             Warning::PondNeverFills {
                 pond,
@@ -198,7 +214,7 @@ impl fmt::Display for Warning {
             ),
             Warning::OrificeNeverSubmerged { pond, outlet } => write!(
                 f,
-                "pond \"{pond}\", outlet {outlet}: the orifice is never submerged in any storm, so it always flows as a weir"
+                "pond \"{pond}\", {outlet}: the orifice is never submerged in any storm, so it always flows as a weir"
             ),
             Warning::Overtopped {
                 pond,
@@ -216,6 +232,17 @@ impl fmt::Display for Warning {
             } => write!(
                 f,
                 "catchment \"{catchment}\", {storm}: the hydrograph peak {hydrograph} and the TR-55 graphical-method peak {graphical} differ by more than 25 % - check Tc, CN and the step"
+            ),
+            Warning::SizingInfeasible {
+                pond,
+                outlet,
+                field,
+                range,
+                reason,
+                written_at,
+            } => write!(
+                f,
+                "sizing of pond \"{pond}\", {outlet} {field}: no value from {range} meets every limit: {reason}; the results are written at {written_at} - widen the range, change another outlet or the pond, or review the limit"
             ),
             Warning::Note(s) => f.write_str(s),
         }

@@ -131,11 +131,27 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
             c.pond, c.storm, c.condition, c.check
         ));
     }
-    for z in s.sized.iter().filter(|z| !z.feasible) {
-        lines.push(format!(
-            "INFEASIBLE sizing of pond {} outlet {} {}",
-            z.pond, z.outlet, z.field
-        ));
+    for (z, d) in s.sized.iter().zip(&study.sizing) {
+        let label = crate::sizing::outlet_label(z.outlet, z.outlet_name.as_deref());
+        let value = crate::sizing::value_text(&study, d);
+        if z.feasible {
+            lines.push(format!(
+                "sized   pond \"{}\", {label} {} = {value}{}",
+                z.pond,
+                z.field,
+                match (&z.governing_check, &z.governing_storm) {
+                    (Some(c), Some(st)) => format!(" (governed by {c} in {st})"),
+                    _ => String::new(),
+                }
+            ));
+        } else {
+            lines.push(format!(
+                "INFEASIBLE sizing of pond \"{}\", {label} {}: {}; results written at {value}",
+                z.pond,
+                z.field,
+                z.reason.clone().unwrap_or_default()
+            ));
+        }
     }
     Ok(RunOutcome {
         out_dir,

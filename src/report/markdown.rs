@@ -306,9 +306,24 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
                 None => String::new(),
             }
         );
-        let _ = writeln!(m, "| outlet | device |\n|---:|---|");
+        let named = p.outlet_names.iter().any(Option::is_some);
+        if named {
+            let _ = writeln!(m, "| outlet | name | device |\n|---:|---|---|");
+        } else {
+            let _ = writeln!(m, "| outlet | device |\n|---:|---|");
+        }
         for (i, d) in p.outlets.iter().enumerate() {
-            let _ = writeln!(m, "| {i} | {} |", describe_outlet(d, o));
+            if named {
+                let _ = writeln!(
+                    m,
+                    "| {} | {} | {} |",
+                    i + 1,
+                    p.outlet_names.get(i).cloned().flatten().unwrap_or_default(),
+                    describe_outlet(d, o)
+                );
+            } else {
+                let _ = writeln!(m, "| {} | {} |", i + 1, describe_outlet(d, o));
+            }
         }
         let _ = writeln!(m);
         let _ = writeln!(
@@ -374,25 +389,42 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
         );
         let _ = writeln!(
             m,
-            "| pond | outlet | field | range | chosen | governing storm | governing check | margin |\n|---|---:|---|---|---:|---|---|---:|"
+            "| pond | outlet | field | range | chosen | governing storm | governing check | margin |\n|---|---|---|---|---:|---|---|---:|"
         );
         for z in &s.sized {
-            let unit = if z.field == "angle" { "deg" } else { lu };
+            let unit = z.unit;
+            let chosen = if z.feasible {
+                format!("{} {unit}", sig(z.value, 4))
+            } else {
+                format!("{} {unit} (**infeasible**)", sig(z.value, 4))
+            };
             let _ = writeln!(
                 m,
-                "| {} | {} | {} | {} to {} {unit} | {}{} | {} | {} | {} |",
+                "| {} | {} | {} | {} to {} {unit} | {} | {} | {} | {} |",
                 z.pond,
-                z.outlet,
+                crate::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
                 z.field,
                 sig(z.min, 4),
                 sig(z.max, 4),
-                sig(z.value, 4),
-                if z.feasible { "" } else { " (**infeasible**)" },
+                chosen,
                 z.governing_storm.clone().unwrap_or_else(|| "-".into()),
                 z.governing_check.clone().unwrap_or_else(|| "-".into()),
                 z.margin
                     .map(|x| format!("{:.2} %", x * 100.0))
                     .unwrap_or_else(|| "-".into())
+            );
+        }
+        for z in s.sized.iter().filter(|z| !z.feasible) {
+            let _ = writeln!(
+                m,
+                "\n**No value of pond {}, {} {} from {} to {} {} meets every limit:** {}.",
+                z.pond,
+                crate::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
+                z.field,
+                sig(z.min, 4),
+                sig(z.max, 4),
+                z.unit,
+                z.reason.clone().unwrap_or_default()
             );
         }
         let _ = writeln!(

@@ -213,10 +213,14 @@ pub struct PondCheckOut {
 pub struct SizedOut {
     /// Pond.
     pub pond: String,
-    /// 0-based outlet index.
+    /// 0-based outlet index (reports number outlets from 1: this is one less).
     pub outlet: usize,
+    /// The outlet's `name`, when the scenario gives one.
+    pub outlet_name: Option<String>,
     /// Field name.
     pub field: &'static str,
+    /// Unit of `value`, `min` and `max` (the scenario's length unit, or deg).
+    pub unit: &'static str,
     /// Chosen value (length units, or degrees).
     pub value: f64,
     /// Range min.
@@ -231,6 +235,8 @@ pub struct SizedOut {
     pub margin: Option<f64>,
     /// Whether the range could meet every limit.
     pub feasible: bool,
+    /// When not feasible: the limits that fail at every size, and why.
+    pub reason: Option<String>,
 }
 
 /// TR-55 graphical cross-check.

@@ -1707,8 +1707,33 @@ impl<'a> Builder<'a> {
                 .err(span, ctx, "the pond has no outlet")
                 .expected("at least one [[pond.outlet]]"));
         }
+        let mut outlet_names: Vec<Option<String>> = Vec::new();
         for (i, o) in rp.outlet.iter().enumerate() {
-            let (outlet, s) = self.outlet(o, &format!("{ctx}, outlet {}", i + 1), i)?;
+            let name = match &o.get_ref().name {
+                Some(n) => {
+                    let t = n.get_ref().trim().to_string();
+                    let nctx = format!("{ctx}, {}, name", crate::sizing::outlet_label(i, None));
+                    if t.is_empty() {
+                        return Err(self
+                            .err(&n.span(), &nctx, "the outlet name is empty")
+                            .expected("a name such as \"low-flow orifice\", or no `name` key"));
+                    }
+                    if let Some(k) = outlet_names.iter().position(|x| x.as_deref() == Some(&t)) {
+                        return Err(self
+                            .err(
+                                &n.span(),
+                                &nctx,
+                                format!("outlet {} of this pond is already named \"{t}\"", k + 1),
+                            )
+                            .expected("each outlet of a pond named once"));
+                    }
+                    Some(t)
+                }
+                None => None,
+            };
+            let label = crate::sizing::outlet_label(i, name.as_deref());
+            outlet_names.push(name);
+            let (outlet, s) = self.outlet(o, &format!("{ctx}, {label}"), i)?;
             let low = outlet.lowest_ft();
             if low < bottom - 1e-9 {
                 let sp = o
@@ -1721,7 +1746,7 @@ impl<'a> Builder<'a> {
                 return Err(self
                     .err(
                         &sp,
-                        &format!("{ctx}, outlet {}", i + 1),
+                        &format!("{ctx}, {label}"),
                         format!(
                             "the outlet is below the pond bottom ({} < {})",
                             low / lf,
@@ -1737,7 +1762,7 @@ impl<'a> Builder<'a> {
             {
                 self.warnings.push(Warning::OutletAboveTop {
                     pond: rp.name.get_ref().clone(),
-                    outlet: i,
+                    outlet: label.clone(),
                 });
             }
             outlets.push(outlet);
@@ -1804,6 +1829,7 @@ impl<'a> Builder<'a> {
                 storage,
                 storage_kind,
                 outlets,
+                outlet_names,
                 start_ft,
                 top_ft,
                 top_length_ft,
