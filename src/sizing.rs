@@ -25,7 +25,7 @@ use crate::error::Error;
 use crate::hydraulics::Outlet;
 use crate::model::{ElementKind, SizedDim, SizedField, Study};
 use crate::network::{self, StormResult};
-use crate::report::summary::SizedOut;
+use crate::report::summary::{SizedOut, kind_and_name};
 use rayon::prelude::*;
 use std::path::Path;
 
@@ -364,14 +364,15 @@ fn zero_limit_reason(study: &Study, point: usize, storm: usize, condition: usize
             storm: ls,
             ..
         } => format!(
-            "the {} condition sheds no runoff to point \"{}\" in {}, so its limit \"{text}\" is 0 {fu}",
+            "the {} condition sheds no runoff to {} in {}, so its limit \"{text}\" is 0 {fu}",
             study.conditions[*lc],
-            p.name,
+            kind_and_name("point", &p.name),
             study.storms[ls.unwrap_or(storm)].name
         ),
         crate::model::Limit::PerArea { .. } => format!(
-            "no catchment of the {} condition drains to point \"{}\" (0 {au}), so its limit \"{text}\" is 0 {fu}",
-            study.conditions[condition], p.name
+            "no catchment of the {} condition drains to {} (0 {au}), so its limit \"{text}\" is 0 {fu}",
+            study.conditions[condition],
+            kind_and_name("point", &p.name)
         ),
         crate::model::Limit::Absolute { .. } => format!("its limit \"{text}\" is 0 {fu}"),
         crate::model::Limit::None => return None,
@@ -397,8 +398,9 @@ fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
                     out.push(Check {
                         storm: s.storm,
                         what: format!(
-                            "point \"{}\" peak ({})",
-                            study.points[pi].name, study.conditions[c.condition]
+                            "{} peak ({})",
+                            kind_and_name("point", &study.points[pi].name),
+                            study.conditions[c.condition]
                         ),
                         value: analysis::point_peak(storms, s.storm, c.condition, pi),
                         limit,
@@ -420,7 +422,7 @@ fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
             if let Some(top) = p.top_ft {
                 out.push(Check {
                     storm: s.storm,
-                    what: format!("pond \"{}\" below its top", study.elements[pond].name),
+                    what: format!("{} below its top", kind_and_name("pond", &study.elements[pond].name)),
                     value: pr.summary.peak_stage_ft,
                     limit: top,
                     upper: true,
@@ -430,7 +432,7 @@ fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
             if let (Some(minf), Some(fb)) = (p.min_freeboard_ft, pr.summary.freeboard_ft) {
                 out.push(Check {
                     storm: s.storm,
-                    what: format!("pond \"{}\" freeboard", study.elements[pond].name),
+                    what: format!("{} freeboard", kind_and_name("pond", &study.elements[pond].name)),
                     value: fb,
                     limit: minf,
                     upper: false,
@@ -440,7 +442,7 @@ fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
             if let Some(maxd) = p.max_drain_time_h {
                 out.push(Check {
                     storm: s.storm,
-                    what: format!("pond \"{}\" drain time", study.elements[pond].name),
+                    what: format!("{} drain time", kind_and_name("pond", &study.elements[pond].name)),
                     value: pr.summary.drain_time_h.unwrap_or(f64::INFINITY),
                     limit: maxd,
                     upper: true,

@@ -113,13 +113,17 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
         };
         let _ = writeln!(
             t,
-            "\nPond \"{}\" -> {} (storage: {})",
-            e.name,
+            "\n{} -> {} (storage: {})",
+            summary::kind_and_name("Pond", &e.name),
             summary::target_name(&study, e.to),
             p.storage_kind
         );
         for (i, d) in p.outlets.iter().enumerate() {
-            let _ = writeln!(t, "  outlet {i}: {}", describe_outlet(d, o));
+            let label = crate::sizing::outlet_label(
+                i,
+                p.outlet_names.get(i).and_then(|n| n.as_deref()),
+            );
+            let _ = writeln!(t, "  {label}: {}", describe_outlet(d, o));
         }
         let _ = writeln!(
             t,

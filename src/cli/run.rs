@@ -127,8 +127,11 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     }
     for c in s.pond_checks.iter().filter(|c| !c.pass) {
         lines.push(format!(
-            "FAILS   pond {} / {} / {}: {}",
-            c.pond, c.storm, c.condition, c.check
+            "FAILS   {} / {} / {}: {}",
+            summary::kind_and_name("pond", &c.pond),
+            c.storm,
+            c.condition,
+            c.check
         ));
     }
     for (z, d) in s.sized.iter().zip(&study.sizing) {
@@ -136,8 +139,8 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         let value = crate::sizing::value_text(&study, d);
         if z.feasible {
             lines.push(format!(
-                "sized   pond \"{}\", {label} {} = {value}{}",
-                z.pond,
+                "sized   {}, {label} {} = {value}{}",
+                summary::kind_and_name("pond", &z.pond),
                 z.field,
                 match (&z.governing_check, &z.governing_storm) {
                     (Some(c), Some(st)) => format!(" (governed by {c} in {st})"),
@@ -146,8 +149,8 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
             ));
         } else {
             lines.push(format!(
-                "INFEASIBLE sizing of pond \"{}\", {label} {}: {}; results written at {value}",
-                z.pond,
+                "INFEASIBLE sizing of {}, {label} {}: {}; results written at {value}",
+                summary::kind_and_name("pond", &z.pond),
                 z.field,
                 z.reason.clone().unwrap_or_default()
             ));
@@ -284,8 +287,12 @@ fn write_plots(
                     .unwrap_or_default();
                 let mut references = Vec::new();
                 for (k, d) in pond.outlets.iter().enumerate() {
+                    let label = crate::sizing::outlet_label(
+                        k,
+                        pond.outlet_names.get(k).and_then(|n| n.as_deref()),
+                    );
                     references.push((
-                        format!("outlet {k} {}", kind_word(d)),
+                        format!("{label} {}", kind_word(d)),
                         o.length(d.lowest_ft()),
                     ));
                 }
@@ -301,7 +308,11 @@ fn write_plots(
                     output::slug(cname)
                 );
                 let data = plot::PondPlot {
-                    title: format!("Pond {name} - {} ({cname})", storm.name),
+                    title: format!(
+                        "{} - {} ({cname})",
+                        summary::kind_and_name("Pond", name),
+                        storm.name
+                    ),
                     subtitle: format!(
                         "storage-indication routing, step {:.0} min; runnel {}",
                         study.step_h * 60.0,
@@ -317,7 +328,11 @@ fn write_plots(
                     references,
                 };
                 jobs.push((
-                    format!("pond {name}, {} ({cname})", storm.name),
+                    format!(
+                        "{}, {} ({cname})",
+                        summary::kind_and_name("pond", name),
+                        storm.name
+                    ),
                     file,
                     Box::new(move || plot::pond_png(&data)),
                 ));

@@ -22,6 +22,9 @@ fn opt(v: Option<f64>, d: usize) -> String {
     v.map(|x| f(x, d)).unwrap_or_else(|| "-".into())
 }
 
+/// How drain time is measured, stated beside every drain-time check.
+pub const DRAIN_TIME_DEFINITION: &str = "Drain time runs from the peak stage until the storage above the starting storage falls below 1 % of its peak value (\"never drained\": not within the run).";
+
 /// Renders the report. `plots` lists (caption, file name) of the PNGs.
 pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md: &str) -> String {
     let o = Out(study.units);
@@ -117,6 +120,9 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     }
     if !s.pond_checks.is_empty() {
         let _ = writeln!(m, "### Pond checks\n");
+        if s.pond_checks.iter().any(|c| c.check == "drain time") {
+            let _ = writeln!(m, "{DRAIN_TIME_DEFINITION}\n");
+        }
         let _ = writeln!(
             m,
             "| pond | storm | condition | check | value | limit | result |\n|---|---|---|---|---:|---:|---|"
@@ -291,16 +297,21 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
         let ElementKind::Pond(p) = &e.kind else {
             continue;
         };
-        let _ = writeln!(m, "## Pond \"{}\"\n", e.name);
         let _ = writeln!(
             m,
-            "Storage from {}; outlets in parallel with a free outfall (no tailwater); routed by storage-indication (modified Puls) on a {} {lu} stage grid.{}\n",
+            "## {}\n",
+            crate::report::summary::kind_and_name("Pond", &e.name)
+        );
+        let _ = writeln!(
+            m,
+            "Storage from {}; outlets in parallel with a free outfall (no tailwater); routed by storage-indication (modified Puls) on a {} {lu} stage grid.{} {DRAIN_TIME_DEFINITION}\n",
             p.storage_kind,
             f(o.length(p.grid_step_ft), 3),
             match p.top_ft {
                 Some(t) => format!(
-                    " Top of embankment {} {lu}; above it the embankment overflows as a broad-crested weir (C = 2.6 US) {} {lu} long.",
+                    " Top of embankment {} {lu}; above it the embankment overflows as a broad-crested weir (C = {}) {} {lu} long.",
                     f(o.length(t), 2),
+                    f(o.weir_coefficient(crate::model::EMBANKMENT_WEIR_COEFFICIENT), 2),
                     f(o.length(p.top_length_ft), 1)
                 ),
                 None => String::new(),
@@ -417,8 +428,8 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
         for z in s.sized.iter().filter(|z| !z.feasible) {
             let _ = writeln!(
                 m,
-                "\n**No value of pond {}, {} {} from {} to {} {} meets every limit:** {}.",
-                z.pond,
+                "\n**No value of {}, {} {} from {} to {} {} meets every limit:** {}.",
+                crate::report::summary::kind_and_name("pond", &z.pond),
                 crate::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
                 z.field,
                 sig(z.min, 4),
@@ -491,10 +502,10 @@ pub fn describe_outlet(d: &crate::hydraulics::Outlet, o: Out) -> String {
             coefficient,
             contractions,
         } => format!(
-            "sharp-crested weir {} {lu} long, crest {} {lu}, C {} (US), {contractions} end contraction(s)",
+            "sharp-crested weir {} {lu} long, crest {} {lu}, C {}, {contractions} end contraction(s)",
             l(*length_ft),
             f(o.length(*crest_ft), 2),
-            f(*coefficient, 2)
+            f(o.weir_coefficient(*coefficient), 2)
         ),
         D::VNotchWeir {
             crest_ft,
@@ -511,10 +522,10 @@ pub fn describe_outlet(d: &crate::hydraulics::Outlet, o: Out) -> String {
             length_ft,
             coefficient,
         } => format!(
-            "broad-crested spillway {} {lu} long, crest {} {lu}, C {} (US)",
+            "broad-crested spillway {} {lu} long, crest {} {lu}, C {}",
             l(*length_ft),
             f(o.length(*crest_ft), 2),
-            f(*coefficient, 2)
+            f(o.weir_coefficient(*coefficient), 2)
         ),
         D::Riser {
             crest_ft,
@@ -522,10 +533,10 @@ pub fn describe_outlet(d: &crate::hydraulics::Outlet, o: Out) -> String {
             weir_coefficient,
             cd,
         } => format!(
-            "riser {} {lu} diameter, rim {} {lu}, weir C {} (US), Cd {}",
+            "riser {} {lu} diameter, rim {} {lu}, weir C {}, Cd {}",
             l(*diameter_ft),
             f(o.length(*crest_ft), 2),
-            f(*weir_coefficient, 2),
+            f(o.weir_coefficient(*weir_coefficient), 2),
             f(*cd, 2)
         ),
         D::Rating { table } => format!(

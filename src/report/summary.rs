@@ -340,6 +340,28 @@ impl Out {
     pub fn unit(&self, q: Quantity) -> &'static str {
         q.output_unit(self.0)
     }
+    /// A weir coefficient (C in Q = C L H^1.5, US ft^0.5/s inside) in the
+    /// scenario's system: SI values are US values times sqrt(0.3048 m/ft)
+    /// (3.33 US = 1.84 SI).
+    pub fn weir_coefficient(&self, c_us: f64) -> f64 {
+        match self.0 {
+            UnitSystem::Us => c_us,
+            UnitSystem::Si => c_us * crate::units::M_PER_FT.sqrt(),
+        }
+    }
+}
+
+/// `name` with its kind in front ("pond \"basin\""), unless the name
+/// already begins with that kind ("Pond A", "Point 3"), so that no report
+/// reads "Pond Pond A". `kind` is written as given (capitalise it for a
+/// heading).
+pub fn kind_and_name(kind: &str, name: &str) -> String {
+    let first = name.split_whitespace().next().unwrap_or("");
+    if first.eq_ignore_ascii_case(kind) {
+        name.to_string()
+    } else {
+        format!("{kind} \"{name}\"")
+    }
 }
 
 /// Builds the summary from a study and its analysis.
