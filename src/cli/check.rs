@@ -240,20 +240,35 @@ pub fn estimate_text(study: &Study, a: &analysis::Analysis) -> String {
                 if qi <= 0.0 {
                     continue;
                 }
-                let ratio = storage_estimate::storage_ratio(analysis::storm_type(kind), qo / qi);
-                let vr = network::volume_ft3(&pr.inflow_cfs, st.step_h);
-                let vs = ratio.vs_over_vr * vr;
-                let stage = stage_for_volume(p, p.storage.volume_ft3(pr.start_ft) + vs);
                 if t.is_empty() {
                     let _ = writeln!(
                         t,
                         "First-cut storage (TR-55 chapter 6, Figure 6-1 / Table F-2; an approximate method for concept sizing, not a routing):"
                     );
                 }
+                if !storage_estimate::needs_storage(qo / qi) {
+                    let _ = writeln!(
+                        t,
+                        "  {}, {} ({}): qi {} {fu}, allowed qo {} {fu} (limit {} less bypass {}), qo/qi {:.3}: the allowed outflow is not below the inflow peak, so this storm needs no storage",
+                        summary::kind_and_name("pond", &study.elements[i].name),
+                        storm.name,
+                        study.conditions[c.condition],
+                        sig(o.flow(qi), 4),
+                        sig(o.flow(qo), 4),
+                        sig(o.flow(limit), 4),
+                        sig(o.flow(bypass), 4),
+                        qo / qi,
+                    );
+                    continue;
+                }
+                let ratio = storage_estimate::storage_ratio(analysis::storm_type(kind), qo / qi);
+                let vr = network::volume_ft3(&pr.inflow_cfs, st.step_h);
+                let vs = ratio.vs_over_vr * vr;
+                let stage = stage_for_volume(p, p.storage.volume_ft3(pr.start_ft) + vs);
                 let _ = writeln!(
                     t,
-                    "  pond \"{}\", {} ({}): qi {} {fu}, allowed qo {} {fu} (limit {} less bypass {}), qo/qi {:.3}{} -> Vs/Vr {:.3}, Vr {} {vu}, Vs {} {vu}, reaching stage {:.2} {lu}",
-                    study.elements[i].name,
+                    "  {}, {} ({}): qi {} {fu}, allowed qo {} {fu} (limit {} less bypass {}), qo/qi {:.3}{} -> Vs/Vr {:.3}, Vr {} {vu}, Vs {} {vu}, reaching stage {:.2} {lu}",
+                    summary::kind_and_name("pond", &study.elements[i].name),
                     storm.name,
                     study.conditions[c.condition],
                     sig(o.flow(qi), 4),
