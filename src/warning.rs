@@ -109,6 +109,32 @@ pub enum Warning {
         /// Graphical peak (results' units).
         graphical: String,
     },
+    /// A point's limit needs the baseline, which has no element.
+    NoBaseline {
+        /// Point.
+        point: String,
+        /// What needs it, with its verb: `its limit "existing" needs`.
+        what: String,
+        /// The baseline condition.
+        baseline: String,
+        /// The one condition the elements belong to.
+        condition: String,
+    },
+    /// The area draining to a point differs from the baseline's by more than 5 %.
+    AreaMismatch {
+        /// Point.
+        point: String,
+        /// Condition checked.
+        condition: String,
+        /// Its area, with unit.
+        area: String,
+        /// Baseline condition.
+        baseline: String,
+        /// The baseline's area, with unit.
+        baseline_area: String,
+        /// (area - baseline area) / baseline area, percent.
+        difference_pct: f64,
+    },
     /// No value in a sizing range meets every limit.
     SizingInfeasible {
         /// Pond.
@@ -145,6 +171,8 @@ impl Warning {
             Warning::Overtopped { .. } => "overtopped",
             Warning::GraphicalPeakDiffers { .. } => "graphical-peak-differs",
             Warning::SizingInfeasible { .. } => "sizing-infeasible",
+            Warning::NoBaseline { .. } => "no-baseline",
+            Warning::AreaMismatch { .. } => "area-mismatch",
             Warning::Note(_) => "note",
         }
     }
@@ -232,6 +260,31 @@ impl fmt::Display for Warning {
             } => write!(
                 f,
                 "catchment \"{catchment}\", {storm}: the hydrograph peak {hydrograph} and the TR-55 graphical-method peak {graphical} differ by more than 25 % - check Tc, CN and the step"
+            ),
+            Warning::NoBaseline {
+                point,
+                what,
+                baseline,
+                condition,
+            } => write!(
+                f,
+                "point \"{point}\": {what} the baseline condition \"{baseline}\", which has no element (every element belongs to \"{condition}\"), so it is reported \"not checked: no baseline\" - add the {baseline} catchments to compare, or give the point a limit in flow units such as \"12 cfs\""
+            ),
+            Warning::AreaMismatch {
+                point,
+                condition,
+                area,
+                baseline,
+                baseline_area,
+                difference_pct,
+            } => write!(
+                f,
+                "point \"{point}\": {area} drains to it in {condition} but {baseline_area} in {baseline}{}; peaks from different areas are rarely comparable - check that each catchment belongs to the conditions it should (an element without `condition` belongs to all)",
+                if difference_pct.is_finite() {
+                    format!(" ({difference_pct:+.1} %, more than 5 %)")
+                } else {
+                    String::new()
+                }
             ),
             Warning::SizingInfeasible {
                 pond,

@@ -115,15 +115,7 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let fu = o.unit(Quantity::Flow);
     let mut lines = Vec::new();
     for c in &s.comparisons {
-        lines.push(format!(
-            "{:<7} {} / {} / {}: peak {} {fu}, limit {} {fu}",
-            if c.pass { "meets" } else { "EXCEEDS" },
-            c.point,
-            c.storm.clone().or(c.record.clone()).unwrap_or_default(),
-            c.condition,
-            crate::units::sig(c.peak, 4),
-            crate::units::sig(c.limit, 4)
-        ));
+        lines.push(comparison_line(c, fu));
     }
     for c in s.pond_checks.iter().filter(|c| !c.pass) {
         lines.push(format!(
@@ -162,6 +154,40 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         warnings: s.warnings.to_vec(),
         lines,
     })
+}
+
+/// The printed line of one check at a point.
+fn comparison_line(c: &summary::ComparisonOut, fu: &str) -> String {
+    use crate::units::sig;
+    let verdict = match c.pass {
+        Some(true) => "meets",
+        Some(false) => "EXCEEDS",
+        None => "not checked",
+    };
+    let when = c.storm.clone().or(c.record.clone()).unwrap_or_default();
+    let head = format!("{verdict:<7} {} / {when} / {}", c.point, c.condition);
+    if c.pass.is_none() {
+        return format!(
+            "{head}: no baseline (\"{}\" needs the {} condition, which has no element)",
+            c.limit_text, c.baseline
+        );
+    }
+    if let Some(d) = &c.duration {
+        return format!(
+            "{head}: flow durations ({}): at {} {fu}, {} h above against {} h allowed ({} {} h)",
+            c.limit_text,
+            sig(d.worst_flow, 4),
+            sig(d.time_h, 4),
+            sig(d.allowed_time_h, 4),
+            c.baseline,
+            sig(d.baseline_time_h, 4)
+        );
+    }
+    format!(
+        "{head}: peak {} {fu}, limit {} {fu}",
+        c.peak.map(|v| sig(v, 4)).unwrap_or_else(|| "-".into()),
+        c.limit.map(|v| sig(v, 4)).unwrap_or_else(|| "-".into())
+    )
 }
 
 /// Refuses a run whose series would not fit under the memory cap.

@@ -74,46 +74,98 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
 
     // Verdict first.
     let _ = writeln!(m, "## Design points\n");
+    let peaks: Vec<_> = s.comparisons.iter().filter(|c| c.check == "peak").collect();
+    let durations: Vec<_> = s
+        .comparisons
+        .iter()
+        .filter(|c| c.check != "peak")
+        .collect();
     if s.comparisons.is_empty() {
         let _ = writeln!(
             m,
             "No limits are checked (one condition only, or every limit is \"none\").\n"
         );
     } else {
-        let fails = s.comparisons.iter().filter(|c| !c.pass).count();
+        let fails = s.comparisons.iter().filter(|c| c.fails()).count();
+        let unchecked = s.comparisons.iter().filter(|c| c.pass.is_none()).count();
+        let mut verdict = if fails == 0 {
+            "**Every check is met.**".to_string()
+        } else {
+            format!("**{fails} check(s) fail.**")
+        };
+        if unchecked > 0 {
+            verdict.push_str(&format!(
+                " {unchecked} check(s) not made: the baseline \"{}\" has no element.",
+                s.baseline
+            ));
+        }
+        let _ = writeln!(m, "{verdict}\n");
+    }
+    if !peaks.is_empty() {
         let _ = writeln!(
             m,
-            "{}\n",
-            if fails == 0 {
-                "**Every peak is within its limit.**".to_string()
-            } else {
-                format!("**{fails} check(s) fail.**")
-            }
+            "| point | storm | condition | area [{au}] | {b} area [{au}] | peak [{fu}] | limit [{fu}] | limit rule | {b} peak [{fu}] | margin | result |",
+            b = s.baseline
         );
-        let _ = writeln!(
-            m,
-            "| point | storm / record | condition | peak [{fu}] | limit [{fu}] | limit rule | {} peak [{fu}] | margin | result |",
-            s.baseline
-        );
-        let _ = writeln!(m, "|---|---|---|---:|---:|---|---:|---:|---|");
-        for c in &s.comparisons {
-            let margin = if c.limit > 0.0 {
-                format!("{:+.1} %", (c.limit - c.peak) / c.limit * 100.0)
-            } else {
-                "-".into()
+        let _ = writeln!(m, "|---|---|---|---:|---:|---:|---:|---|---:|---:|---|");
+        for c in &peaks {
+            let margin = match (c.limit, c.peak) {
+                (Some(l), Some(p)) if l > 0.0 => format!("{:+.1} %", (l - p) / l * 100.0),
+                _ => "-".into(),
             };
             let _ = writeln!(
                 m,
-                "| {} | {} | {} | {} | {} | {} | {} | {} | {} |",
+                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
                 c.point,
-                c.storm.clone().or(c.record.clone()).unwrap_or_default(),
+                c.storm.clone().unwrap_or_default(),
                 c.condition,
-                sig(c.peak, 4),
-                sig(c.limit, 4),
+                f(c.area, 3),
+                opt(c.baseline_area, 3),
+                c.peak.map(|v| sig(v, 4)).unwrap_or_else(|| "-".into()),
+                c.limit.map(|v| sig(v, 4)).unwrap_or_else(|| "-".into()),
                 c.limit_text,
-                sig(c.baseline_peak, 4),
+                c.baseline_peak
+                    .map(|v| sig(v, 4))
+                    .unwrap_or_else(|| "-".into()),
                 margin,
-                if c.pass { "meets" } else { "**EXCEEDS**" }
+                result_word(c)
+            );
+        }
+        let _ = writeln!(m);
+    }
+    if !durations.is_empty() {
+        let _ = writeln!(
+            m,
+            "Flow-duration control: each condition's time above each of {} flows spaced evenly in log over the rule's range, against the baseline's time there; a condition fails where its time exceeds the baseline's by more than the tolerance, or where the baseline's time is zero. Each row shows the worst level.\n",
+            durations
+                .iter()
+                .find_map(|c| c.duration.as_ref().map(|d| d.levels))
+                .unwrap_or(100)
+        );
+        let _ = writeln!(
+            m,
+            "| point | record | condition | area [{au}] | {b} area [{au}] | rule | worst flow [{fu}] | {b} time above [h] | time above [h] | allowed [h] | result |",
+            b = s.baseline
+        );
+        let _ = writeln!(m, "|---|---|---|---:|---:|---|---:|---:|---:|---:|---|");
+        for c in &durations {
+            let d = c.duration.as_ref();
+            let _ = writeln!(
+                m,
+                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
+                c.point,
+                c.record.clone().unwrap_or_default(),
+                c.condition,
+                f(c.area, 3),
+                opt(c.baseline_area, 3),
+                c.limit_text,
+                d.map(|d| sig(d.worst_flow, 4)).unwrap_or_else(|| "-".into()),
+                d.map(|d| sig(d.baseline_time_h, 4))
+                    .unwrap_or_else(|| "-".into()),
+                d.map(|d| sig(d.time_h, 4)).unwrap_or_else(|| "-".into()),
+                d.map(|d| sig(d.allowed_time_h, 4))
+                    .unwrap_or_else(|| "-".into()),
+                result_word(c)
             );
         }
         let _ = writeln!(m);
@@ -466,6 +518,15 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     }
     let _ = writeln!(m, "---\n\n*{}*", s.caution);
     m
+}
+
+/// The result column of a check.
+fn result_word(c: &crate::report::summary::ComparisonOut) -> String {
+    match c.pass {
+        Some(true) => "meets".into(),
+        Some(false) => "**EXCEEDS**".into(),
+        None => c.status.to_string(),
+    }
 }
 
 /// One-line description of an outlet in the scenario's units.

@@ -623,7 +623,14 @@ impl<'a> Builder<'a> {
                 .error("the scenario has no [[catchment]], [[pond]] or [[inflow]]")
                 .expected("at least one catchment that drains to a [[point]]"));
         }
+        // A scenario whose elements all belong to one condition other than
+        // the baseline (a pond to route, nothing to compare) runs without a
+        // baseline: limits that need it are reported "not checked".
+        let baseline_empty = conditions.len() == 2 && !elements.iter().any(|e| e.conditions[0]);
         for (c, cname) in conditions.iter().enumerate() {
+            if baseline_empty && c == 0 {
+                continue;
+            }
             if !elements.iter().any(|e| e.conditions[c]) {
                 let Some(span) = raw.baseline.as_ref().map(|b| b.span()) else {
                     return Err(self
@@ -651,7 +658,35 @@ impl<'a> Builder<'a> {
             points.push(self.point(p, &conditions, &storms)?);
         }
         for (pi, p) in points.iter().enumerate() {
+            if baseline_empty {
+                let mut needs: Vec<String> = Vec::new();
+                for (l, t) in p.limits.iter().zip(&p.limit_text) {
+                    let missing = matches!(l, Limit::Relative { condition: 0, .. });
+                    let said = format!("limit \"{t}\"");
+                    if missing && !needs.contains(&said) {
+                        needs.push(said);
+                    }
+                }
+                if p.durations.is_some() && !raw.record.is_empty() {
+                    needs.push("flow-duration rule".to_string());
+                }
+                if !needs.is_empty() {
+                    self.warnings.push(Warning::NoBaseline {
+                        point: p.name.clone(),
+                        what: if needs.len() == 1 {
+                            format!("its {} needs", needs[0])
+                        } else {
+                            format!("its {} need", needs.join(" and its "))
+                        },
+                        baseline: conditions[0].clone(),
+                        condition: conditions[1].clone(),
+                    });
+                }
+            }
             for (c, cname) in conditions.iter().enumerate() {
+                if baseline_empty && c == 0 {
+                    continue;
+                }
                 let reaches = elements
                     .iter()
                     .any(|e| e.conditions[c] && e.to == Target::Point(pi));
@@ -836,6 +871,7 @@ impl<'a> Builder<'a> {
             step_given,
             conditions,
             baseline: 0,
+            baseline_empty,
             p2_in,
             storms,
             elements,
