@@ -922,11 +922,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
 
 /// A flow-duration rule as the report states it.
 fn duration_rule_text(dc: &crate::model::DurationControl) -> String {
-    format!(
-        "durations {} within {:.0} %",
-        dc.text,
-        dc.tolerance * 100.0
-    )
+    format!("durations {} within {:.0} %", dc.text, dc.tolerance * 100.0)
 }
 
 /// Writes the record plots and returns (caption, file) pairs.

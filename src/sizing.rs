@@ -244,7 +244,11 @@ fn size_one(
     if value.is_none() && !strict {
         let n = evals.first().map(|e| e.1.len()).unwrap_or(0);
         let somewhere: Vec<bool> = (0..n)
-            .map(|i| evals.iter().any(|(_, ch)| ch.get(i).is_some_and(Check::pass)))
+            .map(|i| {
+                evals
+                    .iter()
+                    .any(|(_, ch)| ch.get(i).is_some_and(Check::pass))
+            })
             .collect();
         let at_min: Vec<bool> = evals
             .last()
@@ -353,7 +357,12 @@ fn simulate(study: &Study, cache: &[StormResult], conditions: &[usize]) -> Vec<S
 
 /// Why a point's limit is zero, in words, e.g. "the existing condition
 /// sheds no runoff to point \"outfall\" in 1-in, so its limit is 0 cfs".
-fn zero_limit_reason(study: &Study, point: usize, storm: usize, condition: usize) -> Option<String> {
+fn zero_limit_reason(
+    study: &Study,
+    point: usize,
+    storm: usize,
+    condition: usize,
+) -> Option<String> {
     let fu = crate::units::Quantity::Flow.output_unit(study.units);
     let au = crate::units::Quantity::Area.output_unit(study.units);
     let p = &study.points[point];
@@ -422,7 +431,10 @@ fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
             if let Some(top) = p.top_ft {
                 out.push(Check {
                     storm: s.storm,
-                    what: format!("{} below its top", kind_and_name("pond", &study.elements[pond].name)),
+                    what: format!(
+                        "{} below its top",
+                        kind_and_name("pond", &study.elements[pond].name)
+                    ),
                     value: pr.summary.peak_stage_ft,
                     limit: top,
                     upper: true,
@@ -432,7 +444,10 @@ fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
             if let (Some(minf), Some(fb)) = (p.min_freeboard_ft, pr.summary.freeboard_ft) {
                 out.push(Check {
                     storm: s.storm,
-                    what: format!("{} freeboard", kind_and_name("pond", &study.elements[pond].name)),
+                    what: format!(
+                        "{} freeboard",
+                        kind_and_name("pond", &study.elements[pond].name)
+                    ),
                     value: fb,
                     limit: minf,
                     upper: false,
@@ -442,7 +457,10 @@ fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
             if let Some(maxd) = p.max_drain_time_h {
                 out.push(Check {
                     storm: s.storm,
-                    what: format!("{} drain time", kind_and_name("pond", &study.elements[pond].name)),
+                    what: format!(
+                        "{} drain time",
+                        kind_and_name("pond", &study.elements[pond].name)
+                    ),
                     value: pr.summary.drain_time_h.unwrap_or(f64::INFINITY),
                     limit: maxd,
                     upper: true,
@@ -531,7 +549,9 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
         if feasible(study, pond).0 {
             continue;
         }
-        let mine: Vec<usize> = (0..dims.len()).filter(|&k| dims[k].element == pond).collect();
+        let mine: Vec<usize> = (0..dims.len())
+            .filter(|&k| dims[k].element == pond)
+            .collect();
         let mut reasons: Vec<(usize, String)> = Vec::new();
         let mut fixed = false;
         for &k in mine.iter().rev() {
@@ -622,24 +642,29 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
             margin: if reason.is_some() {
                 None
             } else {
-                governing.as_ref().map(Check::margin).filter(|m| m.is_finite())
+                governing
+                    .as_ref()
+                    .map(Check::margin)
+                    .filter(|m| m.is_finite())
             },
             feasible: reason.is_none(),
             reason: reason.clone(),
         });
         if let Some(r) = reason {
-            study.warnings.push(crate::warning::Warning::SizingInfeasible {
-                pond: pond_name,
-                outlet: outlet_label(d.outlet, outlet_name.as_deref()),
-                field: d.field.key().to_string(),
-                range: format!(
-                    "{} to {}",
-                    with_unit(study, d, d.min),
-                    with_unit(study, d, d.max)
-                ),
-                reason: r,
-                written_at: with_unit(study, d, v),
-            });
+            study
+                .warnings
+                .push(crate::warning::Warning::SizingInfeasible {
+                    pond: pond_name,
+                    outlet: outlet_label(d.outlet, outlet_name.as_deref()),
+                    field: d.field.key().to_string(),
+                    range: format!(
+                        "{} to {}",
+                        with_unit(study, d, d.min),
+                        with_unit(study, d, d.max)
+                    ),
+                    reason: r,
+                    written_at: with_unit(study, d, v),
+                });
         }
     }
     // Dimensions are now fixed values; keep the list for the sized copy.
@@ -655,7 +680,8 @@ fn current_value(outlet: &Outlet, field: SizedField) -> Option<f64> {
             SizedField::Diameter,
         ) => *diameter_ft,
         (
-            Outlet::CircularOrifice { invert_ft, .. } | Outlet::RectangularOrifice { invert_ft, .. },
+            Outlet::CircularOrifice { invert_ft, .. }
+            | Outlet::RectangularOrifice { invert_ft, .. },
             SizedField::Invert,
         ) => *invert_ft,
         (Outlet::RectangularOrifice { width_ft, .. }, SizedField::Width) => *width_ft,
@@ -679,7 +705,8 @@ pub fn value_text(study: &Study, d: &SizedDim) -> String {
             .and_then(|o| current_value(o, d.field)),
         _ => None,
     };
-    v.map(|v| with_unit(study, d, v)).unwrap_or_else(|| "-".into())
+    v.map(|v| with_unit(study, d, v))
+        .unwrap_or_else(|| "-".into())
 }
 
 /// The scenario text with every range replaced by its value and every file

@@ -9,10 +9,7 @@ use common::*;
 /// Writes `text` as a scenario in a fresh folder and runs `runnel ARGS`
 /// on it (the scenario path is appended, then `--out` for `run`); returns
 /// (exit code, summary.json or Null, stdout, stderr, folder).
-fn run_text(
-    cmd: &str,
-    text: &str,
-) -> (i32, serde_json::Value, String, String, tempfile::TempDir) {
+fn run_text(cmd: &str, text: &str) -> (i32, serde_json::Value, String, String, tempfile::TempDir) {
     let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
     let p = dir.path().join("s.toml");
     std::fs::write(&p, text).unwrap_or_else(|e| panic!("{e}"));
@@ -216,18 +213,14 @@ fn areas_draining_to_a_point_are_reported_and_a_mismatch_over_5_percent_is_warne
     };
     assert!(codes(&s).is_empty());
     // 4 % more is within the 5 % (common practice, no published source).
-    let text = fixed_site("existing", "").replace(
-        "area = \"10 ac\"\ncn = 88",
-        "area = \"10.4 ac\"\ncn = 88",
-    );
+    let text = fixed_site("existing", "")
+        .replace("area = \"10 ac\"\ncn = 88", "area = \"10.4 ac\"\ncn = 88");
     assert!(text.contains("10.4 ac"));
     let (_, s, _, _, _d) = run_text("run", &text);
     assert!(codes(&s).is_empty(), "{:?}", codes(&s));
     // 12 % more is flagged, naming the point and both areas.
-    let text = fixed_site("existing", "").replace(
-        "area = \"10 ac\"\ncn = 88",
-        "area = \"11.2 ac\"\ncn = 88",
-    );
+    let text = fixed_site("existing", "")
+        .replace("area = \"10 ac\"\ncn = 88", "area = \"11.2 ac\"\ncn = 88");
     let (_, s, _, err, dir) = run_text("run", &text);
     let w = codes(&s);
     assert_eq!(w.len(), 1, "{w:?}");
@@ -311,15 +304,24 @@ fn an_si_report_prints_si_coefficients_and_names_outlets_and_ponds_once() {
     // (broad-crested): C_SI = C_US sqrt(0.3048) (common practice, no
     // published source).
     assert!(!md.contains("(US)"), "{md}");
-    assert!(md.contains("sharp-crested weir 1.000 m long, crest 31.20 m, C 1.84"), "{md}");
+    assert!(
+        md.contains("sharp-crested weir 1.000 m long, crest 31.20 m, C 1.84"),
+        "{md}"
+    );
     assert!(md.contains("weir C 1.84"), "{md}");
-    assert!(md.contains("broad-crested spillway 4.000 m long, crest 32.40 m, C 1.44"), "{md}");
+    assert!(
+        md.contains("broad-crested spillway 4.000 m long, crest 32.40 m, C 1.44"),
+        "{md}"
+    );
     assert!(md.contains("broad-crested weir (C = 1.44)"), "{md}");
     // Outlets numbered from 1, with their names.
     assert!(md.contains("| 1 | low flow | circular orifice"), "{md}");
     assert!(md.contains("| 4 |  | broad-crested spillway"), "{md}");
     // "Pond A" is not called "Pond Pond A".
-    assert!(!md.contains("Pond Pond") && !md.contains("pond Pond"), "{md}");
+    assert!(
+        !md.contains("Pond Pond") && !md.contains("pond Pond"),
+        "{md}"
+    );
     assert!(md.contains("## Pond A\n"), "{md}");
     // The drain-time definition stands beside the drain-time check.
     let checks = md.split("### Pond checks").nth(1).unwrap_or_default();
@@ -332,7 +334,10 @@ fn an_si_report_prints_si_coefficients_and_names_outlets_and_ponds_once() {
     );
     // `check` numbers and names outlets the same way.
     let (_, _, out, _, _d) = run_text("check", SI_SITE);
-    assert!(out.contains("outlet 1 (\"low flow\"): circular orifice"), "{out}");
+    assert!(
+        out.contains("outlet 1 (\"low flow\"): circular orifice"),
+        "{out}"
+    );
     assert!(out.contains("outlet 2: sharp-crested weir"), "{out}");
     assert!(!out.contains("Pond Pond"), "{out}");
 }
@@ -351,7 +356,8 @@ fn an_error_in_a_named_outlet_names_it_with_its_number_from_1() {
     let (code, _, _, err, _d) = run_text("run", &text);
     assert_eq!(code, 2, "{err}");
     assert!(
-        err.contains("outlet 2, name") && err.contains("outlet 1 of this pond is already named \"low flow\""),
+        err.contains("outlet 2, name")
+            && err.contains("outlet 1 of this pond is already named \"low flow\""),
         "{err}"
     );
 }
@@ -360,7 +366,10 @@ fn an_error_in_a_named_outlet_names_it_with_its_number_from_1() {
 fn sized_values_carry_units_and_outlet_names_in_the_report_json_and_printed_lines() {
     let text = std::fs::read_to_string(data("sizing-two-dims.toml"))
         .unwrap_or_default()
-        .replace("kind = \"orifice\"", "name = \"low flow\"\nkind = \"orifice\"");
+        .replace(
+            "kind = \"orifice\"",
+            "name = \"low flow\"\nkind = \"orifice\"",
+        );
     let (code, s, out, err, dir) = run_text("run", &text);
     assert_eq!(code, 0, "{out}{err}");
     let z = &s["sized"][0];
@@ -381,8 +390,9 @@ fn sized_values_carry_units_and_outlet_names_in_the_report_json_and_printed_line
         "{line}"
     );
     assert!(
-        out.lines()
-            .any(|l| l.starts_with("sized") && l.contains("outlet 2 length = ") && l.contains(" ft")),
+        out.lines().any(|l| l.starts_with("sized")
+            && l.contains("outlet 2 length = ")
+            && l.contains(" ft")),
         "{out}"
     );
     let md = std::fs::read_to_string(dir.path().join("out/summary.md")).unwrap_or_default();

@@ -202,6 +202,10 @@ fn sizing_that_cannot_succeed_names_the_limit_and_why() {
     assert!(!all.contains("inf %") && !all.contains("-inf"), "{all}");
     let z = &s["sized"][0];
     assert_eq!(z["feasible"], false);
-    assert!(z["reason"].as_str().is_some_and(|r| r.contains("sheds no runoff")));
+    assert!(
+        z["reason"]
+            .as_str()
+            .is_some_and(|r| r.contains("sheds no runoff"))
+    );
     assert!(z["margin"].is_null());
 }

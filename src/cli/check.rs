@@ -119,10 +119,8 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
             p.storage_kind
         );
         for (i, d) in p.outlets.iter().enumerate() {
-            let label = crate::sizing::outlet_label(
-                i,
-                p.outlet_names.get(i).and_then(|n| n.as_deref()),
-            );
+            let label =
+                crate::sizing::outlet_label(i, p.outlet_names.get(i).and_then(|n| n.as_deref()));
             let _ = writeln!(t, "  {label}: {}", describe_outlet(d, o));
         }
         let _ = writeln!(

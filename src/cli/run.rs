@@ -317,10 +317,7 @@ fn write_plots(
                         k,
                         pond.outlet_names.get(k).and_then(|n| n.as_deref()),
                     );
-                    references.push((
-                        format!("{label} {}", kind_word(d)),
-                        o.length(d.lowest_ft()),
-                    ));
+                    references.push((format!("{label} {}", kind_word(d)), o.length(d.lowest_ft())));
                 }
                 if let Some(t) = pond.top_ft {
                     references.push(("top of embankment".to_string(), o.length(t)));

@@ -75,11 +75,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     // Verdict first.
     let _ = writeln!(m, "## Design points\n");
     let peaks: Vec<_> = s.comparisons.iter().filter(|c| c.check == "peak").collect();
-    let durations: Vec<_> = s
-        .comparisons
-        .iter()
-        .filter(|c| c.check != "peak")
-        .collect();
+    let durations: Vec<_> = s.comparisons.iter().filter(|c| c.check != "peak").collect();
     if s.comparisons.is_empty() {
         let _ = writeln!(
             m,
@@ -159,7 +155,8 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
                 f(c.area, 3),
                 opt(c.baseline_area, 3),
                 c.limit_text,
-                d.map(|d| sig(d.worst_flow, 4)).unwrap_or_else(|| "-".into()),
+                d.map(|d| sig(d.worst_flow, 4))
+                    .unwrap_or_else(|| "-".into()),
                 d.map(|d| sig(d.baseline_time_h, 4))
                     .unwrap_or_else(|| "-".into()),
                 d.map(|d| sig(d.time_h, 4)).unwrap_or_else(|| "-".into()),
@@ -363,7 +360,10 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
                 Some(t) => format!(
                     " Top of embankment {} {lu}; above it the embankment overflows as a broad-crested weir (C = {}) {} {lu} long.",
                     f(o.length(t), 2),
-                    f(o.weir_coefficient(crate::model::EMBANKMENT_WEIR_COEFFICIENT), 2),
+                    f(
+                        o.weir_coefficient(crate::model::EMBANKMENT_WEIR_COEFFICIENT),
+                        2
+                    ),
                     f(o.length(p.top_length_ft), 1)
                 ),
                 None => String::new(),
