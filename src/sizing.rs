@@ -506,7 +506,7 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
     for d in &dims {
         set(study, d, value_at(d, 0.0));
     }
-    let all: Vec<usize> = (0..study.conditions.len()).collect();
+    let all = study.simulated_conditions();
     let cache: Vec<StormResult> = (0..study.storms.len())
         .into_par_iter()
         .map(|s| network::simulate_storm(study, s, &all))

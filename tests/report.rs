@@ -128,6 +128,7 @@ fn a_scenario_with_one_condition_runs_and_reports_not_checked_no_baseline() {
     );
     let md = std::fs::read_to_string(dir.path().join("out/summary.md")).unwrap_or_default();
     assert!(md.contains("| not checked: no baseline |"), "{md}");
+    assert!(md.contains("| baseline | existing (no element"), "{md}");
 }
 
 #[test]

@@ -40,10 +40,15 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
     let _ = writeln!(t, "{}: scenario is valid", scenario.display());
     let _ = writeln!(
         t,
-        "units {}, step {:.2} min, baseline \"{}\", conditions: {}",
+        "units {}, step {:.2} min, baseline \"{}\"{}, conditions: {}",
         s.unit_system,
         s.step_h * 60.0,
         s.baseline,
+        if s.baseline_present {
+            ""
+        } else {
+            " (no element: limits that need it are not checked)"
+        },
         s.conditions.join(", ")
     );
     let _ = writeln!(t, "\nCatchments");

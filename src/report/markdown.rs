@@ -69,7 +69,16 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
             " (chosen: largest of 1, 2, 3, 5, 6 min within 0.133 Tc)"
         }
     );
-    let _ = writeln!(m, "| baseline | {} |", s.baseline);
+    let _ = writeln!(
+        m,
+        "| baseline | {}{} |",
+        s.baseline,
+        if s.baseline_present {
+            ""
+        } else {
+            " (no element: limits that need it are not checked)"
+        }
+    );
     let _ = writeln!(m);
 
     // Verdict first.
