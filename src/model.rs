@@ -30,6 +30,10 @@ pub struct Study {
     pub conditions: Vec<String>,
     /// Index of the baseline condition.
     pub baseline: usize,
+    /// Whether the baseline has no element (a scenario whose elements all
+    /// belong to one other condition): it is not simulated, and limits that
+    /// need it are reported "not checked: no baseline".
+    pub baseline_empty: bool,
     /// 2-year 24-hour rainfall, in (when given).
     pub p2_in: Option<f64>,
     /// Design storms.
@@ -48,6 +52,21 @@ pub struct Study {
     pub sizing: Vec<SizedDim>,
     /// Memory cap for one run, bytes.
     pub memory_limit_bytes: u64,
+}
+
+impl Study {
+    /// The conditions that are simulated: every one but an empty baseline.
+    pub fn simulated_conditions(&self) -> Vec<usize> {
+        (0..self.conditions.len())
+            .filter(|&c| !(self.baseline_empty && c == self.baseline))
+            .collect()
+    }
+
+    /// Whether a limit needs the baseline's results when there are none.
+    pub fn needs_missing_baseline(&self, limit: &Limit) -> bool {
+        self.baseline_empty
+            && matches!(limit, Limit::Relative { condition, .. } if *condition == self.baseline)
+    }
 }
 
 /// What was read, for the report's provenance.
@@ -241,6 +260,8 @@ pub struct Pond {
     pub storage_kind: &'static str,
     /// Outlets, in the scenario's order.
     pub outlets: Vec<Outlet>,
+    /// Each outlet's optional `name`, in the same order.
+    pub outlet_names: Vec<Option<String>>,
     /// Initial water surface, ft (None: the lowest outlet, or the bottom).
     pub start_ft: Option<f64>,
     /// Top of embankment, ft.

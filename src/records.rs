@@ -15,7 +15,7 @@ use crate::network::SimulationError;
 use crate::output::{self, Staging};
 use crate::pond;
 use crate::report::plot;
-use crate::report::summary::{ComparisonOut, Out, PondCheckOut};
+use crate::report::summary::{ComparisonOut, DurationOut, Out, PondCheckOut};
 use crate::stats;
 use crate::unit_hydrograph;
 use crate::units::{Quantity, sig};
@@ -549,12 +549,13 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
         // duration control are known while each condition's series is at
         // hand; the series is then reduced to its times above those levels
         // and its daily maxima, and its buffer reused.
-        let order: Vec<usize> = if study.baseline < nc {
+        // An empty baseline is not simulated.
+        let order: Vec<usize> = if study.baseline < nc && !study.baseline_empty {
             std::iter::once(study.baseline)
                 .chain((0..nc).filter(|&c| c != study.baseline))
                 .collect()
         } else {
-            (0..nc).collect()
+            study.simulated_conditions()
         };
         let first_entry = res.entries.len();
         let per_day = ((24.0 / step_h).round() as usize).max(1);
@@ -1044,7 +1045,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         && e.condition == study.conditions[study.baseline]
                 })
                 .cloned();
-            if let (Some(dc), Some(be)) = (&pt.durations, &base_entry)
+            if let (Some(dc), Some(_)) = (&pt.durations, &base_entry)
                 && let Some((lo, hi, levels)) = &control[pi]
             {
                 let (lo, hi) = (*lo, *hi);
@@ -1074,31 +1075,62 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                             worst = (excess, k);
                         }
                     }
-                    let ce = res.entries.iter().find(|e| {
-                        e.record == r.name
-                            && e.kind == "point"
-                            && e.element == pt.name
-                            && &e.condition == cname
-                    });
                     let wl = levels.get(worst.1).copied().unwrap_or(0.0);
+                    let hours = |n: Option<&usize>| n.map(|&n| n as f64 * step_h).unwrap_or(0.0);
+                    let base_h = hours(tb.get(worst.1));
                     res.comparisons.push(ComparisonOut {
-                            point: pt.name.clone(),
-                            storm: None,
-                            record: Some(r.name.clone()),
-                            baseline: study.conditions[study.baseline].clone(),
-                            condition: cname.clone(),
-                            baseline_peak: be.peak_flow,
-                            peak: ce.map(|e| e.peak_flow).unwrap_or(0.0),
-                            limit: o.flow(wl),
-                            limit_text: format!("durations {} within {:.0} %", dc.text, dc.tolerance * 100.0),
-                            pass,
-                            detail: Some(serde_json::json!({
-                                "from_flow": o.flow(lo), "to_flow": o.flow(hi), "tolerance": dc.tolerance, "levels": 100,
-                                "worst_flow": o.flow(wl),
-                                "worst_baseline_steps": tb.get(worst.1), "worst_condition_steps": tc.get(worst.1),
-                                "worst_relative_excess": if worst.0.is_finite() { serde_json::json!(worst.0) } else { serde_json::Value::Null },
-                            })),
-                        });
+                        point: pt.name.clone(),
+                        storm: None,
+                        record: Some(r.name.clone()),
+                        baseline: study.conditions[study.baseline].clone(),
+                        condition: cname.clone(),
+                        check: "flow duration",
+                        status: if pass { "meets" } else { "exceeds" },
+                        baseline_peak: None,
+                        peak: None,
+                        limit: None,
+                        limit_text: duration_rule_text(dc),
+                        pass: Some(pass),
+                        area: o.area(crate::analysis::area_to_point_ac(study, pi, c)),
+                        baseline_area: Some(o.area(crate::analysis::area_to_point_ac(
+                            study,
+                            pi,
+                            study.baseline,
+                        ))),
+                        duration: Some(DurationOut {
+                            from_flow: o.flow(lo),
+                            to_flow: o.flow(hi),
+                            levels: levels.len(),
+                            tolerance: dc.tolerance,
+                            worst_flow: o.flow(wl),
+                            baseline_time_h: base_h,
+                            time_h: hours(tc.get(worst.1)),
+                            allowed_time_h: base_h * (1.0 + dc.tolerance),
+                            worst_relative_excess: worst.0.is_finite().then_some(worst.0),
+                        }),
+                    });
+                }
+            } else if let Some(dc) = &pt.durations
+                && study.baseline_empty
+            {
+                for c in study.simulated_conditions() {
+                    res.comparisons.push(ComparisonOut {
+                        point: pt.name.clone(),
+                        storm: None,
+                        record: Some(r.name.clone()),
+                        baseline: study.conditions[study.baseline].clone(),
+                        condition: study.conditions[c].clone(),
+                        check: "flow duration",
+                        status: crate::report::summary::NOT_CHECKED_NO_BASELINE,
+                        baseline_peak: None,
+                        peak: None,
+                        limit: None,
+                        limit_text: duration_rule_text(dc),
+                        pass: None,
+                        area: o.area(crate::analysis::area_to_point_ac(study, pi, c)),
+                        baseline_area: None,
+                        duration: None,
+                    });
                 }
             }
             // Plot data.
@@ -1107,7 +1139,8 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
             let mut observed = Vec::new();
             let mut fitted = Vec::new();
             let mut daily = Vec::new();
-            for (c, cname) in study.conditions.iter().enumerate() {
+            for c in study.simulated_conditions() {
+                let cname = &study.conditions[c];
                 let curve = point_curves
                     .iter()
                     .find(|(k, _)| *k == (c, pi))
@@ -1198,6 +1231,11 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
     Ok(res)
 }
 
+/// A flow-duration rule as the report states it.
+fn duration_rule_text(dc: &crate::model::DurationControl) -> String {
+    format!("durations {} within {:.0} %", dc.text, dc.tolerance * 100.0)
+}
+
 /// Writes the record plots and returns (caption, file) pairs.
 ///
 /// # Errors
@@ -1278,32 +1316,15 @@ fn markdown(study: &Study, res: &RecordsResult) -> String {
             );
         }
         let _ = writeln!(m);
-        let rows: Vec<_> = res
+        if res
             .comparisons
             .iter()
-            .filter(|c| c.record.as_deref() == Some(&r.name))
-            .collect();
-        if !rows.is_empty() {
+            .any(|c| c.record.as_deref() == Some(&r.name))
+        {
             let _ = writeln!(
                 m,
-                "Flow-duration control (time above each of 100 flows spaced evenly in log over the range; a condition fails where its time exceeds the baseline's by more than the tolerance, or where the baseline's time is zero):\n"
+                "The flow-duration control of this record is reported with the design points.\n"
             );
-            let _ = writeln!(
-                m,
-                "| point | condition | rule | worst flow [{fu}] | result |\n|---|---|---|---:|---|"
-            );
-            for c in rows {
-                let _ = writeln!(
-                    m,
-                    "| {} | {} | {} | {} | {} |",
-                    c.point,
-                    c.condition,
-                    c.limit_text,
-                    sig(c.limit, 4),
-                    if c.pass { "meets" } else { "**EXCEEDS**" }
-                );
-            }
-            let _ = writeln!(m);
         }
     }
     m

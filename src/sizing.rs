@@ -3,20 +3,29 @@
 //! limit at every point downstream of its pond, and the pond's own limits,
 //! for every storm.
 //!
-//! Dimensions are taken from the lowest outlet up; each is bisected with the
-//! others held (lower ones already fixed, higher ones at their smallest
-//! opening until their turn); the sweep repeats until no value moves by
-//! more than 0.1 %. Bisection assumes the checks pass for small openings
-//! and fail beyond some opening; at a point that also receives a bypass this
-//! need not hold exactly, so the final values are verified and stepped back
-//! if a check fails.
+//! Dimensions are taken from the lowest outlet up, the others held (lower
+//! ones already fixed, higher ones at their smallest opening until their
+//! turn); the sweep repeats until no value moves by more than 0.1 %. For
+//! one dimension, sizes are tried from the largest opening down (for a size,
+//! the range's min times powers of 1.2, so the sizes tried below any
+//! maximum do not depend on it; for an elevation, 1/200 of the range) until
+//! one meets every limit, then the value is bisected between it and the next
+//! larger size tried. Nothing is assumed about which limits hold at the
+//! smallest opening: a pond that overtops there may still meet every limit
+//! at a larger one, and a peak need not grow with the opening where a
+//! bypass joins. When no size meets every limit during the sweep, the
+//! largest opening that keeps every limit met somewhere in the range is
+//! taken, so that a later dimension can mend the rest; a pond whose limits
+//! still fail at the end is searched again dimension by dimension, and
+//! reported infeasible, naming the limits that fail at every size, when
+//! none meets them.
 
 use crate::analysis::{self, reaches};
 use crate::error::Error;
 use crate::hydraulics::Outlet;
 use crate::model::{ElementKind, SizedDim, SizedField, Study};
 use crate::network::{self, StormResult};
-use crate::report::summary::SizedOut;
+use crate::report::summary::{SizedOut, kind_and_name};
 use rayon::prelude::*;
 use std::path::Path;
 
@@ -37,6 +46,9 @@ struct Check {
     /// For checks where a lower value passes (peaks, drain time) true; for
     /// freeboard (a higher value passes) false.
     upper: bool,
+    /// Why the limit is what it is, when that explains a failure (a limit
+    /// of zero because the condition it refers to sheds no runoff).
+    why: Option<String>,
 }
 
 impl Check {
@@ -94,6 +106,222 @@ fn value_at(d: &SizedDim, opening: f64) -> f64 {
     }
 }
 
+/// The tolerance to which a value is solved: 0.05 % of a size, 0.001 ft
+/// (0.3 mm) of an elevation.
+fn tolerance(d: &SizedDim, v: f64) -> f64 {
+    if d.field.is_elevation() {
+        0.001
+    } else {
+        0.0005 * v.abs().max(1e-6)
+    }
+}
+
+/// Ratio between neighbouring sizes tried before bisection.
+const GRID_RATIO: f64 = 1.2;
+
+/// The values tried for a dimension, largest opening first: for a size,
+/// the range's min times powers of 1.2 (so the values below any maximum
+/// are the same whatever the maximum) and the max; for an elevation, steps
+/// of 1/200 of the range (at least 0.02 ft) up from the lowest.
+fn grid(d: &SizedDim) -> Vec<f64> {
+    let mut out = Vec::new();
+    if d.field.is_elevation() {
+        let h = ((d.max - d.min) / 200.0).max(0.02);
+        let mut v = d.min;
+        while v < d.max - 1e-9 && out.len() < 100_000 {
+            out.push(v);
+            v += h;
+        }
+        out.push(d.max);
+        out.dedup();
+    } else {
+        let lo = d.min.max(1e-9);
+        let mut v = lo;
+        while v < d.max * (1.0 - 1e-9) && out.len() < 100_000 {
+            out.push(v);
+            v *= GRID_RATIO;
+        }
+        out.push(d.max);
+        out.dedup();
+        out.reverse();
+    }
+    out
+}
+
+/// What a search for one dimension found.
+struct Found {
+    /// The value chosen (internal units).
+    value: f64,
+    /// Whether every check holds at it.
+    all_pass: bool,
+    /// Checks that failed at every value tried.
+    failing_everywhere: Vec<Check>,
+    /// Checks that fail at the value chosen.
+    failing_at_value: Vec<Check>,
+}
+
+impl Found {
+    /// Why no value meets every limit, in words.
+    fn reason(&self, study: &Study) -> String {
+        let say = |c: &Check| {
+            let mut t = format!("{} in {}", c.what, study.storms[c.storm].name);
+            if let Some(w) = &c.why {
+                t.push_str(&format!(" ({w})"));
+            }
+            t
+        };
+        if self.failing_everywhere.is_empty() {
+            let list: Vec<String> = self.failing_at_value.iter().map(say).collect();
+            format!(
+                "each limit is met somewhere in the range, but no single size meets them all at once; at the value written, {} fails",
+                list.join("; ")
+            )
+        } else {
+            let list: Vec<String> = self.failing_everywhere.iter().map(say).collect();
+            format!("{} fails at every size in the range", list.join("; "))
+        }
+    }
+}
+
+/// The largest opening of `d` (the others held) at which the checks
+/// `eval` returns all hold; bisected to [`tolerance`] between the largest
+/// value of [`grid`] that passes and the next larger one. With `strict`
+/// false and no value passing every check, the largest opening that keeps
+/// every check met anywhere in the range (failing that, every check met at
+/// the smallest opening) is taken, so that a later dimension can mend the
+/// rest.
+fn size_one(
+    study: &mut Study,
+    d: &SizedDim,
+    eval: &dyn Fn(&Study) -> Vec<Check>,
+    strict: bool,
+) -> Found {
+    let all = |ch: &[Check]| ch.iter().all(Check::pass);
+    let mut evals: Vec<(f64, Vec<Check>)> = Vec::new();
+    for v in grid(d) {
+        set(study, d, v);
+        let ch = eval(study);
+        let ok = all(&ch);
+        evals.push((v, ch));
+        if ok {
+            break;
+        }
+    }
+    let largest = |study: &mut Study, ok: &dyn Fn(&[Check]) -> bool| -> Option<f64> {
+        let i = evals.iter().position(|(_, ch)| ok(ch))?;
+        if i == 0 {
+            return Some(evals[0].0);
+        }
+        let (mut good, mut bad) = (evals[i].0, evals[i - 1].0);
+        for _ in 0..200 {
+            if (bad - good).abs() <= tolerance(d, good) {
+                break;
+            }
+            let mid = 0.5 * (good + bad);
+            set(study, d, mid);
+            if ok(&eval(study)) {
+                good = mid;
+            } else {
+                bad = mid;
+            }
+        }
+        Some(good)
+    };
+    let failing_everywhere: Vec<Check> = match evals.first() {
+        Some((_, first)) => first
+            .iter()
+            .enumerate()
+            .filter(|(i, _)| {
+                evals
+                    .iter()
+                    .all(|(_, ch)| ch.get(*i).is_none_or(|c| !c.pass()))
+            })
+            .map(|(_, c)| c.clone())
+            .collect(),
+        None => Vec::new(),
+    };
+    let mut value = largest(study, &|ch: &[Check]| all(ch));
+    if value.is_none() && !strict {
+        let n = evals.first().map(|e| e.1.len()).unwrap_or(0);
+        let somewhere: Vec<bool> = (0..n)
+            .map(|i| {
+                evals
+                    .iter()
+                    .any(|(_, ch)| ch.get(i).is_some_and(Check::pass))
+            })
+            .collect();
+        let at_min: Vec<bool> = evals
+            .last()
+            .map(|(_, ch)| ch.iter().map(Check::pass).collect())
+            .unwrap_or_default();
+        for keep in [somewhere, at_min] {
+            let ok = |ch: &[Check]| {
+                ch.len() == keep.len() && ch.iter().zip(&keep).all(|(c, k)| !k || c.pass())
+            };
+            value = largest(study, &ok);
+            if value.is_some() {
+                break;
+            }
+        }
+    }
+    let value = value.unwrap_or_else(|| value_at(d, 0.0));
+    set(study, d, value);
+    let at = eval(study);
+    Found {
+        value,
+        all_pass: all(&at),
+        failing_everywhere,
+        failing_at_value: at.into_iter().filter(|c| !c.pass()).collect(),
+    }
+}
+
+/// The outlet's name, if the scenario gives one.
+fn outlet_name(study: &Study, d: &SizedDim) -> Option<String> {
+    match &study.elements[d.element].kind {
+        ElementKind::Pond(p) => p.outlet_names.get(d.outlet).cloned().flatten(),
+        _ => None,
+    }
+}
+
+/// "outlet 2" or "outlet 2 (\"low flow\")": outlets are numbered from 1
+/// in the order of the scenario, in errors, warnings and reports alike.
+pub fn outlet_label(index: usize, name: Option<&str>) -> String {
+    match name {
+        Some(n) => format!("outlet {} (\"{n}\")", index + 1),
+        None => format!("outlet {}", index + 1),
+    }
+}
+
+/// A value of a sized dimension with its unit, in the scenario's system:
+/// "1.604 ft (19.25 in)", "0.4889 m (488.9 mm)", "5.450 ft", "90 deg".
+pub fn with_unit(study: &Study, d: &SizedDim, v: f64) -> String {
+    sized_value_text(study.units, d.field, v)
+}
+
+/// A sized value (internal units: ft or degrees) with its unit in `units`;
+/// a diameter, width or height also in inches or millimetres.
+pub fn sized_value_text(units: crate::units::UnitSystem, field: SizedField, v: f64) -> String {
+    use crate::units::sig;
+    if field == SizedField::Angle {
+        return format!("{} deg", sig(v, 4));
+    }
+    let o = crate::report::summary::Out(units);
+    let lu = o.unit(crate::units::Quantity::Length);
+    let main = format!("{} {lu}", sig(o.length(v), 4));
+    if !matches!(
+        field,
+        SizedField::Diameter | SizedField::Width | SizedField::Height
+    ) {
+        return main;
+    }
+    match units {
+        crate::units::UnitSystem::Us => format!("{main} ({} in)", sig(v * 12.0, 4)),
+        crate::units::UnitSystem::Si => {
+            format!("{main} ({} mm)", sig(o.length(v) * 1000.0, 4))
+        }
+    }
+}
+
 /// Simulates the conditions that hold a sized pond, reusing the rest.
 fn simulate(
     study: &Study,
@@ -131,6 +359,39 @@ fn simulate(
         .collect()
 }
 
+/// Why a point's limit is zero, in words, e.g. "the existing condition
+/// sheds no runoff to point \"outfall\" in 1-in, so its limit is 0 cfs".
+fn zero_limit_reason(
+    study: &Study,
+    point: usize,
+    storm: usize,
+    condition: usize,
+) -> Option<String> {
+    let fu = crate::units::Quantity::Flow.output_unit(study.units);
+    let au = crate::units::Quantity::Area.output_unit(study.units);
+    let p = &study.points[point];
+    let text = p.limit_text.get(storm).cloned().unwrap_or_default();
+    Some(match p.limits.get(storm)? {
+        crate::model::Limit::Relative {
+            condition: lc,
+            storm: ls,
+            ..
+        } => format!(
+            "the {} condition sheds no runoff to {} in {}, so its limit \"{text}\" is 0 {fu}",
+            study.conditions[*lc],
+            kind_and_name("point", &p.name),
+            study.storms[ls.unwrap_or(storm)].name
+        ),
+        crate::model::Limit::PerArea { .. } => format!(
+            "no catchment of the {} condition drains to {} (0 {au}), so its limit \"{text}\" is 0 {fu}",
+            study.conditions[condition],
+            kind_and_name("point", &p.name)
+        ),
+        crate::model::Limit::Absolute { .. } => format!("its limit \"{text}\" is 0 {fu}"),
+        crate::model::Limit::None => return None,
+    })
+}
+
 /// Every check a pond's sizing must keep, evaluated on storm results.
 fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
     let mut out = Vec::new();
@@ -150,12 +411,16 @@ fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
                     out.push(Check {
                         storm: s.storm,
                         what: format!(
-                            "point \"{}\" peak ({})",
-                            study.points[pi].name, study.conditions[c.condition]
+                            "{} peak ({})",
+                            kind_and_name("point", &study.points[pi].name),
+                            study.conditions[c.condition]
                         ),
                         value: analysis::point_peak(storms, s.storm, c.condition, pi),
                         limit,
                         upper: true,
+                        why: (limit <= 0.0)
+                            .then(|| zero_limit_reason(study, pi, s.storm, c.condition))
+                            .flatten(),
                     });
                 }
             }
@@ -170,28 +435,40 @@ fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
             if let Some(top) = p.top_ft {
                 out.push(Check {
                     storm: s.storm,
-                    what: format!("pond \"{}\" below its top", study.elements[pond].name),
+                    what: format!(
+                        "{} below its top",
+                        kind_and_name("pond", &study.elements[pond].name)
+                    ),
                     value: pr.summary.peak_stage_ft,
                     limit: top,
                     upper: true,
+                    why: None,
                 });
             }
             if let (Some(minf), Some(fb)) = (p.min_freeboard_ft, pr.summary.freeboard_ft) {
                 out.push(Check {
                     storm: s.storm,
-                    what: format!("pond \"{}\" freeboard", study.elements[pond].name),
+                    what: format!(
+                        "{} freeboard",
+                        kind_and_name("pond", &study.elements[pond].name)
+                    ),
                     value: fb,
                     limit: minf,
                     upper: false,
+                    why: None,
                 });
             }
             if let Some(maxd) = p.max_drain_time_h {
                 out.push(Check {
                     storm: s.storm,
-                    what: format!("pond \"{}\" drain time", study.elements[pond].name),
+                    what: format!(
+                        "{} drain time",
+                        kind_and_name("pond", &study.elements[pond].name)
+                    ),
                     value: pr.summary.drain_time_h.unwrap_or(f64::INFINITY),
                     limit: maxd,
                     upper: true,
+                    why: None,
                 });
             }
         }
@@ -233,7 +510,7 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
     for d in &dims {
         set(study, d, value_at(d, 0.0));
     }
-    let all: Vec<usize> = (0..study.conditions.len()).collect();
+    let all = study.simulated_conditions();
     let cache: Vec<StormResult> = (0..study.storms.len())
         .into_par_iter()
         .map(|s| network::simulate_storm(study, s, &all))
@@ -247,51 +524,15 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
         let ch = checks(study, &storms, pond);
         (ch.iter().all(Check::pass), ch)
     };
-    let mut openings = vec![0.0f64; dims.len()];
-    let mut infeasible = vec![false; dims.len()];
+    let mut values: Vec<f64> = dims.iter().map(|d| value_at(d, 0.0)).collect();
     for _sweep in 0..6 {
         let mut moved = false;
         for (k, d) in dims.iter().enumerate() {
-            let before = value_at(d, openings[k]);
-            // The limits this dimension must keep: those met at its smallest
-            // opening (a limit already broken there cannot be mended by
-            // closing it further; a later dimension or sweep has to).
-            set(study, d, value_at(d, 0.0));
-            let (_, at_min) = feasible(study, d.element);
-            let keep: Vec<bool> = at_min.iter().map(Check::pass).collect();
-            let keeps = |study: &Study| -> bool {
-                let (_, ch) = feasible(study, d.element);
-                ch.len() == keep.len() && ch.iter().zip(&keep).all(|(c, k)| !k || c.pass())
-            };
-            set(study, d, value_at(d, 1.0));
-            let o = if keeps(study) {
-                1.0
-            } else {
-                let (mut lo, mut hi) = (0.0f64, 1.0f64);
-                for _ in 0..60 {
-                    let (vl, vh) = (value_at(d, lo), value_at(d, hi));
-                    let tol = if d.field.is_elevation() {
-                        (0.001 * (d.max - d.min)).max(1e-4)
-                    } else {
-                        0.0005 * vl.abs().max(1e-6)
-                    };
-                    if (vh - vl).abs() <= tol {
-                        break;
-                    }
-                    let mid = 0.5 * (lo + hi);
-                    set(study, d, value_at(d, mid));
-                    if keeps(study) {
-                        lo = mid;
-                    } else {
-                        hi = mid;
-                    }
-                }
-                lo
-            };
-            openings[k] = o;
-            set(study, d, value_at(d, o));
-            let after = value_at(d, o);
-            if (after - before).abs() > 0.001 * before.abs().max(1e-9) {
+            let before = values[k];
+            let found = size_one(study, d, &|s: &Study| feasible(s, d.element).1, false);
+            values[k] = found.value;
+            set(study, d, found.value);
+            if (found.value - before).abs() > 0.001 * before.abs().max(1e-9) {
                 moved = true;
             }
         }
@@ -299,36 +540,60 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
             break;
         }
     }
-    // Verify at the final values; step back where a check fails.
-    for (k, d) in dims.iter().enumerate().rev() {
-        if infeasible[k] {
+    // Every limit of a pond must hold at the final values. Where one does
+    // not, each of the pond's dimensions in turn (highest outlet first) is
+    // searched again, the others held, for the largest opening that meets
+    // every limit; a pond whose limits no single dimension can meet keeps
+    // the sweep's values and its dimensions are reported infeasible, with
+    // the limits that fail at every size tried.
+    let mut infeasible: Vec<Option<String>> = vec![None; dims.len()];
+    let ponds: Vec<usize> = {
+        let mut v: Vec<usize> = dims.iter().map(|d| d.element).collect();
+        v.sort_unstable();
+        v.dedup();
+        v
+    };
+    for pond in ponds {
+        if feasible(study, pond).0 {
             continue;
         }
-        let mut tries = 0;
-        while !feasible(study, d.element).0 && openings[k] > 0.0 && tries < 400 {
-            openings[k] = (openings[k] - 0.0025).max(0.0);
-            set(study, d, value_at(d, openings[k]));
-            tries += 1;
+        let mine: Vec<usize> = (0..dims.len())
+            .filter(|&k| dims[k].element == pond)
+            .collect();
+        let mut reasons: Vec<(usize, String)> = Vec::new();
+        let mut fixed = false;
+        for &k in mine.iter().rev() {
+            let d = &dims[k];
+            let found = size_one(study, d, &|s: &Study| feasible(s, pond).1, true);
+            if found.all_pass {
+                values[k] = found.value;
+                set(study, d, found.value);
+                fixed = true;
+                break;
+            }
+            set(study, d, values[k]);
+            reasons.push((k, found.reason(study)));
         }
-    }
-    // A dimension is infeasible only if the final values still break a limit
-    // with it at its smallest opening.
-    let final_ok = dims.iter().all(|d| feasible(study, d.element).0);
-    let any_closed = openings.iter().any(|o| *o <= 0.0);
-    for (k, flag) in infeasible.iter_mut().enumerate() {
-        *flag = !final_ok && (openings[k] <= 0.0 || !any_closed);
+        if !fixed {
+            for (k, r) in reasons {
+                infeasible[k] = Some(r);
+            }
+        }
     }
     // Report: governing check = the one that fails first beyond the value.
     let mut outputs = Vec::new();
     let o = crate::report::summary::Out(study.units);
     for (k, d) in dims.iter().enumerate() {
-        let v = value_at(d, openings[k]);
+        let v = values[k];
+        let at_max = (v - value_at(d, 1.0)).abs() <= tolerance(d, v);
         let (_, at_value) = feasible(study, d.element);
-        let governing = if openings[k] < 1.0 {
-            let more = (openings[k]
-                + 0.02_f64.max(0.02 * v.abs() / (d.max - d.min).abs().max(1e-9)))
-            .min(1.0);
-            set(study, d, value_at(d, more));
+        let governing = if !at_max {
+            let more = if d.field.is_elevation() {
+                (v - 10.0 * tolerance(d, v)).max(d.min)
+            } else {
+                (v * 1.02).min(d.max)
+            };
+            set(study, d, more);
             let (_, beyond) = feasible(study, d.element);
             set(study, d, v);
             beyond
@@ -356,10 +621,19 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
                 o.length(x)
             }
         };
+        let pond_name = study.elements[d.element].name.clone();
+        let outlet_name = outlet_name(study, d);
+        let reason = infeasible[k].clone();
         outputs.push(SizedOut {
-            pond: study.elements[d.element].name.clone(),
+            pond: pond_name.clone(),
             outlet: d.outlet,
+            outlet_name: outlet_name.clone(),
             field: d.field.key(),
+            unit: if d.field == SizedField::Angle {
+                "deg"
+            } else {
+                o.unit(crate::units::Quantity::Length)
+            },
             value: conv(v),
             min: conv(d.min),
             max: conv(d.max),
@@ -367,33 +641,80 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
                 .as_ref()
                 .map(|c| study.storms[c.storm].name.clone()),
             governing_check: governing.as_ref().map(|c| {
-                if openings[k] >= 1.0 && c.pass() {
+                if at_max && c.pass() {
                     format!("{} (range max reached)", c.what)
                 } else {
                     c.what.clone()
                 }
             }),
-            margin: governing.as_ref().map(Check::margin),
-            feasible: !infeasible[k],
+            margin: if reason.is_some() {
+                None
+            } else {
+                governing
+                    .as_ref()
+                    .map(Check::margin)
+                    .filter(|m| m.is_finite())
+            },
+            feasible: reason.is_none(),
+            reason: reason.clone(),
         });
-        if infeasible[k] {
-            let failing: Vec<String> = at_value
-                .iter()
-                .filter(|c| !c.pass())
-                .map(|c| format!("{} in {}", c.what, study.storms[c.storm].name))
-                .collect();
-            study.warnings.push(crate::warning::Warning::Note(format!(
-                "sizing of pond \"{}\" outlet {} {}: even the smallest opening in the range breaks a limit ({}); results are written at the smallest opening",
-                study.elements[d.element].name,
-                d.outlet,
-                d.field.key(),
-                failing.join("; ")
-            )));
+        if let Some(r) = reason {
+            study
+                .warnings
+                .push(crate::warning::Warning::SizingInfeasible {
+                    pond: pond_name,
+                    outlet: outlet_label(d.outlet, outlet_name.as_deref()),
+                    field: d.field.key().to_string(),
+                    range: format!(
+                        "{} to {}",
+                        with_unit(study, d, d.min),
+                        with_unit(study, d, d.max)
+                    ),
+                    reason: r,
+                    written_at: with_unit(study, d, v),
+                });
         }
     }
     // Dimensions are now fixed values; keep the list for the sized copy.
     study.sizing = dims;
     Ok(Sizing { outputs })
+}
+
+/// The value of a sized field of an outlet (ft or degrees).
+fn current_value(outlet: &Outlet, field: SizedField) -> Option<f64> {
+    Some(match (outlet, field) {
+        (
+            Outlet::CircularOrifice { diameter_ft, .. } | Outlet::Riser { diameter_ft, .. },
+            SizedField::Diameter,
+        ) => *diameter_ft,
+        (
+            Outlet::CircularOrifice { invert_ft, .. }
+            | Outlet::RectangularOrifice { invert_ft, .. },
+            SizedField::Invert,
+        ) => *invert_ft,
+        (Outlet::RectangularOrifice { width_ft, .. }, SizedField::Width) => *width_ft,
+        (Outlet::RectangularOrifice { height_ft, .. }, SizedField::Height) => *height_ft,
+        (
+            Outlet::SharpCrestedWeir { length_ft, .. } | Outlet::BroadCrestedWeir { length_ft, .. },
+            SizedField::Length,
+        ) => *length_ft,
+        (Outlet::VNotchWeir { angle_deg, .. }, SizedField::Angle) => *angle_deg,
+        (o2, SizedField::Crest) => o2.lowest_ft(),
+        _ => return None,
+    })
+}
+
+/// The value a sized dimension now holds, with its unit (see [`with_unit`]).
+pub fn value_text(study: &Study, d: &SizedDim) -> String {
+    let v = match &study.elements[d.element].kind {
+        ElementKind::Pond(p) => p
+            .outlets
+            .get(d.outlet)
+            .and_then(|o| current_value(o, d.field)),
+        _ => None,
+    };
+    v.map(|v| with_unit(study, d, v))
+        .unwrap_or_else(|| "-".into())
 }
 
 /// The scenario text with every range replaced by its value and every file
@@ -410,31 +731,15 @@ pub fn sized_scenario_text(study: &Study, out_dir: &Path, _scenario: &Path) -> S
         let Some(outlet) = p.outlets.get(d.outlet) else {
             continue;
         };
-        let v = match (outlet, d.field) {
-            (
-                Outlet::CircularOrifice { diameter_ft, .. } | Outlet::Riser { diameter_ft, .. },
-                SizedField::Diameter,
-            ) => *diameter_ft,
-            (
-                Outlet::CircularOrifice { invert_ft, .. }
-                | Outlet::RectangularOrifice { invert_ft, .. },
-                SizedField::Invert,
-            ) => *invert_ft,
-            (Outlet::RectangularOrifice { width_ft, .. }, SizedField::Width) => *width_ft,
-            (Outlet::RectangularOrifice { height_ft, .. }, SizedField::Height) => *height_ft,
-            (
-                Outlet::SharpCrestedWeir { length_ft, .. }
-                | Outlet::BroadCrestedWeir { length_ft, .. },
-                SizedField::Length,
-            ) => *length_ft,
-            (Outlet::VNotchWeir { angle_deg, .. }, SizedField::Angle) => *angle_deg,
-            (o2, SizedField::Crest) => o2.lowest_ft(),
-            _ => continue,
+        let Some(v) = current_value(outlet, d.field) else {
+            continue;
         };
         let rep = if d.field == SizedField::Angle {
             format!("{v:.4}")
         } else {
-            format!("\"{:.6} {lu}\"", o.length(v))
+            // Shortest text that reads back as the same number, so that the
+            // sized copy reproduces the run exactly.
+            format!("\"{} {lu}\"", o.length(v))
         };
         edits.push((d.span.clone(), rep));
     }

@@ -54,6 +54,14 @@ pub fn storage_ratio(storm: StormType, qo_over_qi: f64) -> StorageRatio {
     }
 }
 
+/// Whether a storm needs any detention storage: only when the allowed
+/// outflow is below the inflow peak (qo/qi < 1). At qo/qi >= 1 the inflow
+/// can pass untouched, and the Figure 6-1 cubic, fitted for 0.1-0.8, is meaningless
+/// there and goes negative above it (Types II and III: -0.487 at r = 1.5).
+pub fn needs_storage(qo_over_qi: f64) -> bool {
+    qo_over_qi < 1.0
+}
+
 /// Runoff volume Vr (ft3) of a runoff depth over an area.
 ///
 /// # Formula
@@ -110,6 +118,19 @@ mod tests {
                 last = v;
             }
         }
+    }
+
+    #[test]
+    fn no_storage_is_needed_once_the_allowed_outflow_reaches_the_inflow_peak() {
+        // TR-55 (1986) Table F-2 (transcribed): at r = 1 the Type II/III cubic
+        // gives 0.682 - 1.43 + 1.64 - 0.804 = 0.088 and Type I/IA
+        // 0.660 - 1.76 + 1.96 - 0.730 = 0.130; above 1 it falls below zero
+        // (Type II at r = 1.5: -0.487), which cannot be a storage.
+        assert!((storage_ratio(StormType::II, 1.0).vs_over_vr - 0.088).abs() < 1e-9);
+        assert!(storage_ratio(StormType::II, 1.5).vs_over_vr < 0.0);
+        assert!(needs_storage(0.99));
+        assert!(!needs_storage(1.0));
+        assert!(!needs_storage(1.7));
     }
 
     #[test]

@@ -70,8 +70,8 @@ pub enum Warning {
     OutletAboveTop {
         /// Pond.
         pond: String,
-        /// 0-based outlet index.
-        outlet: usize,
+        /// "outlet 2" or "outlet 2 (\"name\")", numbered from 1.
+        outlet: String,
     },
     /// A pond that never fills above its lowest outlet in a storm.
     PondNeverFills {
@@ -86,8 +86,8 @@ pub enum Warning {
     OrificeNeverSubmerged {
         /// Pond.
         pond: String,
-        /// 0-based outlet index.
-        outlet: usize,
+        /// "outlet 2" or "outlet 2 (\"name\")", numbered from 1.
+        outlet: String,
     },
     /// The water rose over the embankment top.
     Overtopped {
@@ -199,6 +199,47 @@ pub enum Warning {
         /// Gauge interval, h.
         interval_h: f64,
     },
+    /// A point's limit needs the baseline, which has no element.
+    NoBaseline {
+        /// Point.
+        point: String,
+        /// What needs it, with its verb: `its limit "existing" needs`.
+        what: String,
+        /// The baseline condition.
+        baseline: String,
+        /// The one condition the elements belong to.
+        condition: String,
+    },
+    /// The area draining to a point differs from the baseline's by more than 5 %.
+    AreaMismatch {
+        /// Point.
+        point: String,
+        /// Condition checked.
+        condition: String,
+        /// Its area, with unit.
+        area: String,
+        /// Baseline condition.
+        baseline: String,
+        /// The baseline's area, with unit.
+        baseline_area: String,
+        /// (area - baseline area) / baseline area, percent.
+        difference_pct: f64,
+    },
+    /// No value in a sizing range meets every limit.
+    SizingInfeasible {
+        /// Pond.
+        pond: String,
+        /// "outlet 2" or "outlet 2 (\"name\")".
+        outlet: String,
+        /// Sized key.
+        field: String,
+        /// The range, with units.
+        range: String,
+        /// The limits that fail at every size, and why.
+        reason: String,
+        /// The value the results are written at, with its unit.
+        written_at: String,
+    },
     /// Anything else, worded in full.
     Note(String),
 }
@@ -227,6 +268,9 @@ impl Warning {
             Warning::RecordShortFit { .. } => "record-short-fit",
             Warning::RecordStepCoarse { .. } => "record-step-coarse",
             Warning::RecordStepCoarserThanGauge { .. } => "record-step-coarser-than-gauge",
+            Warning::SizingInfeasible { .. } => "sizing-infeasible",
+            Warning::NoBaseline { .. } => "no-baseline",
+            Warning::AreaMismatch { .. } => "area-mismatch",
             Warning::Note(_) => "note",
         }
     }
@@ -284,7 +328,7 @@ impl fmt::Display for Warning {
             ),
             Warning::OutletAboveTop { pond, outlet } => write!(
                 f,
-                "pond \"{pond}\", outlet {outlet}: it sits above the top of embankment and can only act once the pond overtops"
+                "pond \"{pond}\", {outlet}: it sits above the top of embankment and can only act once the pond overtops"
             ),
             Warning::PondNeverFills {
                 pond,
@@ -296,7 +340,7 @@ impl fmt::Display for Warning {
             ),
             Warning::OrificeNeverSubmerged { pond, outlet } => write!(
                 f,
-                "pond \"{pond}\", outlet {outlet}: the orifice is never submerged in any storm, so it always flows as a weir"
+                "pond \"{pond}\", {outlet}: the orifice is never submerged in any storm, so it always flows as a weir"
             ),
             Warning::Overtopped {
                 pond,
@@ -405,6 +449,42 @@ impl fmt::Display for Warning {
                 "record \"{record}\": the step of {:.1} min is coarser than the gauge interval of {:.1} min, so the rain of several intervals is lumped and peaks are lower than the gauge supports - set `step` to the gauge interval or a divisor of it",
                 step_h * 60.0,
                 interval_h * 60.0
+            ),
+            Warning::NoBaseline {
+                point,
+                what,
+                baseline,
+                condition,
+            } => write!(
+                f,
+                "point \"{point}\": {what} the baseline condition \"{baseline}\", which has no element (every element belongs to \"{condition}\"), so it is reported \"not checked: no baseline\" - add the {baseline} catchments to compare, or give the point a limit in flow units such as \"12 cfs\""
+            ),
+            Warning::AreaMismatch {
+                point,
+                condition,
+                area,
+                baseline,
+                baseline_area,
+                difference_pct,
+            } => write!(
+                f,
+                "point \"{point}\": {area} drains to it in {condition} but {baseline_area} in {baseline}{}; peaks from different areas are rarely comparable - check that each catchment belongs to the conditions it should (an element without `condition` belongs to all)",
+                if difference_pct.is_finite() {
+                    format!(" ({difference_pct:+.1} %, more than 5 %)")
+                } else {
+                    String::new()
+                }
+            ),
+            Warning::SizingInfeasible {
+                pond,
+                outlet,
+                field,
+                range,
+                reason,
+                written_at,
+            } => write!(
+                f,
+                "sizing of pond \"{pond}\", {outlet} {field}: no value from {range} meets every limit: {reason}; the results are written at {written_at} - widen the range, change another outlet or the pond, or review the limit"
             ),
             Warning::Note(s) => f.write_str(s),
         }

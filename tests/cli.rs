@@ -213,7 +213,7 @@ fn check_prints_derived_parameters_and_writes_nothing() {
         "composite CN",
         "Tc",
         "segment 1 sheet",
-        "Pond \"Pond A\"",
+        "\nPond A -> ",
         "outflow",
         "TR-55 graphical peak",
     ] {

@@ -109,11 +109,13 @@ fn an_infeasible_range_names_the_pond_storm_and_point_and_exits_1() {
     let err = String::from_utf8_lossy(&o.stderr);
     assert!(
         err.contains("pond \"basin\"")
-            && err.contains("even the smallest opening")
+            && err.contains("no value from")
+            && err.contains("fails at every size")
             && err.contains("outfall")
             && err.contains("2-yr"),
         "{err}"
     );
+    assert!(!err.contains("inf"), "{err}");
     let s: serde_json::Value = serde_json::from_str(
         &std::fs::read_to_string(out.join("summary.json")).unwrap_or_default(),
     )
@@ -166,4 +168,87 @@ fn the_sized_scenario_is_valid_toml_for_a_path_with_a_combining_accent() {
         "{}",
         String::from_utf8_lossy(&o.stderr)
     );
+}
+
+/// Runs `text` as a scenario in a fresh folder; returns (exit code, summary, stdout, stderr).
+fn run_text(text: &str) -> (i32, serde_json::Value, String, String) {
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let p = dir.path().join("s.toml");
+    std::fs::write(&p, text).unwrap_or_else(|e| panic!("{e}"));
+    let out = dir.path().join("out");
+    let o = runnel(&["run", &p.to_string_lossy(), "--out", &out.to_string_lossy()]);
+    let s: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(out.join("summary.json")).unwrap_or_default(),
+    )
+    .unwrap_or_default();
+    (
+        o.status.code().unwrap_or(-1),
+        s,
+        String::from_utf8_lossy(&o.stdout).into_owned(),
+        String::from_utf8_lossy(&o.stderr).into_owned(),
+    )
+}
+
+#[test]
+fn the_sized_answer_does_not_depend_on_the_range_maximum() {
+    // The smallest orifice overtops the pond, so the limit is met only at
+    // larger openings; the largest that meets it must be found whatever the
+    // range's maximum. Tolerance: values are solved to 0.05 % (README,
+    // Conventions: Sizing), so two answers agree within 0.1 %.
+    let base = std::fs::read_to_string(data("sizing-overtops.toml")).unwrap_or_default();
+    let mut found = Vec::new();
+    for max in ["48 in", "100 ft", "1000 ft"] {
+        let text = base.replace("max = \"48 in\"", &format!("max = \"{max}\""));
+        assert!(text.contains(max));
+        let (code, s, out, err) = run_text(&text);
+        assert_eq!(code, 0, "max {max}: {out}{err}");
+        assert_eq!(s["sized"][0]["feasible"], true, "max {max}");
+        assert_eq!(s["all_pass"], true, "max {max}");
+        found.push(num(&s["sized"][0]["value"]));
+    }
+    for v in &found {
+        assert!((v - found[0]).abs() <= 0.001 * found[0], "{found:?}");
+    }
+    // The answer is maximal: 1 % more breaks the limit (checked on a fixed
+    // diameter).
+    let bigger = base.replace(
+        "diameter = { min = \"2 in\", max = \"48 in\" }",
+        &format!("diameter = \"{} ft\"", found[0] * 1.01),
+    );
+    let (code, s, _, _) = run_text(&bigger);
+    assert_eq!(code, 1, "{s}");
+}
+
+#[test]
+fn sizing_that_cannot_succeed_names_the_limit_and_why() {
+    // The baseline's CN 60 sheds no runoff from a 1-in storm (Ia = 0.2 S =
+    // 1.33 in > P; TR-55 (1986) eq. 2-1 to 2-4), so "existing" is a limit of
+    // 0 cfs that no orifice can meet while the proposed roofs shed runoff.
+    let text = std::fs::read_to_string(data("sizing-two-dims.toml"))
+        .unwrap_or_default()
+        .replace(
+            "[[storm]]\nname = \"2-yr\"",
+            "[[storm]]\nname = \"1-in\"\npattern = \"nrcs-type-ii\"\ndepth = \"1 in\"\n[[storm]]\nname = \"2-yr\"",
+        )
+        .replace("cn = 65", "cn = 60")
+        .replace("cn = 88", "cn = 98");
+    assert!(text.contains("1-in"));
+    let (code, s, out, err) = run_text(&text);
+    assert_eq!(code, 1, "{out}{err}");
+    let all = format!("{out}{err}");
+    assert!(
+        all.contains("point \"outfall\" peak (proposed) in 1-in")
+            && all.contains("the existing condition sheds no runoff to point \"outfall\" in 1-in, so its limit \"existing\" is 0 cfs")
+            && all.contains("fails at every size"),
+        "{all}"
+    );
+    assert!(!all.contains("inf %") && !all.contains("-inf"), "{all}");
+    let z = &s["sized"][0];
+    assert_eq!(z["feasible"], false);
+    assert!(
+        z["reason"]
+            .as_str()
+            .is_some_and(|r| r.contains("sheds no runoff"))
+    );
+    assert!(z["margin"].is_null());
 }

@@ -42,10 +42,15 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
     let _ = writeln!(t, "{}: scenario is valid", scenario.display());
     let _ = writeln!(
         t,
-        "units {}, step {:.2} min, baseline \"{}\", conditions: {}",
+        "units {}, step {:.2} min, baseline \"{}\"{}, conditions: {}",
         s.unit_system,
         s.step_h * 60.0,
         s.baseline,
+        if s.baseline_present {
+            ""
+        } else {
+            " (no element: limits that need it are not checked)"
+        },
         s.conditions.join(", ")
     );
     let _ = writeln!(t, "{}", crate::cli::run::memory_line(&study));
@@ -116,13 +121,15 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
         };
         let _ = writeln!(
             t,
-            "\nPond \"{}\" -> {} (storage: {})",
-            e.name,
+            "\n{} -> {} (storage: {})",
+            summary::kind_and_name("Pond", &e.name),
             summary::target_name(&study, e.to),
             p.storage_kind
         );
         for (i, d) in p.outlets.iter().enumerate() {
-            let _ = writeln!(t, "  outlet {i}: {}", describe_outlet(d, o));
+            let label =
+                crate::sizing::outlet_label(i, p.outlet_names.get(i).and_then(|n| n.as_deref()));
+            let _ = writeln!(t, "  {label}: {}", describe_outlet(d, o));
         }
         let _ = writeln!(
             t,
@@ -241,20 +248,35 @@ pub fn estimate_text(study: &Study, a: &analysis::Analysis) -> String {
                 if qi <= 0.0 {
                     continue;
                 }
-                let ratio = storage_estimate::storage_ratio(analysis::storm_type(kind), qo / qi);
-                let vr = network::volume_ft3(&pr.inflow_cfs, st.step_h);
-                let vs = ratio.vs_over_vr * vr;
-                let stage = stage_for_volume(p, p.storage.volume_ft3(pr.start_ft) + vs);
                 if t.is_empty() {
                     let _ = writeln!(
                         t,
                         "First-cut storage (TR-55 chapter 6, Figure 6-1 / Table F-2; an approximate method for concept sizing, not a routing):"
                     );
                 }
+                if !storage_estimate::needs_storage(qo / qi) {
+                    let _ = writeln!(
+                        t,
+                        "  {}, {} ({}): qi {} {fu}, allowed qo {} {fu} (limit {} less bypass {}), qo/qi {:.3}: the allowed outflow is not below the inflow peak, so this storm needs no storage",
+                        summary::kind_and_name("pond", &study.elements[i].name),
+                        storm.name,
+                        study.conditions[c.condition],
+                        sig(o.flow(qi), 4),
+                        sig(o.flow(qo), 4),
+                        sig(o.flow(limit), 4),
+                        sig(o.flow(bypass), 4),
+                        qo / qi,
+                    );
+                    continue;
+                }
+                let ratio = storage_estimate::storage_ratio(analysis::storm_type(kind), qo / qi);
+                let vr = network::volume_ft3(&pr.inflow_cfs, st.step_h);
+                let vs = ratio.vs_over_vr * vr;
+                let stage = stage_for_volume(p, p.storage.volume_ft3(pr.start_ft) + vs);
                 let _ = writeln!(
                     t,
-                    "  pond \"{}\", {} ({}): qi {} {fu}, allowed qo {} {fu} (limit {} less bypass {}), qo/qi {:.3}{} -> Vs/Vr {:.3}, Vr {} {vu}, Vs {} {vu}, reaching stage {:.2} {lu}",
-                    study.elements[i].name,
+                    "  {}, {} ({}): qi {} {fu}, allowed qo {} {fu} (limit {} less bypass {}), qo/qi {:.3}{} -> Vs/Vr {:.3}, Vr {} {vu}, Vs {} {vu}, reaching stage {:.2} {lu}",
+                    summary::kind_and_name("pond", &study.elements[i].name),
                     storm.name,
                     study.conditions[c.condition],
                     sig(o.flow(qi), 4),

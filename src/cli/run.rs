@@ -141,27 +141,38 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let fu = o.unit(Quantity::Flow);
     let mut lines = Vec::new();
     for c in &s.comparisons {
-        lines.push(format!(
-            "{:<7} {} / {} / {}: peak {} {fu}, limit {} {fu}",
-            if c.pass { "meets" } else { "EXCEEDS" },
-            c.point,
-            c.storm.clone().or(c.record.clone()).unwrap_or_default(),
-            c.condition,
-            crate::units::sig(c.peak, 4),
-            crate::units::sig(c.limit, 4)
-        ));
+        lines.push(comparison_line(c, fu));
     }
     for c in s.pond_checks.iter().filter(|c| !c.pass) {
         lines.push(format!(
-            "FAILS   pond {} / {} / {}: {}",
-            c.pond, c.storm, c.condition, c.check
+            "FAILS   {} / {} / {}: {}",
+            summary::kind_and_name("pond", &c.pond),
+            c.storm,
+            c.condition,
+            c.check
         ));
     }
-    for z in s.sized.iter().filter(|z| !z.feasible) {
-        lines.push(format!(
-            "INFEASIBLE sizing of pond {} outlet {} {}",
-            z.pond, z.outlet, z.field
-        ));
+    for (z, d) in s.sized.iter().zip(&study.sizing) {
+        let label = crate::sizing::outlet_label(z.outlet, z.outlet_name.as_deref());
+        let value = crate::sizing::value_text(&study, d);
+        if z.feasible {
+            lines.push(format!(
+                "sized   {}, {label} {} = {value}{}",
+                summary::kind_and_name("pond", &z.pond),
+                z.field,
+                match (&z.governing_check, &z.governing_storm) {
+                    (Some(c), Some(st)) => format!(" (governed by {c} in {st})"),
+                    _ => String::new(),
+                }
+            ));
+        } else {
+            lines.push(format!(
+                "INFEASIBLE sizing of {}, {label} {}: {}; results written at {value}",
+                summary::kind_and_name("pond", &z.pond),
+                z.field,
+                z.reason.clone().unwrap_or_default()
+            ));
+        }
     }
     Ok(RunOutcome {
         out_dir,
@@ -423,10 +434,11 @@ fn write_plots(
                     .unwrap_or_default();
                 let mut references = Vec::new();
                 for (k, d) in pond.outlets.iter().enumerate() {
-                    references.push((
-                        format!("outlet {k} {}", kind_word(d)),
-                        o.length(d.lowest_ft()),
-                    ));
+                    let label = crate::sizing::outlet_label(
+                        k,
+                        pond.outlet_names.get(k).and_then(|n| n.as_deref()),
+                    );
+                    references.push((format!("{label} {}", kind_word(d)), o.length(d.lowest_ft())));
                 }
                 if let Some(t) = pond.top_ft {
                     references.push(("top of embankment".to_string(), o.length(t)));
@@ -435,7 +447,11 @@ fn write_plots(
                 let cname = &study.conditions[c.condition];
                 let file = output::pond_plot_name(name, &storm.name, cname);
                 let data = plot::PondPlot {
-                    title: format!("Pond {name} - {} ({cname})", storm.name),
+                    title: format!(
+                        "{} - {} ({cname})",
+                        summary::kind_and_name("Pond", name),
+                        storm.name
+                    ),
                     subtitle: format!(
                         "storage-indication routing, step {:.0} min; runnel {}",
                         study.step_h * 60.0,
@@ -451,7 +467,11 @@ fn write_plots(
                     references,
                 };
                 jobs.push((
-                    format!("pond {name}, {} ({cname})", storm.name),
+                    format!(
+                        "{}, {} ({cname})",
+                        summary::kind_and_name("pond", name),
+                        storm.name
+                    ),
                     file,
                     Box::new(move || plot::pond_png(&data)),
                 ));
@@ -483,4 +503,38 @@ fn kind_word(d: &crate::hydraulics::Outlet) -> &'static str {
         D::Riser { .. } => "riser rim",
         D::Rating { .. } => "rating start",
     }
+}
+
+/// The printed line of one check at a point.
+fn comparison_line(c: &summary::ComparisonOut, fu: &str) -> String {
+    use crate::units::sig;
+    let verdict = match c.pass {
+        Some(true) => "meets",
+        Some(false) => "EXCEEDS",
+        None => "not checked",
+    };
+    let when = c.storm.clone().or(c.record.clone()).unwrap_or_default();
+    let head = format!("{verdict:<7} {} / {when} / {}", c.point, c.condition);
+    if c.pass.is_none() {
+        return format!(
+            "{head}: no baseline (\"{}\" needs the {} condition, which has no element)",
+            c.limit_text, c.baseline
+        );
+    }
+    if let Some(d) = &c.duration {
+        return format!(
+            "{head}: flow durations ({}): at {} {fu}, {} h above against {} h allowed ({} {} h)",
+            c.limit_text,
+            sig(d.worst_flow, 4),
+            sig(d.time_h, 4),
+            sig(d.allowed_time_h, 4),
+            c.baseline,
+            sig(d.baseline_time_h, 4)
+        );
+    }
+    format!(
+        "{head}: peak {} {fu}, limit {} {fu}",
+        c.peak.map(|v| sig(v, 4)).unwrap_or_else(|| "-".into()),
+        c.limit.map(|v| sig(v, 4)).unwrap_or_else(|| "-".into())
+    )
 }

@@ -22,6 +22,9 @@ fn opt(v: Option<f64>, d: usize) -> String {
     v.map(|x| f(x, d)).unwrap_or_else(|| "-".into())
 }
 
+/// How drain time is measured, stated beside every drain-time check.
+pub const DRAIN_TIME_DEFINITION: &str = "Drain time runs from the peak stage until the storage above the starting storage falls below 1 % of its peak value (\"never drained\": not within the run).";
+
 /// Renders the report. `plots` lists (caption, file name) of the PNGs.
 pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md: &str) -> String {
     let o = Out(study.units);
@@ -66,57 +69,118 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
             " (chosen: largest of 1, 2, 3, 5, 6 min within 0.133 Tc)"
         }
     );
-    let _ = writeln!(m, "| baseline | {} |", s.baseline);
+    let _ = writeln!(
+        m,
+        "| baseline | {}{} |",
+        s.baseline,
+        if s.baseline_present {
+            ""
+        } else {
+            " (no element: limits that need it are not checked)"
+        }
+    );
     let _ = writeln!(m);
 
     // Verdict first.
     let _ = writeln!(m, "## Design points\n");
+    let peaks: Vec<_> = s.comparisons.iter().filter(|c| c.check == "peak").collect();
+    let durations: Vec<_> = s.comparisons.iter().filter(|c| c.check != "peak").collect();
     if s.comparisons.is_empty() {
         let _ = writeln!(
             m,
             "No limits are checked (one condition only, or every limit is \"none\").\n"
         );
     } else {
-        let fails = s.comparisons.iter().filter(|c| !c.pass).count();
+        let fails = s.comparisons.iter().filter(|c| c.fails()).count();
+        let unchecked = s.comparisons.iter().filter(|c| c.pass.is_none()).count();
+        let mut verdict = if fails == 0 {
+            "**Every check is met.**".to_string()
+        } else {
+            format!("**{fails} check(s) fail.**")
+        };
+        if unchecked > 0 {
+            verdict.push_str(&format!(
+                " {unchecked} check(s) not made: the baseline \"{}\" has no element.",
+                s.baseline
+            ));
+        }
+        let _ = writeln!(m, "{verdict}\n");
+    }
+    if !peaks.is_empty() {
         let _ = writeln!(
             m,
-            "{}\n",
-            if fails == 0 {
-                "**Every peak is within its limit.**".to_string()
-            } else {
-                format!("**{fails} check(s) fail.**")
-            }
+            "| point | storm | condition | area [{au}] | {b} area [{au}] | peak [{fu}] | limit [{fu}] | limit rule | {b} peak [{fu}] | margin | result |",
+            b = s.baseline
         );
-        let _ = writeln!(
-            m,
-            "| point | storm / record | condition | peak [{fu}] | limit [{fu}] | limit rule | {} peak [{fu}] | margin | result |",
-            s.baseline
-        );
-        let _ = writeln!(m, "|---|---|---|---:|---:|---|---:|---:|---|");
-        for c in &s.comparisons {
-            let margin = if c.limit > 0.0 {
-                format!("{:+.1} %", (c.limit - c.peak) / c.limit * 100.0)
-            } else {
-                "-".into()
+        let _ = writeln!(m, "|---|---|---|---:|---:|---:|---:|---|---:|---:|---|");
+        for c in &peaks {
+            let margin = match (c.limit, c.peak) {
+                (Some(l), Some(p)) if l > 0.0 => format!("{:+.1} %", (l - p) / l * 100.0),
+                _ => "-".into(),
             };
             let _ = writeln!(
                 m,
-                "| {} | {} | {} | {} | {} | {} | {} | {} | {} |",
+                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
                 c.point,
-                c.storm.clone().or(c.record.clone()).unwrap_or_default(),
+                c.storm.clone().unwrap_or_default(),
                 c.condition,
-                sig(c.peak, 4),
-                sig(c.limit, 4),
+                f(c.area, 3),
+                opt(c.baseline_area, 3),
+                c.peak.map(|v| sig(v, 4)).unwrap_or_else(|| "-".into()),
+                c.limit.map(|v| sig(v, 4)).unwrap_or_else(|| "-".into()),
                 c.limit_text,
-                sig(c.baseline_peak, 4),
+                c.baseline_peak
+                    .map(|v| sig(v, 4))
+                    .unwrap_or_else(|| "-".into()),
                 margin,
-                if c.pass { "meets" } else { "**EXCEEDS**" }
+                result_word(c)
+            );
+        }
+        let _ = writeln!(m);
+    }
+    if !durations.is_empty() {
+        let _ = writeln!(
+            m,
+            "Flow-duration control: each condition's time above each of {} flows spaced evenly in log over the rule's range, against the baseline's time there; a condition fails where its time exceeds the baseline's by more than the tolerance, or where the baseline's time is zero. Each row shows the worst level.\n",
+            durations
+                .iter()
+                .find_map(|c| c.duration.as_ref().map(|d| d.levels))
+                .unwrap_or(100)
+        );
+        let _ = writeln!(
+            m,
+            "| point | record | condition | area [{au}] | {b} area [{au}] | rule | worst flow [{fu}] | {b} time above [h] | time above [h] | allowed [h] | result |",
+            b = s.baseline
+        );
+        let _ = writeln!(m, "|---|---|---|---:|---:|---|---:|---:|---:|---:|---|");
+        for c in &durations {
+            let d = c.duration.as_ref();
+            let _ = writeln!(
+                m,
+                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
+                c.point,
+                c.record.clone().unwrap_or_default(),
+                c.condition,
+                f(c.area, 3),
+                opt(c.baseline_area, 3),
+                c.limit_text,
+                d.map(|d| sig(d.worst_flow, 4))
+                    .unwrap_or_else(|| "-".into()),
+                d.map(|d| sig(d.baseline_time_h, 4))
+                    .unwrap_or_else(|| "-".into()),
+                d.map(|d| sig(d.time_h, 4)).unwrap_or_else(|| "-".into()),
+                d.map(|d| sig(d.allowed_time_h, 4))
+                    .unwrap_or_else(|| "-".into()),
+                result_word(c)
             );
         }
         let _ = writeln!(m);
     }
     if !s.pond_checks.is_empty() {
         let _ = writeln!(m, "### Pond checks\n");
+        if s.pond_checks.iter().any(|c| c.check == "drain time") {
+            let _ = writeln!(m, "{DRAIN_TIME_DEFINITION}\n");
+        }
         let _ = writeln!(
             m,
             "| pond | storm | condition | check | value | limit | result |\n|---|---|---|---|---:|---:|---|"
@@ -291,24 +355,47 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
         let ElementKind::Pond(p) = &e.kind else {
             continue;
         };
-        let _ = writeln!(m, "## Pond \"{}\"\n", e.name);
         let _ = writeln!(
             m,
-            "Storage from {}; outlets in parallel with a free outfall (no tailwater); routed by storage-indication (modified Puls) on a {} {lu} stage grid.{}\n",
+            "## {}\n",
+            crate::report::summary::kind_and_name("Pond", &e.name)
+        );
+        let _ = writeln!(
+            m,
+            "Storage from {}; outlets in parallel with a free outfall (no tailwater); routed by storage-indication (modified Puls) on a {} {lu} stage grid.{} {DRAIN_TIME_DEFINITION}\n",
             p.storage_kind,
             f(o.length(p.grid_step_ft), 3),
             match p.top_ft {
                 Some(t) => format!(
-                    " Top of embankment {} {lu}; above it the embankment overflows as a broad-crested weir (C = 2.6 US) {} {lu} long.",
+                    " Top of embankment {} {lu}; above it the embankment overflows as a broad-crested weir (C = {}) {} {lu} long.",
                     f(o.length(t), 2),
+                    f(
+                        o.weir_coefficient(crate::model::EMBANKMENT_WEIR_COEFFICIENT),
+                        2
+                    ),
                     f(o.length(p.top_length_ft), 1)
                 ),
                 None => String::new(),
             }
         );
-        let _ = writeln!(m, "| outlet | device |\n|---:|---|");
+        let named = p.outlet_names.iter().any(Option::is_some);
+        if named {
+            let _ = writeln!(m, "| outlet | name | device |\n|---:|---|---|");
+        } else {
+            let _ = writeln!(m, "| outlet | device |\n|---:|---|");
+        }
         for (i, d) in p.outlets.iter().enumerate() {
-            let _ = writeln!(m, "| {i} | {} |", describe_outlet(d, o));
+            if named {
+                let _ = writeln!(
+                    m,
+                    "| {} | {} | {} |",
+                    i + 1,
+                    p.outlet_names.get(i).cloned().flatten().unwrap_or_default(),
+                    describe_outlet(d, o)
+                );
+            } else {
+                let _ = writeln!(m, "| {} | {} |", i + 1, describe_outlet(d, o));
+            }
         }
         let _ = writeln!(m);
         let _ = writeln!(
@@ -374,25 +461,42 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
         );
         let _ = writeln!(
             m,
-            "| pond | outlet | field | range | chosen | governing storm | governing check | margin |\n|---|---:|---|---|---:|---|---|---:|"
+            "| pond | outlet | field | range | chosen | governing storm | governing check | margin |\n|---|---|---|---|---:|---|---|---:|"
         );
         for z in &s.sized {
-            let unit = if z.field == "angle" { "deg" } else { lu };
+            let unit = z.unit;
+            let chosen = if z.feasible {
+                format!("{} {unit}", sig(z.value, 4))
+            } else {
+                format!("{} {unit} (**infeasible**)", sig(z.value, 4))
+            };
             let _ = writeln!(
                 m,
-                "| {} | {} | {} | {} to {} {unit} | {}{} | {} | {} | {} |",
+                "| {} | {} | {} | {} to {} {unit} | {} | {} | {} | {} |",
                 z.pond,
-                z.outlet,
+                crate::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
                 z.field,
                 sig(z.min, 4),
                 sig(z.max, 4),
-                sig(z.value, 4),
-                if z.feasible { "" } else { " (**infeasible**)" },
+                chosen,
                 z.governing_storm.clone().unwrap_or_else(|| "-".into()),
                 z.governing_check.clone().unwrap_or_else(|| "-".into()),
                 z.margin
                     .map(|x| format!("{:.2} %", x * 100.0))
                     .unwrap_or_else(|| "-".into())
+            );
+        }
+        for z in s.sized.iter().filter(|z| !z.feasible) {
+            let _ = writeln!(
+                m,
+                "\n**No value of {}, {} {} from {} to {} {} meets every limit:** {}.",
+                crate::report::summary::kind_and_name("pond", &z.pond),
+                crate::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
+                z.field,
+                sig(z.min, 4),
+                sig(z.max, 4),
+                z.unit,
+                z.reason.clone().unwrap_or_default()
             );
         }
         let _ = writeln!(
@@ -423,6 +527,15 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     }
     let _ = writeln!(m, "---\n\n*{}*", s.caution);
     m
+}
+
+/// The result column of a check.
+fn result_word(c: &crate::report::summary::ComparisonOut) -> String {
+    match c.pass {
+        Some(true) => "meets".into(),
+        Some(false) => "**EXCEEDS**".into(),
+        None => c.status.to_string(),
+    }
 }
 
 /// One-line description of an outlet in the scenario's units.
@@ -459,10 +572,10 @@ pub fn describe_outlet(d: &crate::hydraulics::Outlet, o: Out) -> String {
             coefficient,
             contractions,
         } => format!(
-            "sharp-crested weir {} {lu} long, crest {} {lu}, C {} (US), {contractions} end contraction(s)",
+            "sharp-crested weir {} {lu} long, crest {} {lu}, C {}, {contractions} end contraction(s)",
             l(*length_ft),
             f(o.length(*crest_ft), 2),
-            f(*coefficient, 2)
+            f(o.weir_coefficient(*coefficient), 2)
         ),
         D::VNotchWeir {
             crest_ft,
@@ -479,10 +592,10 @@ pub fn describe_outlet(d: &crate::hydraulics::Outlet, o: Out) -> String {
             length_ft,
             coefficient,
         } => format!(
-            "broad-crested spillway {} {lu} long, crest {} {lu}, C {} (US)",
+            "broad-crested spillway {} {lu} long, crest {} {lu}, C {}",
             l(*length_ft),
             f(o.length(*crest_ft), 2),
-            f(*coefficient, 2)
+            f(o.weir_coefficient(*coefficient), 2)
         ),
         D::Riser {
             crest_ft,
@@ -490,10 +603,10 @@ pub fn describe_outlet(d: &crate::hydraulics::Outlet, o: Out) -> String {
             weir_coefficient,
             cd,
         } => format!(
-            "riser {} {lu} diameter, rim {} {lu}, weir C {} (US), Cd {}",
+            "riser {} {lu} diameter, rim {} {lu}, weir C {}, Cd {}",
             l(*diameter_ft),
             f(o.length(*crest_ft), 2),
-            f(*weir_coefficient, 2),
+            f(o.weir_coefficient(*weir_coefficient), 2),
             f(*cd, 2)
         ),
         D::Rating { table } => format!(

@@ -159,12 +159,13 @@ fn is_not_pond(v: &Option<Option<f64>>) -> bool {
     v.is_none()
 }
 
-/// One limit check.
+/// One limit check at a point: a peak in a design storm against its limit,
+/// or a flow-duration rule over a record.
 #[derive(Debug, Clone, Serialize)]
 pub struct ComparisonOut {
-    /// Point (or pond, for pond checks).
+    /// Point.
     pub point: String,
-    /// Storm.
+    /// Storm (peak checks).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub storm: Option<String>,
     /// Record (flow-duration control).
@@ -174,19 +175,58 @@ pub struct ComparisonOut {
     pub baseline: String,
     /// Condition checked.
     pub condition: String,
-    /// Baseline peak.
-    pub baseline_peak: f64,
-    /// Condition's peak.
-    pub peak: f64,
-    /// Limit.
-    pub limit: f64,
-    /// The limit as written.
+    /// What is checked: "peak" or "flow duration".
+    pub check: &'static str,
+    /// "meets", "exceeds", or "not checked: no baseline".
+    pub status: &'static str,
+    /// Baseline peak (peak checks with a baseline; null otherwise).
+    pub baseline_peak: Option<f64>,
+    /// Condition's peak (peak checks; null for flow durations).
+    pub peak: Option<f64>,
+    /// Limit (peak checks that are checked; null otherwise).
+    pub limit: Option<f64>,
+    /// The limit or rule as written.
     pub limit_text: String,
-    /// Whether it holds.
-    pub pass: bool,
-    /// Extra detail for record checks.
+    /// Whether it holds (null when not checked).
+    pub pass: Option<bool>,
+    /// Area draining to the point in the condition checked.
+    pub area: f64,
+    /// Area draining to the point in the baseline (null without one).
+    pub baseline_area: Option<f64>,
+    /// The flow-duration result (flow-duration checks that are checked).
     #[serde(skip_serializing_if = "Option::is_none")]
-    pub detail: Option<serde_json::Value>,
+    pub duration: Option<DurationOut>,
+}
+
+impl ComparisonOut {
+    /// Whether the check failed (a check not made does not fail).
+    pub fn fails(&self) -> bool {
+        self.pass == Some(false)
+    }
+}
+
+/// A flow-duration rule's result at its worst flow level.
+#[derive(Debug, Clone, Serialize)]
+pub struct DurationOut {
+    /// Lowest flow of the rule's range.
+    pub from_flow: f64,
+    /// Highest flow of the rule's range.
+    pub to_flow: f64,
+    /// Number of flow levels compared (evenly spaced in log).
+    pub levels: usize,
+    /// Relative tolerance on the baseline's time.
+    pub tolerance: f64,
+    /// The level where the condition's time most exceeds the baseline's.
+    pub worst_flow: f64,
+    /// The baseline's time above that level, h.
+    pub baseline_time_h: f64,
+    /// The condition's time above that level, h.
+    pub time_h: f64,
+    /// The time allowed above it: the baseline's times (1 + tolerance), h.
+    pub allowed_time_h: f64,
+    /// (time - baseline time) / baseline time at that level (null when the
+    /// baseline's time is zero).
+    pub worst_relative_excess: Option<f64>,
 }
 
 /// One pond limit check.
@@ -213,10 +253,14 @@ pub struct PondCheckOut {
 pub struct SizedOut {
     /// Pond.
     pub pond: String,
-    /// 0-based outlet index.
+    /// 0-based outlet index (reports number outlets from 1: this is one less).
     pub outlet: usize,
+    /// The outlet's `name`, when the scenario gives one.
+    pub outlet_name: Option<String>,
     /// Field name.
     pub field: &'static str,
+    /// Unit of `value`, `min` and `max` (the scenario's length unit, or deg).
+    pub unit: &'static str,
     /// Chosen value (length units, or degrees).
     pub value: f64,
     /// Range min.
@@ -231,6 +275,8 @@ pub struct SizedOut {
     pub margin: Option<f64>,
     /// Whether the range could meet every limit.
     pub feasible: bool,
+    /// When not feasible: the limits that fail at every size, and why.
+    pub reason: Option<String>,
 }
 
 /// TR-55 graphical cross-check.
@@ -274,8 +320,11 @@ pub struct Summary {
     pub step_h: f64,
     /// Baseline condition.
     pub baseline: String,
-    /// Conditions.
+    /// Conditions simulated (an empty baseline is not).
     pub conditions: Vec<String>,
+    /// Whether the baseline has elements (false: limits that need it are
+    /// "not checked: no baseline").
+    pub baseline_present: bool,
     /// Catchments.
     pub catchments: Vec<CatchmentOut>,
     /// Events.
@@ -301,6 +350,9 @@ pub struct Summary {
     /// The caution every report carries.
     pub caution: &'static str,
 }
+
+/// The status of a check that needs a baseline the scenario does not have.
+pub const NOT_CHECKED_NO_BASELINE: &str = "not checked: no baseline";
 
 /// The caution carried by every report.
 pub const CAUTION: &str = "Planning-level computations by published methods (TR-55, NEH 630). Check them against the local drainage code and have them reviewed and sealed by a licensed professional engineer before use. A pond with an embankment may fall under state dam-safety rules.";
@@ -333,6 +385,28 @@ impl Out {
     /// Unit label.
     pub fn unit(&self, q: Quantity) -> &'static str {
         q.output_unit(self.0)
+    }
+    /// A weir coefficient (C in Q = C L H^1.5, US ft^0.5/s inside) in the
+    /// scenario's system: SI values are US values times sqrt(0.3048 m/ft)
+    /// (3.33 US = 1.84 SI).
+    pub fn weir_coefficient(&self, c_us: f64) -> f64 {
+        match self.0 {
+            UnitSystem::Us => c_us,
+            UnitSystem::Si => c_us * crate::units::M_PER_FT.sqrt(),
+        }
+    }
+}
+
+/// `name` with its kind in front ("pond \"basin\""), unless the name
+/// already begins with that kind ("Pond A", "Point 3"), so that no report
+/// reads "Pond Pond A". `kind` is written as given (capitalise it for a
+/// heading).
+pub fn kind_and_name(kind: &str, name: &str) -> String {
+    let first = name.split_whitespace().next().unwrap_or("");
+    if first.eq_ignore_ascii_case(kind) {
+        name.to_string()
+    } else {
+        format!("{kind} \"{name}\"")
     }
 }
 
@@ -490,16 +564,25 @@ pub fn build(
             record: None,
             baseline: study.conditions[study.baseline].clone(),
             condition: study.conditions[c.condition].clone(),
-            baseline_peak: o.flow(c.baseline_peak_cfs),
-            peak: o.flow(c.peak_cfs),
-            limit: o.flow(c.limit_cfs),
+            check: "peak",
+            status: match (c.checked, c.pass) {
+                (false, _) => NOT_CHECKED_NO_BASELINE,
+                (true, true) => "meets",
+                (true, false) => "exceeds",
+            },
+            baseline_peak: (c.checked && !study.baseline_empty)
+                .then(|| o.flow(c.baseline_peak_cfs)),
+            peak: Some(o.flow(c.peak_cfs)),
+            limit: c.checked.then(|| o.flow(c.limit_cfs)),
             limit_text: study.points[c.point]
                 .limit_text
                 .get(c.storm)
                 .cloned()
                 .unwrap_or_default(),
-            pass: c.pass,
-            detail: None,
+            pass: c.checked.then_some(c.pass),
+            area: o.area(c.area_ac),
+            baseline_area: c.baseline_area_ac.map(|x| o.area(x)),
+            duration: None,
         })
         .collect();
     comparisons.extend(extra_comparisons);
@@ -547,7 +630,7 @@ pub fn build(
         .collect();
     let warnings = warning_details.iter().map(|w| w.message.clone()).collect();
 
-    let all_pass = comparisons.iter().all(|c| c.pass)
+    let all_pass = !comparisons.iter().any(ComparisonOut::fails)
         && !a.pond_checks.iter().any(|c| !c.pass)
         && sized.iter().all(|s| s.feasible);
     Summary {
@@ -563,7 +646,12 @@ pub fn build(
         },
         step_h,
         baseline: study.conditions[study.baseline].clone(),
-        conditions: study.conditions.clone(),
+        conditions: study
+            .simulated_conditions()
+            .into_iter()
+            .map(|c| study.conditions[c].clone())
+            .collect(),
+        baseline_present: !study.baseline_empty,
         catchments,
         events,
         comparisons,

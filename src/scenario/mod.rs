@@ -719,7 +719,14 @@ impl<'a> Builder<'a> {
                 .error("the scenario has no [[catchment]], [[pond]] or [[inflow]]")
                 .expected("at least one catchment that drains to a [[point]]"));
         }
+        // A scenario whose elements all belong to one condition other than
+        // the baseline (a pond to route, nothing to compare) runs without a
+        // baseline: limits that need it are reported "not checked".
+        let baseline_empty = conditions.len() == 2 && !elements.iter().any(|e| e.conditions[0]);
         for (c, cname) in conditions.iter().enumerate() {
+            if baseline_empty && c == 0 {
+                continue;
+            }
             if !elements.iter().any(|e| e.conditions[c]) {
                 let Some(span) = raw.baseline.as_ref().map(|b| b.span()) else {
                     return Err(self
@@ -747,7 +754,35 @@ impl<'a> Builder<'a> {
             points.push(self.point(p, &conditions, &storms)?);
         }
         for (pi, p) in points.iter().enumerate() {
+            if baseline_empty {
+                let mut needs: Vec<String> = Vec::new();
+                for (l, t) in p.limits.iter().zip(&p.limit_text) {
+                    let missing = matches!(l, Limit::Relative { condition: 0, .. });
+                    let said = format!("limit \"{t}\"");
+                    if missing && !needs.contains(&said) {
+                        needs.push(said);
+                    }
+                }
+                if p.durations.is_some() && !raw.record.is_empty() {
+                    needs.push("flow-duration rule".to_string());
+                }
+                if !needs.is_empty() {
+                    self.warnings.push(Warning::NoBaseline {
+                        point: p.name.clone(),
+                        what: if needs.len() == 1 {
+                            format!("its {} needs", needs[0])
+                        } else {
+                            format!("its {} need", needs.join(" and its "))
+                        },
+                        baseline: conditions[0].clone(),
+                        condition: conditions[1].clone(),
+                    });
+                }
+            }
             for (c, cname) in conditions.iter().enumerate() {
+                if baseline_empty && c == 0 {
+                    continue;
+                }
                 let reaches = elements
                     .iter()
                     .any(|e| e.conditions[c] && e.to == Target::Point(pi));
@@ -932,6 +967,7 @@ impl<'a> Builder<'a> {
             step_given,
             conditions,
             baseline: 0,
+            baseline_empty,
             p2_in,
             storms,
             elements,
@@ -1931,8 +1967,33 @@ impl<'a> Builder<'a> {
                 .err(span, ctx, "the pond has no outlet")
                 .expected("at least one [[pond.outlet]]"));
         }
+        let mut outlet_names: Vec<Option<String>> = Vec::new();
         for (i, o) in rp.outlet.iter().enumerate() {
-            let (outlet, s) = self.outlet(o, &format!("{ctx}, outlet {}", i + 1), i)?;
+            let name = match &o.get_ref().name {
+                Some(n) => {
+                    let t = n.get_ref().trim().to_string();
+                    let nctx = format!("{ctx}, {}, name", crate::sizing::outlet_label(i, None));
+                    if t.is_empty() {
+                        return Err(self
+                            .err(&n.span(), &nctx, "the outlet name is empty")
+                            .expected("a name such as \"low-flow orifice\", or no `name` key"));
+                    }
+                    if let Some(k) = outlet_names.iter().position(|x| x.as_deref() == Some(&t)) {
+                        return Err(self
+                            .err(
+                                &n.span(),
+                                &nctx,
+                                format!("outlet {} of this pond is already named \"{t}\"", k + 1),
+                            )
+                            .expected("each outlet of a pond named once"));
+                    }
+                    Some(t)
+                }
+                None => None,
+            };
+            let label = crate::sizing::outlet_label(i, name.as_deref());
+            outlet_names.push(name);
+            let (outlet, s) = self.outlet(o, &format!("{ctx}, {label}"), i)?;
             let low = outlet.lowest_ft();
             if low < bottom - 1e-9 {
                 let sp = o
@@ -1945,7 +2006,7 @@ impl<'a> Builder<'a> {
                 return Err(self
                     .err(
                         &sp,
-                        &format!("{ctx}, outlet {}", i + 1),
+                        &format!("{ctx}, {label}"),
                         format!(
                             "the outlet is below the pond bottom ({} < {})",
                             low / lf,
@@ -1961,7 +2022,7 @@ impl<'a> Builder<'a> {
             {
                 self.warnings.push(Warning::OutletAboveTop {
                     pond: rp.name.get_ref().clone(),
-                    outlet: i,
+                    outlet: label.clone(),
                 });
             }
             outlets.push(outlet);
@@ -2028,6 +2089,7 @@ impl<'a> Builder<'a> {
                 storage,
                 storage_kind,
                 outlets,
+                outlet_names,
                 start_ft,
                 top_ft,
                 top_length_ft,

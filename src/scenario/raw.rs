@@ -317,6 +317,8 @@ pub struct RawBasin {
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct RawOutlet {
+    /// Optional name, used by errors, reports and `summary.json`.
+    pub name: Option<Spanned<String>>,
     /// Device kind.
     pub kind: Option<Spanned<String>>,
     /// Invert elevation (orifices).
