@@ -3489,6 +3489,34 @@ mod tests {
     }
 
     #[test]
+    fn condition_slips_are_typos_and_not_names_alike_on_purpose() {
+        // common practice, no published source: how engineers name conditions
+        assert!(condition_slip("proposed", "propsed"));
+        assert!(condition_slip("existing", "exisitng"));
+        assert!(condition_slip("existing", "Existing"));
+        assert!(condition_slip("EX", "ex"));
+        assert!(condition_slip("Phase-1", "phase-1"));
+        assert!(!condition_slip("phase-1", "phase-2"));
+        assert!(!condition_slip("proposed", "proposed-2"));
+        assert!(!condition_slip("2030", "2040"));
+        assert!(!condition_slip("alt-a", "alt-b"));
+        assert!(!condition_slip("option A", "option B"));
+        assert!(!condition_slip("proposed", "proposed-b"));
+        assert!(!condition_slip("ex", "pr"));
+        assert!(!condition_slip("A", "B"));
+        assert!(!condition_slip("pre", "post"));
+        assert!(!condition_slip("existing", "proposed"));
+        assert!(!condition_slip("proposed", "proposed"));
+    }
+
+    #[test]
+    fn big_numbers_print_in_exponent_form() {
+        assert_eq!(big(1.7e308), "1.7e308");
+        assert_eq!(big(1e18), "1e18");
+        assert_eq!(big(104.5), "104.5");
+    }
+
+    #[test]
     fn default_step_follows_the_contract_rule() {
         // contract convention: largest of 1, 2, 3, 5, 6 min <= 0.133 Tc
         assert!((default_step_h(0.5) - 3.0 / 60.0).abs() < 1e-12); // 0.133*30 = 3.99 min
