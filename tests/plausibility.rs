@@ -497,3 +497,42 @@ fn limits_read_every_flow_unit_the_readme_lists() {
         }
     }
 }
+
+#[test]
+fn names_with_bars_and_html_keep_the_report_tables_whole() {
+    let text = std::fs::read_to_string(data("bad-base/scenario.toml"))
+        .unwrap_or_else(|e| panic!("{e}"))
+        .replace("\"outfall\"", "\"out|fall <b>\"")
+        .replace("\"Pond A\"", "\"Pond *A*\"");
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let path = dir.path().join("scenario.toml");
+    std::fs::write(&path, text).unwrap_or_else(|e| panic!("{e}"));
+    let out = dir.path().join("out");
+    let o = runnel(&[
+        "run",
+        &path.to_string_lossy(),
+        "--out",
+        &out.to_string_lossy(),
+    ]);
+    assert!(
+        matches!(o.status.code(), Some(0 | 1)),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let md = std::fs::read_to_string(out.join("summary.md")).unwrap_or_else(|e| panic!("{e}"));
+    assert!(!md.contains("<b>"), "raw HTML reached the report");
+    // Cells split on bars that are not escaped.
+    let cells = |line: &str| line.replace("\\|", "").matches('|').count();
+    let mut lines = md.lines();
+    while let Some(l) = lines.next() {
+        if l.starts_with("| point |") {
+            let header = cells(l);
+            let _rule = lines.next();
+            let row = lines.next().unwrap_or("");
+            assert!(row.contains("out\\|fall &lt;b&gt;"), "{row}");
+            assert_eq!(cells(row), header, "{row}");
+            return;
+        }
+    }
+    panic!("no design-point table in:\n{md}");
+}
