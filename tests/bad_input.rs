@@ -172,7 +172,7 @@ const CASES: &[Case] = &[
     case("crest-huge", LineCol(69, 9), &["pond \"Pond A\", outlet 2, crest", "far beyond", "100000 ft"]),
     case("storm-depth-huge", LineCol(9, 9), &["storm \"10-yr\", depth", "\"1e308 in\" is far beyond", "250 in"]),
     case("lag-huge", LineCol(25, 7), &["catchment \"EX-1\", lag", "\"1e18 h\" is far beyond"]),
-    case("lag-past-run", LineCol(25, 7), &["catchment \"EX-1\", lag", "192 h is longer than the 7 days"]),
+    case("lag-over-a-month", LineCol(25, 7), &["catchment \"EX-1\", lag", "960 h is longer than runnel's limit of 31 days"]),
     case("inflow-time-huge", LineCol(76, 9), &["inflow \"offsite\"", "row 3", "time", "far beyond", "744 h"]),
     case("stage-huge", LineCol(59, 14), &["pond \"Pond A\", stage_area", "row 3", "stage", "far beyond"]),
     // Ponds (issue 10, item 5).

@@ -156,8 +156,9 @@ type R<T> = Result<T, InputError>;
 /// allow 255 bytes.
 pub const MAX_NAME_CHARS: usize = 64;
 
-/// Longest `lag` accepted: the 7 days each storm runs after its rain.
-pub const MAX_LAG_H: f64 = crate::network::TAIL_H;
+/// Longest `lag` accepted: 31 days (a lag is minutes or hours; the bound
+/// keeps a slip such as "1e18 h" from the arithmetic of the run length).
+pub const MAX_LAG_H: f64 = 31.0 * 24.0;
 
 /// Latest time accepted in an inflow hydrograph: 31 days.
 pub const MAX_INFLOW_H: f64 = 31.0 * 24.0;
@@ -1127,11 +1128,12 @@ impl<'a> Builder<'a> {
                                 &l.span(),
                                 &format!("{}, lag", p.ctx),
                                 format!(
-                                    "a lag of {} h is longer than the 7 days each storm runs after its rain, so the runoff would arrive after the run ends",
-                                    units::short(v, 4)
+                                    "a lag of {} h is longer than runnel's limit of 31 days ({} h)",
+                                    units::short(v, 4),
+                                    units::short(MAX_LAG_H, 4)
                                 ),
                             )
-                            .expected("a lag of at most 7 days (\"168 h\")")
+                            .expected("a lag of at most 31 days (\"744 h\")")
                             .hint("check the unit: a lag is usually minutes or hours"));
                     }
                     v
@@ -1263,18 +1265,35 @@ impl<'a> Builder<'a> {
             }
             None => (default_step_h(min_tc), false),
         };
+        // Paths are free of cycles here (checked above).
+        let max_path_lag_h = (0..elements.len())
+            .map(|i| {
+                let mut lag = 0.0;
+                let mut at = i;
+                for _ in 0..elements.len() {
+                    lag += elements[at].lag_h;
+                    match elements[at].to {
+                        Target::Element(j) => at = j,
+                        Target::Point(_) => break,
+                    }
+                }
+                lag
+            })
+            .fold(0.0, f64::max);
         for (si, s) in storms.iter().enumerate() {
-            // The run lasts until the rain and every inflow (with its lag) end, plus the tail.
+            // The run lasts until the rain and every inflow end, plus the
+            // longest sum of lags down to a point, plus the tail.
             let inflow_end = elements
                 .iter()
                 .filter_map(|e| match &e.kind {
                     ElementKind::Inflow(i) if i.storm.is_none() || i.storm == Some(si) => {
-                        Some(i.end_h() + e.lag_h)
+                        Some(i.end_h())
                     }
                     _ => None,
                 })
                 .fold(0.0, f64::max);
-            let n = ((s.rain_end_h().max(inflow_end) + 7.0 * 24.0) / step_h).ceil();
+            let n =
+                ((s.rain_end_h().max(inflow_end) + max_path_lag_h + 7.0 * 24.0) / step_h).ceil();
             if n > MAX_STEPS as f64 {
                 let least = format_step_up((s.rain_end_h() + 7.0 * 24.0) / MAX_STEPS as f64);
                 return Err(match &raw.step {
