@@ -117,6 +117,35 @@ impl Quantity {
         }
     }
 
+    /// The largest magnitude runnel accepts for this quantity, in internal
+    /// units. These are not design limits: each lies far beyond anything a
+    /// site or a watershed can hold (a 250-in storm, an elevation of
+    /// 100,000 ft, 10,000 mi2), so that a value past it is a slip (or a
+    /// number such as 1e308) and is refused at load time before any
+    /// arithmetic can overflow.
+    pub fn max_magnitude(self) -> f64 {
+        match self {
+            // 10,000 mi2.
+            Quantity::Area => 6.4e6,
+            // 250 in, above the largest multi-day rainfalls recorded.
+            Quantity::Depth => 250.0,
+            // 100,000 ft (about 19 mi): lengths, elevations, diameters.
+            Quantity::Length => 1.0e5,
+            // 100 million cfs, ten times the largest river flows.
+            Quantity::Flow => 1.0e8,
+            // 1e13 ft3 (about 230 million ac-ft).
+            Quantity::Volume => 1.0e13,
+            // One year.
+            Quantity::Time => 8760.0,
+            // 1000 ft/ft (100,000 %).
+            Quantity::Slope => 1000.0,
+            // 1e8 ft2.
+            Quantity::SectionArea => 1.0e8,
+            // 100 in a day.
+            Quantity::DepthPerDay => 100.0,
+        }
+    }
+
     /// Unit label of results in `system`.
     pub fn output_unit(self, system: UnitSystem) -> &'static str {
         match (self, system) {
@@ -371,6 +400,17 @@ pub fn sig(value: f64, digits: usize) -> String {
     format!("{value:.decimals$}")
 }
 
+/// A number for a message: at most `digits` significant figures, without
+/// trailing zeros (`2.5`, `250`, `0.013`).
+pub fn short(value: f64, digits: usize) -> String {
+    let s = sig(value, digits);
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    }
+}
+
 impl fmt::Display for UnitSystem {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         f.write_str(match self {
@@ -430,6 +470,13 @@ mod tests {
         );
         assert!(parse_quantity("abc", Quantity::Length, UnitSystem::Us).is_err());
         assert!(parse_quantity("1e999 ft", Quantity::Length, UnitSystem::Us).is_err());
+    }
+
+    #[test]
+    fn short_numbers_drop_trailing_zeros() {
+        assert_eq!(short(2.5, 4), "2.5");
+        assert_eq!(short(250.0, 4), "250");
+        assert_eq!(short(0.0130, 3), "0.013");
     }
 
     #[test]

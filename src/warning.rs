@@ -240,6 +240,86 @@ pub enum Warning {
         /// The value the results are written at, with its unit.
         written_at: String,
     },
+    /// A sheet, shallow or channel slope that is legal but almost always a
+    /// slip (a percentage written as a ratio).
+    SlopeSteep {
+        /// Element and key, e.g. `catchment "PR-1", flow segment 2, slope`.
+        at: String,
+        /// The value as read, with its unit (`2.5 ft/ft`).
+        value: String,
+        /// The same slope in percent.
+        percent: f64,
+        /// The usual range, in words.
+        usual: String,
+        /// The likely intended input, e.g. `"2.5 %"`.
+        likely: String,
+    },
+    /// A Manning n outside the usual range for its kind of flow.
+    ManningNUnusual {
+        /// Element and key.
+        at: String,
+        /// The n as read.
+        value: String,
+        /// The usual range, in words.
+        usual: String,
+        /// What to do, with the likely intended input.
+        hint: String,
+    },
+    /// A 2-year 24-hour rainfall outside the usual range.
+    P2Unusual {
+        /// The value as read, with its unit.
+        value: String,
+        /// The usual range, in words.
+        usual: String,
+        /// What to do, with the likely intended input.
+        hint: String,
+    },
+    /// A design-storm depth outside the usual range.
+    StormDepthUnusual {
+        /// Storm.
+        storm: String,
+        /// The value as read, with its unit.
+        value: String,
+        /// The usual range, in words.
+        usual: String,
+        /// What to do, with the likely intended input.
+        hint: String,
+    },
+    /// An orifice or riser diameter written as a bare number that makes a
+    /// very large opening (a bare number is in ft or m).
+    DiameterBare {
+        /// Element and key.
+        at: String,
+        /// The value as read, with its unit (`6 ft`).
+        value: String,
+        /// The usual size, in words.
+        usual: String,
+        /// The likely intended input, e.g. `"6 in"`.
+        likely: String,
+        /// The same value written with its unit, to confirm it.
+        explicit: String,
+    },
+    /// A weir, spillway or riser coefficient outside the usual range of
+    /// the scenario's unit system.
+    CoefficientUnusual {
+        /// Element and key.
+        at: String,
+        /// The coefficient as read.
+        value: String,
+        /// The usual range in the scenario's unit system, in words.
+        usual: String,
+        /// What to do, with the likely intended input.
+        hint: String,
+    },
+    /// A time of concentration over 24 h.
+    TcLong {
+        /// Catchment (and key, when `tc` was given).
+        at: String,
+        /// Tc as read or computed, with its unit.
+        value: String,
+        /// What to do, with the likely intended input.
+        hint: String,
+    },
     /// Anything else, worded in full.
     Note(String),
 }
@@ -271,6 +351,13 @@ impl Warning {
             Warning::SizingInfeasible { .. } => "sizing-infeasible",
             Warning::NoBaseline { .. } => "no-baseline",
             Warning::AreaMismatch { .. } => "area-mismatch",
+            Warning::SlopeSteep { .. } => "slope-steep",
+            Warning::ManningNUnusual { .. } => "manning-n-unusual",
+            Warning::P2Unusual { .. } => "p2-unusual",
+            Warning::StormDepthUnusual { .. } => "storm-depth-unusual",
+            Warning::DiameterBare { .. } => "diameter-bare",
+            Warning::CoefficientUnusual { .. } => "coefficient-unusual",
+            Warning::TcLong { .. } => "tc-long",
             Warning::Note(_) => "note",
         }
     }
@@ -485,6 +572,59 @@ impl fmt::Display for Warning {
             } => write!(
                 f,
                 "sizing of pond \"{pond}\", {outlet} {field}: no value from {range} meets every limit: {reason}; the results are written at {written_at} - widen the range, change another outlet or the pond, or review the limit"
+            ),
+            Warning::SlopeSteep {
+                at,
+                value,
+                percent,
+                usual,
+                likely,
+            } => write!(
+                f,
+                "{at}: {value} is a {} % slope; did you mean {likely}? ({usual}; a bare slope is a ratio, so write \"%\" for a percentage)",
+                crate::units::short(*percent, 4)
+            ),
+            Warning::ManningNUnusual {
+                at,
+                value,
+                usual,
+                hint,
+            } => write!(
+                f,
+                "{at}: Manning n = {value} is outside the usual {usual}; {hint}"
+            ),
+            Warning::P2Unusual { value, usual, hint } => write!(
+                f,
+                "p2: a 2-year 24-hour rainfall of {value} is outside the usual {usual}; {hint}"
+            ),
+            Warning::StormDepthUnusual {
+                storm,
+                value,
+                usual,
+                hint,
+            } => write!(
+                f,
+                "storm \"{storm}\", depth: {value} is outside the usual design-storm depth of {usual}; {hint}"
+            ),
+            Warning::DiameterBare {
+                at,
+                value,
+                usual,
+                likely,
+                explicit,
+            } => write!(
+                f,
+                "{at}: a bare number is in the scenario's length unit, so this opening is {value} across ({usual}); did you mean {likely}? If {value} is meant, write {explicit}"
+            ),
+            Warning::CoefficientUnusual {
+                at,
+                value,
+                usual,
+                hint,
+            } => write!(f, "{at}: {value} is outside the usual {usual}; {hint}"),
+            Warning::TcLong { at, value, hint } => write!(
+                f,
+                "{at}: Tc = {value} is longer than 24 h, far beyond the small-watershed times the TR-55 method is meant for; {hint}"
             ),
             Warning::Note(s) => f.write_str(s),
         }

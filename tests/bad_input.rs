@@ -88,7 +88,7 @@ const CASES: &[Case] = &[
     case("manning-n-zero", LineCol(40, 5), &["flow segment 1, n", "Manning n must be positive"]),
     case("manning-n-negative", LineCol(50, 5), &["flow segment 3, n", "Manning n must be positive"]),
     case("slope-near-zero", Line(26), &["catchment \"PR-1\"", "time of concentration", "steps"]),
-    case("tc-far-too-long", LineCol(24, 6), &["catchment \"EX-1\"", "time of concentration", "steps"]),
+    case("tc-far-too-long", LineCol(24, 6), &["catchment \"EX-1\", tc", "\"1e9 h\" is far beyond", "8760 h"]),
     // Covers, flow paths, sections.
     case("cover-areas-mismatch", LineCol(29, 8), &["catchment \"PR-1\", area", "5.0000 ac", "6.0000 ac"]),
     case("soil-group-unknown", LineCol(36, 8), &["cover 2, soil", "\"E\""]),
@@ -165,6 +165,25 @@ const CASES: &[Case] = &[
     // Long records.
     case("record-moisture-continuous", LineCol(76, 12), &["record \"june-record\", moisture", "not available in this version", "moisture = \"event\""]),
     case("record-moisture-unknown", LineCol(76, 12), &["record \"june-record\", moisture", "\"bucket\""]),
+    // Conditions are deliberate (issue 10, item 3).
+    case("condition-typo", LineCol(57, 13), &["pond \"Pond A\", condition", "\"propsed\" is 1 letter away from condition \"proposed\"", "did you mean \"proposed\"", "conditions = [\"existing\", \"proposed\", \"propsed\"]"]),
+    case("condition-case", LineCol(20, 13), &["catchment \"EX-1\", condition", "\"Existing\" differs only in case", "did you mean \"existing\""]),
+    case("condition-not-listed", LineCol(58, 13), &["pond \"Pond A\", condition", "\"proposed-b\" is not one of the scenario's conditions", "\"existing\", \"proposed\""]),
+    case("conditions-baseline-missing", LineCol(5, 12), &["baseline", "\"exisitng\" is not in the `conditions` list", "did you mean \"existing\""]),
+    // Names (issue 10, item 11).
+    case("name-empty", LineCol(19, 8), &["catchment, name", "the name is empty"]),
+    case("storm-name-empty", LineCol(7, 8), &["storm, name", "the name is empty"]),
+    case("name-control-character", LineCol(19, 8), &["catchment, name", "control character (U+0009)"]),
+    case("name-too-long", LineCol(7, 8), &["storm, name", "300 characters long", "limit of 64"]),
+    // Magnitudes no site can hold, refused at load (issue 10, item 11).
+    case("crest-huge", LineCol(69, 9), &["pond \"Pond A\", outlet 2, crest", "far beyond", "100000 ft"]),
+    case("storm-depth-huge", LineCol(9, 9), &["storm \"10-yr\", depth", "\"1e308 in\" is far beyond", "250 in"]),
+    case("lag-huge", LineCol(25, 7), &["catchment \"EX-1\", lag", "\"1e18 h\" is far beyond"]),
+    case("lag-over-a-month", LineCol(25, 7), &["catchment \"EX-1\", lag", "960 h is longer than runnel's limit of 31 days"]),
+    case("inflow-time-huge", LineCol(76, 9), &["inflow \"offsite\"", "row 3", "time", "far beyond", "744 h"]),
+    case("stage-huge", LineCol(59, 14), &["pond \"Pond A\", stage_area", "row 3", "stage", "far beyond"]),
+    // Ponds (issue 10, item 5).
+    case("start-above-top", LineCol(61, 9), &["pond \"Pond A\", start", "105 is above the top of embankment 104"]),
 ];
 
 fn root() -> PathBuf {

@@ -25,8 +25,73 @@ fn opt(v: Option<f64>, d: usize) -> String {
 /// How drain time is measured, stated beside every drain-time check.
 pub const DRAIN_TIME_DEFINITION: &str = "Drain time runs from the peak stage until the storage above the starting storage falls below 1 % of its peak value (\"never drained\": not within the run).";
 
+/// A user's text (a name, a limit as written) made safe for a Markdown
+/// table cell, heading or image caption: `|` cannot end the cell, `[` and
+/// `]` cannot end a caption, and `<`, `>`, `&`, `*`, `` ` `` and `\\` are
+/// shown as written instead of as HTML or emphasis.
+/// (Control characters are refused when the scenario is loaded.)
+pub fn cell(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    for c in text.chars() {
+        match c {
+            '\\' | '|' | '*' | '`' | '[' | ']' => {
+                out.push('\\');
+                out.push(c);
+            }
+            '<' => out.push_str("&lt;"),
+            '>' => out.push_str("&gt;"),
+            '&' => out.push_str("&amp;"),
+            _ => out.push(c),
+        }
+    }
+    out
+}
+
+/// The summary with every name and limit text escaped by [`cell`], for
+/// rendering; `summary.json` keeps the names as written.
+fn escaped(s: &Summary) -> Summary {
+    let mut s = s.clone();
+    let e = |x: &mut String| *x = cell(x);
+    e(&mut s.baseline);
+    for c in &mut s.catchments {
+        e(&mut c.name);
+        e(&mut c.condition);
+        e(&mut c.to);
+        c.covers.iter_mut().for_each(|v| e(&mut v.cover));
+    }
+    for v in &mut s.events {
+        e(&mut v.storm);
+        e(&mut v.condition);
+        e(&mut v.element);
+    }
+    for c in &mut s.comparisons {
+        e(&mut c.point);
+        c.storm.iter_mut().for_each(e);
+        c.record.iter_mut().for_each(e);
+        e(&mut c.baseline);
+        e(&mut c.condition);
+        e(&mut c.limit_text);
+    }
+    for c in &mut s.pond_checks {
+        e(&mut c.pond);
+        e(&mut c.storm);
+        e(&mut c.condition);
+    }
+    for z in &mut s.sized {
+        e(&mut z.pond);
+        z.governing_storm.iter_mut().for_each(e);
+        z.governing_check.iter_mut().for_each(e);
+    }
+    for g in &mut s.graphical_checks {
+        e(&mut g.catchment);
+        e(&mut g.storm);
+    }
+    s
+}
+
 /// Renders the report. `plots` lists (caption, file name) of the PNGs.
 pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md: &str) -> String {
+    let s = &escaped(s);
     let o = Out(study.units);
     let fu = o.unit(Quantity::Flow);
     let lu = o.unit(Quantity::Length);
@@ -358,7 +423,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
         let _ = writeln!(
             m,
             "## {}\n",
-            crate::report::summary::kind_and_name("Pond", &e.name)
+            crate::report::summary::kind_and_name("Pond", &cell(&e.name))
         );
         let _ = writeln!(
             m,
@@ -419,7 +484,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
         for ev in s
             .events
             .iter()
-            .filter(|ev| ev.kind == "pond" && ev.element == e.name)
+            .filter(|ev| ev.kind == "pond" && ev.element == cell(&e.name))
         {
             let _ = writeln!(
                 m,
@@ -512,7 +577,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     if !plots.is_empty() {
         let _ = writeln!(m, "## Plots\n");
         for (cap, file) in plots {
-            let _ = writeln!(m, "![{cap}]({file})\n");
+            let _ = writeln!(m, "![{}]({file})\n", cell(cap));
         }
     }
 
@@ -521,7 +586,12 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
         let _ = writeln!(m, "None.\n");
     } else {
         for w in &s.warnings {
-            let _ = writeln!(m, "- {}", w);
+            // Warnings quote names: no raw HTML from them.
+            let w = w
+                .replace('&', "&amp;")
+                .replace('<', "&lt;")
+                .replace('>', "&gt;");
+            let _ = writeln!(m, "- {w}");
         }
         let _ = writeln!(m);
     }
@@ -617,5 +687,19 @@ pub fn describe_outlet(d: &crate::hydraulics::Outlet, o: Out) -> String {
                 .map(|r| f(o.length(r.0), 2))
                 .unwrap_or_default()
         ),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn cells_keep_names_from_breaking_tables_and_html() {
+        // CommonMark / GFM table syntax: `\|` is a literal bar in a cell
+        assert_eq!(cell("Pond A"), "Pond A");
+        assert_eq!(cell("a|b"), "a\\|b");
+        assert_eq!(cell("<b>x</b> & *y*"), "&lt;b&gt;x&lt;/b&gt; &amp; \\*y\\*");
+        assert_eq!(cell("c:\\d"), "c:\\\\d");
     }
 }

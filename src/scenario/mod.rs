@@ -233,6 +233,104 @@ type R<T> = Result<T, InputError>;
 /// A name as written and one result file it gives.
 type NamedFile<'r> = (&'r Spanned<String>, String);
 
+/// Most characters in a name (elements, points, storms, records,
+/// conditions): a pond's plot file joins three names, and file systems
+/// allow 255 bytes.
+pub const MAX_NAME_CHARS: usize = 64;
+
+/// Longest `lag` accepted: 31 days (a lag is minutes or hours; the bound
+/// keeps a slip such as "1e18 h" from the arithmetic of the run length).
+pub const MAX_LAG_H: f64 = 31.0 * 24.0;
+
+/// Latest time accepted in an inflow hydrograph: 31 days.
+pub const MAX_INFLOW_H: f64 = 31.0 * 24.0;
+
+/// Usual 2-year 24-hour rainfall, in (the range the issue asks for; the
+/// README gives its source).
+pub const P2_USUAL_IN: (f64, f64) = (1.0, 10.0);
+
+/// Usual design-storm depth, in.
+pub const STORM_DEPTH_USUAL_IN: (f64, f64) = (0.3, 40.0);
+
+/// Steepest usual sheet or shallow-flow slope, ft/ft.
+pub const SLOPE_USUAL_MAX: f64 = 0.3;
+
+/// Usual Manning n of sheet flow (TR-55 Table 3-1 spans 0.011-0.8).
+pub const SHEET_N_USUAL: (f64, f64) = (0.008, 1.0);
+
+/// Usual Manning n of channel flow.
+pub const CHANNEL_N_USUAL: (f64, f64) = (0.008, 0.2);
+
+/// A bare orifice or riser diameter (ft or m) at or above this is flagged.
+pub const BARE_DIAMETER_LIMIT: f64 = 3.0;
+
+/// Usual sharp-crested weir coefficient, US units (3.33 standard).
+pub const SHARP_WEIR_C_US: (f64, f64) = (3.0, 3.9);
+
+/// Usual riser rim (weir) coefficient, US units.
+pub const RISER_C_US: (f64, f64) = (2.6, 3.9);
+
+/// Usual broad-crested (spillway) coefficient, US units.
+pub const SPILLWAY_C_US: (f64, f64) = (2.3, 3.4);
+
+/// Largest weir coefficient accepted at all (either system).
+pub const MAX_WEIR_COEFFICIENT: f64 = 20.0;
+
+/// One use of a condition name by an element.
+struct Mention {
+    name: String,
+    span: std::ops::Range<usize>,
+    ctx: String,
+}
+
+fn quoted(names: &[String]) -> String {
+    names
+        .iter()
+        .map(|n| format!("\"{n}\""))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// Whether two condition names are a slip apart: they differ only in case,
+/// or by an edit distance of 2 or less, except where an engineer names
+/// conditions alike on purpose: names that differ only in their numbers
+/// (`phase-1`, `phase-2`; `proposed`, `proposed-2`), only in a short final
+/// tag (`alt-a`, `alt-b`; `option A`, `option B`), or short names that an
+/// edit of 2 changes by half or more (`ex`, `pr`).
+pub fn condition_slip(a: &str, b: &str) -> bool {
+    if a == b {
+        return false;
+    }
+    let (la, lb) = (a.to_lowercase(), b.to_lowercase());
+    if la == lb {
+        return true;
+    }
+    let d = cover::edit_distance(&la, &lb);
+    if d > 2 {
+        return false;
+    }
+    let shorter = la.chars().count().min(lb.chars().count());
+    if 2 * d >= shorter {
+        return false;
+    }
+    let separator = |c: char| matches!(c, '-' | '_' | ' ' | '.' | '/');
+    let skeleton = |s: &str| -> String {
+        s.chars()
+            .filter(|c| !c.is_ascii_digit() && !separator(*c))
+            .collect()
+    };
+    if skeleton(&la) == skeleton(&lb) {
+        return false;
+    }
+    let stem = |s: &str| -> String {
+        match s.rfind(separator) {
+            Some(i) if s[i + 1..].chars().count() <= 2 && i > 0 => s[..i].to_string(),
+            _ => s.to_string(),
+        }
+    };
+    stem(&la) != stem(&lb)
+}
+
 /// One element's shared keys, collected before its kind is built.
 struct Pending {
     name: String,
@@ -250,6 +348,38 @@ impl<'a> Builder<'a> {
     }
 
     fn qty(&self, v: &Spanned<RawValue>, q: Quantity, ctx: &str) -> R<f64> {
+        let x = self.qty_unbounded(v, q, ctx)?;
+        self.bounded(x, v, q, ctx)
+    }
+
+    /// Refuses a value whose magnitude lies beyond what any site can hold
+    /// ([`Quantity::max_magnitude`]): a slip or a number such as 1e308,
+    /// refused here before any arithmetic can overflow.
+    fn bounded(&self, x: f64, v: &Spanned<RawValue>, q: Quantity, ctx: &str) -> R<f64> {
+        let max = q.max_magnitude();
+        if x.abs() <= max {
+            return Ok(x);
+        }
+        Err(self
+            .err(
+                &v.span(),
+                ctx,
+                format!(
+                    "{} is far beyond anything runnel can model ({} accepted here is at most {} {})",
+                    match v.get_ref() {
+                        RawValue::Num(x) => big(*x),
+                        other => show(other),
+                    },
+                    q.describe(),
+                    units::sig(max * q.output_factor(self.units), 3),
+                    q.output_unit(self.units)
+                ),
+            )
+            .expected(format!("{} such as {}", q.describe(), q.examples(self.units)))
+            .hint("check the number for a slip (a misplaced decimal point, exponent or unit)"))
+    }
+
+    fn qty_unbounded(&self, v: &Spanned<RawValue>, q: Quantity, ctx: &str) -> R<f64> {
         match v.get_ref() {
             RawValue::Num(x) => {
                 if !x.is_finite() {
@@ -335,6 +465,409 @@ impl<'a> Builder<'a> {
         Ok(p)
     }
 
+    /// For a rain depth outside its usual range (in): the value as read in
+    /// the scenario's unit, the usual range in both systems, and the likely
+    /// intended input (a bare number read in the other system's unit).
+    fn depth_slip(
+        &self,
+        v: &Spanned<RawValue>,
+        depth_in: f64,
+        usual: (f64, f64),
+    ) -> (String, String, String) {
+        let (value, usual_text) = match self.units {
+            UnitSystem::Us => (
+                format!("{} in", units::short(depth_in, 3)),
+                format!(
+                    "{}-{} in ({}-{} mm)",
+                    usual.0,
+                    usual.1,
+                    units::sig(usual.0 * units::MM_PER_IN, 2),
+                    units::sig(usual.1 * units::MM_PER_IN, 2)
+                ),
+            ),
+            UnitSystem::Si => (
+                format!("{} mm", units::short(depth_in * units::MM_PER_IN, 3)),
+                format!(
+                    "{}-{} mm ({}-{} in)",
+                    units::sig(usual.0 * units::MM_PER_IN, 2),
+                    units::sig(usual.1 * units::MM_PER_IN, 2),
+                    usual.0,
+                    usual.1
+                ),
+            ),
+        };
+        let in_range = |x: f64| (usual.0..=usual.1).contains(&x);
+        let hint = match (v.get_ref(), self.units) {
+            // A bare SI number read as mm that makes sense in inches.
+            (RawValue::Num(x), UnitSystem::Si) if in_range(*x) => {
+                format!("did you mean \"{x} in\"?")
+            }
+            // A bare US number read as inches that makes sense in mm.
+            (RawValue::Num(x), UnitSystem::Us) if in_range(x / units::MM_PER_IN) => {
+                format!("did you mean \"{x} mm\"?")
+            }
+            _ => "check the value and its unit against the local rainfall data".to_string(),
+        };
+        (value, usual_text, hint)
+    }
+
+    /// A slope that is legal but almost always a percentage written as a
+    /// ratio: 1 or more for any segment, above 0.3 for sheet and shallow flow.
+    fn slope_warning(&mut self, raw: &Spanned<RawValue>, slope: f64, kind: &str, ctx: &str) {
+        let surface = matches!(kind, "sheet" | "shallow");
+        if !(slope >= 1.0 || (surface && slope > SLOPE_USUAL_MAX)) {
+            return;
+        }
+        let unit = match self.units {
+            UnitSystem::Us => "ft/ft",
+            UnitSystem::Si => "m/m",
+        };
+        let percent_written = match raw.get_ref() {
+            RawValue::Text(t) => t.contains('%') || t.to_ascii_lowercase().contains("percent"),
+            _ => false,
+        };
+        let likely = if percent_written {
+            // "45 %": a slipped decimal point.
+            format!("\"{} %\"", units::short(slope * 10.0, 4))
+        } else {
+            format!("\"{} %\"", units::short(slope, 4))
+        };
+        let usual = if surface {
+            format!(
+                "sheet and shallow flow slopes are usually under {SLOPE_USUAL_MAX} {unit} (30 %)"
+            )
+        } else {
+            format!("a channel slope of 1 {unit} (100 %) or more is not open-channel flow")
+        };
+        self.warnings.push(Warning::SlopeSteep {
+            at: format!("{ctx}, slope"),
+            value: format!("{} {unit}", units::short(slope, 4)),
+            percent: slope * 100.0,
+            usual,
+            likely,
+        });
+    }
+
+    /// A Manning n outside the usual range of sheet or channel flow.
+    fn manning_warning(&mut self, n: f64, kind: &str, ctx: &str) {
+        let (range, usual) = match kind {
+            "sheet" => (
+                SHEET_N_USUAL,
+                "sheet-flow range of 0.008-1.0 (TR-55 Table 3-1 spans 0.011 to 0.8)",
+            ),
+            "channel" => (CHANNEL_N_USUAL, "channel range of 0.008-0.2"),
+            _ => return,
+        };
+        if !(n.is_finite() && n > 0.0) || (range.0..=range.1).contains(&n) {
+            return;
+        }
+        // The same digits with the decimal point moved into the range.
+        let mut guess = n;
+        for _ in 0..400 {
+            if guess > range.1 {
+                guess /= 10.0;
+            } else if guess < range.0 {
+                guess *= 10.0;
+            } else {
+                break;
+            }
+        }
+        let hint = if (range.0..=range.1).contains(&guess) {
+            format!("did you mean n = {}?", units::short(guess, 4))
+        } else {
+            "check the value".to_string()
+        };
+        self.warnings.push(Warning::ManningNUnusual {
+            at: format!("{ctx}, n"),
+            value: units::short(n, 4),
+            usual: usual.to_string(),
+            hint,
+        });
+    }
+
+    /// Plausibility warnings of an outlet (read again from the raw keys).
+    fn outlet_warnings(&self, r: &RawOutlet, ctx: &str) -> Vec<Warning> {
+        let mut out = Vec::new();
+        let kind = r
+            .kind
+            .as_ref()
+            .map(|k| k.get_ref().to_ascii_lowercase())
+            .unwrap_or_default();
+        // A bare diameter of 3 or more (ft or m) for an orifice or riser.
+        if matches!(kind.as_str(), "orifice" | "riser")
+            && let Some(d) = &r.diameter
+        {
+            let bare: Vec<f64> = match d.get_ref() {
+                RawValue::Num(x) => vec![*x],
+                RawValue::Range(b) => [&b.0, &b.1]
+                    .into_iter()
+                    .filter_map(|x| match x {
+                        RawValue::Num(v) => Some(*v),
+                        _ => None,
+                    })
+                    .collect(),
+                RawValue::Text(_) => Vec::new(),
+            };
+            if let Some(x) = bare
+                .into_iter()
+                .filter(|x| *x >= BARE_DIAMETER_LIMIT)
+                .reduce(f64::max)
+            {
+                let (unit, small) = match self.units {
+                    UnitSystem::Us => ("ft", "in"),
+                    UnitSystem::Si => ("m", "mm"),
+                };
+                let usual = match (kind.as_str(), self.units) {
+                    ("orifice", UnitSystem::Us) => {
+                        "pond orifices are a few inches to about 2 ft across"
+                    }
+                    ("orifice", UnitSystem::Si) => "pond orifices are about 50 mm to 0.6 m across",
+                    (_, UnitSystem::Us) => "risers are usually 2 to 6 ft across",
+                    (_, UnitSystem::Si) => "risers are usually 0.6 to 1.8 m across",
+                };
+                out.push(Warning::DiameterBare {
+                    at: format!("{ctx}, diameter"),
+                    value: format!("{x} {unit}"),
+                    usual: usual.to_string(),
+                    likely: format!("\"{x} {small}\""),
+                    explicit: format!("\"{x} {unit}\""),
+                });
+            }
+        }
+        // Weir, spillway and riser coefficients, in the scenario's system.
+        if let Some(c) = &r.coefficient {
+            let v = *c.get_ref();
+            let range_us = match kind.as_str() {
+                "weir" => Some(SHARP_WEIR_C_US),
+                "riser" => Some(RISER_C_US),
+                "spillway" | "broad-crested-weir" => Some(SPILLWAY_C_US),
+                _ => None,
+            };
+            if let Some((lo, hi)) = range_us {
+                let si = units::M_PER_FT.sqrt();
+                let (range, other, sys, other_sys, to_sys) = match self.units {
+                    UnitSystem::Us => ((lo, hi), (lo * si, hi * si), "US", "SI", 1.0 / si),
+                    UnitSystem::Si => ((lo * si, hi * si), (lo, hi), "SI", "US", si),
+                };
+                if v.is_finite() && !(range.0..=range.1).contains(&v) {
+                    let what = match kind.as_str() {
+                        "weir" => "sharp-crested weir coefficient",
+                        "riser" => "riser rim (weir) coefficient",
+                        _ => "broad-crested (spillway) coefficient",
+                    };
+                    let hint = if (other.0..=other.1).contains(&v) {
+                        format!(
+                            "{v} is the {other_sys} form of {}; did you mean coefficient = {} (the same weir in {sys} units)?",
+                            units::short(v * to_sys, 3),
+                            units::short(v * to_sys, 3)
+                        )
+                    } else {
+                        "check the value (leave `coefficient` out to use the default)".to_string()
+                    };
+                    out.push(Warning::CoefficientUnusual {
+                        at: format!("{ctx}, coefficient"),
+                        value: format!("{v}"),
+                        usual: format!(
+                            "{what} of {}-{} in {sys} units (ft^0.5/s in US, m^0.5/s in SI)",
+                            units::short(range.0, 3),
+                            units::short(range.1, 3)
+                        ),
+                        hint,
+                    });
+                }
+            }
+        }
+        out
+    }
+
+    /// A name of an element, point, storm, record or condition: not empty,
+    /// no control characters, at most [`MAX_NAME_CHARS`] characters (names
+    /// become parts of file names).
+    fn name_text(&self, n: &Spanned<String>, ctx: &str) -> R<()> {
+        let s = n.get_ref();
+        if s.trim().is_empty() {
+            return Err(self
+                .err(&n.span(), ctx, "the name is empty")
+                .expected("a name of at least one visible character"));
+        }
+        if let Some(c) = s.chars().find(|c| c.is_control()) {
+            return Err(self
+                .err(
+                    &n.span(),
+                    ctx,
+                    format!(
+                        "the name holds a control character (U+{:04X})",
+                        u32::from(c)
+                    ),
+                )
+                .expected("a name of printable characters")
+                .hint("remove the tab, line break or other invisible character from the name"));
+        }
+        let count = s.trim().chars().count();
+        if count > MAX_NAME_CHARS {
+            return Err(self
+                .err(
+                    &n.span(),
+                    ctx,
+                    format!(
+                        "the name is {count} characters long, more than runnel's limit of {MAX_NAME_CHARS}"
+                    ),
+                )
+                .expected(format!("a name of at most {MAX_NAME_CHARS} characters"))
+                .hint("names become parts of file names (a pond's plots join the pond, storm and condition names); shorten it"));
+        }
+        Ok(())
+    }
+
+    /// The conditions when the scenario lists them: the list must hold the
+    /// baseline, and every `condition` must name one of them.
+    fn listed_conditions(
+        &self,
+        list: &Spanned<Vec<Spanned<String>>>,
+        baseline: &str,
+        baseline_raw: Option<&Spanned<String>>,
+        mentions: &[Mention],
+    ) -> R<Vec<String>> {
+        if list.get_ref().is_empty() {
+            return Err(self
+                .err(&list.span(), "conditions", "the list of conditions is empty")
+                .expected("the scenario's condition names, e.g. conditions = [\"existing\", \"proposed\"]"));
+        }
+        let mut names: Vec<String> = Vec::new();
+        for n in list.get_ref() {
+            self.name_text(n, "conditions")?;
+            if names.contains(n.get_ref()) {
+                return Err(self
+                    .err(
+                        &n.span(),
+                        "conditions",
+                        format!("\"{}\" is listed twice", n.get_ref()),
+                    )
+                    .expected("each condition listed once"));
+            }
+            names.push(n.get_ref().clone());
+        }
+        if !names.iter().any(|n| n == baseline) {
+            let (span, ctx) = match baseline_raw {
+                Some(b) => (b.span(), "baseline"),
+                None => (list.span(), "conditions"),
+            };
+            let e = self
+                .err(
+                    &span,
+                    ctx,
+                    format!(
+                        "the baseline condition \"{baseline}\" is not in the `conditions` list"
+                    ),
+                )
+                .expected(format!("a baseline among {}", quoted(&names)));
+            return Err(match cover::nearest(baseline, names.iter().map(String::as_str)) {
+                Some(h) => e.hint(format!("did you mean \"{h}\"? The baseline is set by `baseline = \"{h}\"`")),
+                None if baseline_raw.is_none() => e.hint(format!(
+                    "without `baseline` the baseline is \"existing\"; name yours with `baseline = \"...\"`, or add \"{baseline}\" to the list"
+                )),
+                None => e.hint(format!("add \"{baseline}\" to the list")),
+            });
+        }
+        for m in mentions {
+            if !names.contains(&m.name) {
+                let e = self
+                    .err(
+                        &m.span,
+                        &m.ctx,
+                        format!("\"{}\" is not one of the scenario's conditions", m.name),
+                    )
+                    .expected(format!(
+                        "one of {} (the `conditions` list at the top)",
+                        quoted(&names)
+                    ));
+                return Err(
+                    match cover::nearest(&m.name, names.iter().map(String::as_str)) {
+                        Some(h) => e.hint(format!("did you mean \"{h}\"?")),
+                        None => e.hint(format!(
+                            "add \"{}\" to `conditions` if it is a new condition",
+                            m.name
+                        )),
+                    },
+                );
+            }
+        }
+        let mut out = vec![baseline.to_string()];
+        out.extend(names.into_iter().filter(|n| n != baseline));
+        Ok(out)
+    }
+
+    /// Without a `conditions` list, two condition names a slip apart (see
+    /// [`condition_slip`]) are an error: the name used by fewer elements is
+    /// taken for the slip.
+    fn condition_slips(
+        &self,
+        baseline: &str,
+        baseline_raw: Option<&Spanned<String>>,
+        mentions: &[Mention],
+    ) -> R<()> {
+        let mut names: Vec<&str> = vec![baseline];
+        for m in mentions {
+            if !names.contains(&m.name.as_str()) {
+                names.push(&m.name);
+            }
+        }
+        let uses = |n: &str| mentions.iter().filter(|m| m.name == n).count();
+        for i in 0..names.len() {
+            for j in i + 1..names.len() {
+                let (a, b) = (names[i], names[j]);
+                if !condition_slip(a, b) {
+                    continue;
+                }
+                // The baseline named by `baseline` counts as one more use.
+                let ua = uses(a) + usize::from(i == 0 && baseline_raw.is_some());
+                let ub = uses(b);
+                let (slip, meant) = if ua < ub && (uses(a) > 0 || baseline_raw.is_some()) {
+                    (a, b)
+                } else {
+                    (b, a)
+                };
+                let (span, ctx) = match mentions.iter().find(|m| m.name == slip) {
+                    Some(m) => (m.span.clone(), m.ctx.clone()),
+                    None => (
+                        baseline_raw.map(|b| b.span()).unwrap_or(0..0),
+                        "baseline".to_string(),
+                    ),
+                };
+                let how = if slip.to_lowercase() == meant.to_lowercase() {
+                    "differs only in case from".to_string()
+                } else {
+                    let d = cover::edit_distance(&slip.to_lowercase(), &meant.to_lowercase());
+                    format!("is {d} letter{} away from", if d == 1 { "" } else { "s" })
+                };
+                let mut all: Vec<String> = names.iter().map(|n| n.to_string()).collect();
+                all.sort_by_key(|n| usize::from(n != baseline));
+                let mut hint = format!("did you mean \"{meant}\"?");
+                if meant == baseline && baseline_raw.is_none() {
+                    hint.push_str(&format!(
+                        " (or, if \"{slip}\" is the baseline, say so with `baseline = \"{slip}\"`)"
+                    ));
+                }
+                hint.push_str(&format!(
+                    " If both are meant, list the conditions at the top of the scenario: conditions = [{}]",
+                    all.iter()
+                        .map(|n| format!("\"{n}\""))
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                ));
+                return Err(self
+                    .err(
+                        &span,
+                        &ctx,
+                        format!("condition \"{slip}\" {how} condition \"{meant}\", so it looks like a slip"),
+                    )
+                    .expected("condition names that differ clearly, or a `conditions = [...]` list at the top that names every condition")
+                    .hint(hint));
+            }
+        }
+        Ok(())
+    }
+
     fn build(&mut self, raw: RawScenario) -> R<Study> {
         if let Some(u) = &raw.units {
             self.units = match u.get_ref().to_ascii_lowercase().as_str() {
@@ -352,7 +885,15 @@ impl<'a> Builder<'a> {
             };
         }
         let p2_in = match &raw.p2 {
-            Some(v) => Some(self.positive(v, Quantity::Depth, "p2")?),
+            Some(v) => {
+                let p2 = self.positive(v, Quantity::Depth, "p2")?;
+                if !(P2_USUAL_IN.0..=P2_USUAL_IN.1).contains(&p2) {
+                    let (value, usual, hint) = self.depth_slip(v, p2, P2_USUAL_IN);
+                    self.warnings
+                        .push(Warning::P2Unusual { value, usual, hint });
+                }
+                Some(p2)
+            }
             None => None,
         };
         let memory_limit_bytes = match &raw.memory_limit {
@@ -370,12 +911,8 @@ impl<'a> Builder<'a> {
         // Names: unique across every element and point (they are `to` targets).
         let mut names: HashMap<String, (&'static str, std::ops::Range<usize>)> = HashMap::new();
         let mut check_name = |this: &Self, n: &Spanned<String>, kind: &'static str| -> R<()> {
+            this.name_text(n, &format!("{kind}, name"))?;
             let s = n.get_ref().trim();
-            if s.is_empty() {
-                return Err(this
-                    .err(&n.span(), kind, "the name is empty")
-                    .expected("a non-empty name"));
-            }
             if let Some((k, first)) = names.get(s) {
                 let (l, _) = this.src.line_col(first.start);
                 return Err(this
@@ -404,6 +941,7 @@ impl<'a> Builder<'a> {
         let mut storm_names: HashMap<String, std::ops::Range<usize>> = HashMap::new();
         for s in &raw.storm {
             let n = &s.get_ref().name;
+            self.name_text(n, "storm, name")?;
             if let Some(first) = storm_names.get(n.get_ref()) {
                 let (l, _) = self.src.line_col(first.start);
                 return Err(self
@@ -419,6 +957,7 @@ impl<'a> Builder<'a> {
         let mut record_names: HashMap<String, ()> = HashMap::new();
         for r in &raw.record {
             let n = &r.get_ref().name;
+            self.name_text(n, "record, name")?;
             if record_names.insert(n.get_ref().clone(), ()).is_some() {
                 return Err(self
                     .err(
@@ -433,30 +972,55 @@ impl<'a> Builder<'a> {
         self.check_file_name_parts(&raw)?;
 
         // Conditions, in order of first mention, baseline first.
+        // Conditions: the baseline first, then the `conditions` list, or
+        // (without a list) the names in order of first mention.
         let baseline_name = raw
             .baseline
             .as_ref()
             .map(|b| b.get_ref().clone())
             .unwrap_or_else(|| "existing".to_string());
-        let mut conditions = vec![baseline_name.clone()];
-        let mention = |list: &Option<Spanned<NameList>>, conditions: &mut Vec<String>| {
+        if let Some(b) = &raw.baseline {
+            self.name_text(b, "baseline")?;
+        }
+        let mut mentions: Vec<Mention> = Vec::new();
+        let mut mention = |list: &Option<Spanned<NameList>>, kind: &str, name: &Spanned<String>| {
             if let Some(l) = list {
                 for c in &l.get_ref().0 {
-                    if !conditions.contains(c) {
-                        conditions.push(c.clone());
-                    }
+                    mentions.push(Mention {
+                        name: c.clone(),
+                        span: l.span(),
+                        ctx: format!("{kind} \"{}\", condition", name.get_ref()),
+                    });
                 }
             }
         };
         for c in &raw.catchment {
-            mention(&c.get_ref().condition, &mut conditions);
+            mention(&c.get_ref().condition, "catchment", &c.get_ref().name);
         }
         for p in &raw.pond {
-            mention(&p.get_ref().condition, &mut conditions);
+            mention(&p.get_ref().condition, "pond", &p.get_ref().name);
         }
         for i in &raw.inflow {
-            mention(&i.get_ref().condition, &mut conditions);
+            mention(&i.get_ref().condition, "inflow", &i.get_ref().name);
         }
+        for m in &mentions {
+            self.name_text(&Spanned::new(m.span.clone(), m.name.clone()), &m.ctx)?;
+        }
+        let conditions = match &raw.conditions {
+            Some(list) => {
+                self.listed_conditions(list, &baseline_name, raw.baseline.as_ref(), &mentions)?
+            }
+            None => {
+                self.condition_slips(&baseline_name, raw.baseline.as_ref(), &mentions)?;
+                let mut conditions = vec![baseline_name.clone()];
+                for m in &mentions {
+                    if !conditions.contains(&m.name) {
+                        conditions.push(m.name.clone());
+                    }
+                }
+                conditions
+            }
+        };
 
         let storms = raw
             .storm
@@ -655,6 +1219,20 @@ impl<'a> Builder<'a> {
                             )
                             .expected("a time of zero or more"));
                     }
+                    if v > MAX_LAG_H {
+                        return Err(self
+                            .err(
+                                &l.span(),
+                                &format!("{}, lag", p.ctx),
+                                format!(
+                                    "a lag of {} h is longer than runnel's limit of 31 days ({} h)",
+                                    units::short(v, 4),
+                                    units::short(MAX_LAG_H, 4)
+                                ),
+                            )
+                            .expected("a lag of at most 31 days (\"744 h\")")
+                            .hint("check the unit: a lag is usually minutes or hours"));
+                    }
                     v
                 }
                 None => 0.0,
@@ -819,8 +1397,35 @@ impl<'a> Builder<'a> {
             }
             None => (default_step_h(min_tc), false),
         };
+        // Paths are free of cycles here (checked above).
+        let max_path_lag_h = (0..elements.len())
+            .map(|i| {
+                let mut lag = 0.0;
+                let mut at = i;
+                for _ in 0..elements.len() {
+                    lag += elements[at].lag_h;
+                    match elements[at].to {
+                        Target::Element(j) => at = j,
+                        Target::Point(_) => break,
+                    }
+                }
+                lag
+            })
+            .fold(0.0, f64::max);
         for (si, s) in storms.iter().enumerate() {
-            let n = ((s.rain_end_h() + 7.0 * 24.0) / step_h).ceil();
+            // The run lasts until the rain and every inflow end, plus the
+            // longest sum of lags down to a point, plus the tail.
+            let inflow_end = elements
+                .iter()
+                .filter_map(|e| match &e.kind {
+                    ElementKind::Inflow(i) if i.storm.is_none() || i.storm == Some(si) => {
+                        Some(i.end_h())
+                    }
+                    _ => None,
+                })
+                .fold(0.0, f64::max);
+            let n =
+                ((s.rain_end_h().max(inflow_end) + max_path_lag_h + 7.0 * 24.0) / step_h).ceil();
             if n > MAX_STEPS as f64 {
                 let least = format_step_up((s.rain_end_h() + 7.0 * 24.0) / MAX_STEPS as f64);
                 return Err(match &raw.step {
@@ -1144,11 +1749,17 @@ impl<'a> Builder<'a> {
             "pattern",
             "\"nrcs-type-ii\" (or a `gauge` file)",
         )?;
-        let depth = self.positive(
-            self.req(&rs.depth, &s.span(), &ctx, "depth", "\"5.1 in\"")?,
-            Quantity::Depth,
-            &format!("{ctx}, depth"),
-        )?;
+        let depth_raw = self.req(&rs.depth, &s.span(), &ctx, "depth", "\"5.1 in\"")?;
+        let depth = self.positive(depth_raw, Quantity::Depth, &format!("{ctx}, depth"))?;
+        if !(STORM_DEPTH_USUAL_IN.0..=STORM_DEPTH_USUAL_IN.1).contains(&depth) {
+            let (value, usual, hint) = self.depth_slip(depth_raw, depth, STORM_DEPTH_USUAL_IN);
+            self.warnings.push(Warning::StormDepthUnusual {
+                storm: name.clone(),
+                value,
+                usual,
+                hint,
+            });
+        }
         let key = pat.get_ref().to_ascii_lowercase();
         let nrcs = match key.as_str() {
             "nrcs-type-i" => Some(NrcsType::I),
@@ -1536,6 +2147,34 @@ impl<'a> Builder<'a> {
                 )
                 .expected("a positive, finite Tc"));
         }
+        if tc_h > 24.0 {
+            let (at, hint) = match &rc.tc {
+                Some(t) => {
+                    let hint = match t.get_ref() {
+                        RawValue::Text(txt) => match units::split_number(txt) {
+                            Ok((x, u)) if matches!(u.to_ascii_lowercase().as_str(), "h" | "hr" | "hrs" | "hour" | "hours") => {
+                                format!("did you mean \"{} min\"?", units::short(x, 4))
+                            }
+                            Ok((x, u)) if matches!(u.to_ascii_lowercase().as_str(), "d" | "day" | "days") => {
+                                format!("did you mean \"{} h\"?", units::short(x, 4))
+                            }
+                            _ => "check the value and its unit".to_string(),
+                        },
+                        _ => "check the value and its unit".to_string(),
+                    };
+                    (format!("{ctx}, tc"), hint)
+                }
+                None => (
+                    ctx.to_string(),
+                    "check each flow segment's length, slope and Manning n (`runnel check` lists every segment's travel time) and `p2`".to_string(),
+                ),
+            };
+            self.warnings.push(Warning::TcLong {
+                at,
+                value: format!("{} h", units::short(tc_h, 4)),
+                hint,
+            });
+        }
         if tc_h < 0.1 {
             self.warnings.push(Warning::TcShort {
                 catchment: rc.name.get_ref().clone(),
@@ -1602,6 +2241,12 @@ impl<'a> Builder<'a> {
         )?;
         let slope_raw = self.req(&rf.slope, &f.span(), ctx, "slope", "0.02 or \"2 %\"")?;
         let slope = self.positive(slope_raw, Quantity::Slope, &format!("{ctx}, slope"))?;
+        self.slope_warning(slope_raw, slope, kind.get_ref(), ctx);
+        if let Some(n_raw) = &rf.n
+            && let NumOrName::Num(n) = n_raw.get_ref()
+        {
+            self.manning_warning(*n, kind.get_ref(), ctx);
+        }
         // A key given that this kind of segment does not use.
         let unused =
             |this: &Self, key: &str, sp: Option<std::ops::Range<usize>>, k: &str| -> R<()> {
@@ -1844,6 +2489,42 @@ impl<'a> Builder<'a> {
             .collect())
     }
 
+    /// Refuses table rows (in internal units) whose columns lie beyond the
+    /// bounds of their quantities ([`Quantity::max_magnitude`], or `max`
+    /// when given).
+    fn bounded_rows(
+        &self,
+        rows: &[(f64, f64)],
+        span: &std::ops::Range<usize>,
+        ctx: &str,
+        cols: [(Quantity, &str, Option<f64>); 2],
+    ) -> R<()> {
+        for (i, r) in rows.iter().enumerate() {
+            for (k, (q, what, max)) in cols.iter().enumerate() {
+                let x = if k == 0 { r.0 } else { r.1 };
+                let max = max.unwrap_or(q.max_magnitude());
+                if x.abs() > max {
+                    let f = q.output_factor(self.units);
+                    let u = q.output_unit(self.units);
+                    return Err(self
+                        .err(
+                            span,
+                            ctx,
+                            format!(
+                                "row {}: the {what} {} {u} is far beyond anything runnel can model (at most {} {u})",
+                                i + 1,
+                                big(x * f),
+                                units::sig(max * f, 3)
+                            ),
+                        )
+                        .expected(format!("{what}s of at most {} {u}", units::sig(max * f, 3)))
+                        .hint("check the row for a slip (a misplaced decimal point or exponent)"));
+                }
+            }
+        }
+        Ok(())
+    }
+
     fn pond(
         &mut self,
         rp: &RawPond,
@@ -1876,6 +2557,15 @@ impl<'a> Builder<'a> {
         }
         let (storage, storage_kind, table_top) = if let Some(t) = &rp.stage_area {
             let rows = self.table_rows(t, &format!("{ctx}, stage_area"), lf, af)?;
+            self.bounded_rows(
+                &rows,
+                &t.span(),
+                &format!("{ctx}, stage_area"),
+                [
+                    (Quantity::Length, "stage", None),
+                    (Quantity::SectionArea, "area", None),
+                ],
+            )?;
             let s = StageStorage::from_stage_area(&rows).map_err(|e| {
                 self.err(&t.span(), &format!("{ctx}, stage_area"), e.to_string())
                     .expected(
@@ -1889,6 +2579,15 @@ impl<'a> Builder<'a> {
             )
         } else if let Some(t) = &rp.stage_volume {
             let rows = self.table_rows(t, &format!("{ctx}, stage_volume"), lf, vf)?;
+            self.bounded_rows(
+                &rows,
+                &t.span(),
+                &format!("{ctx}, stage_volume"),
+                [
+                    (Quantity::Length, "stage", None),
+                    (Quantity::Volume, "volume", None),
+                ],
+            )?;
             let s = StageStorage::from_stage_volume(&rows).map_err(|e| self.err(&t.span(), &format!("{ctx}, stage_volume"), e.to_string()).expected("[stage, volume] rows with stages increasing and volumes >= 0, not decreasing"))?;
             (s, "stage-volume", rows.last().map(|r| r.0))
         } else if let Some(b) = &rp.basin {
@@ -1994,6 +2693,8 @@ impl<'a> Builder<'a> {
             let label = crate::sizing::outlet_label(i, name.as_deref());
             outlet_names.push(name);
             let (outlet, s) = self.outlet(o, &format!("{ctx}, {label}"), i)?;
+            let w = self.outlet_warnings(o.get_ref(), &format!("{ctx}, {label}"));
+            self.warnings.extend(w);
             let low = outlet.lowest_ft();
             if low < bottom - 1e-9 {
                 let sp = o
@@ -2039,6 +2740,25 @@ impl<'a> Builder<'a> {
                             "the starting water surface is below the pond bottom",
                         )
                         .expected(format!("an elevation of at least {}", bottom / lf)));
+                }
+                if let Some(top) = top_ft
+                    && v > top + 1e-9
+                {
+                    return Err(self
+                        .err(
+                            &s.span(),
+                            &format!("{ctx}, start"),
+                            format!(
+                                "the starting water surface {} is above the top of embankment {}",
+                                units::short(v / lf, 6),
+                                units::short(top / lf, 6)
+                            ),
+                        )
+                        .expected(format!(
+                            "a starting water surface at or below the top ({})",
+                            units::short(top / lf, 6)
+                        ))
+                        .hint("check `start` and `top`: a pond cannot start overtopped"));
                 }
                 Some(v)
             }
@@ -2256,6 +2976,17 @@ impl<'a> Builder<'a> {
                             )
                             .expected("a positive weir coefficient"));
                     }
+                    if v > MAX_WEIR_COEFFICIENT {
+                        return Err(self
+                            .err(
+                                &c.span(),
+                                &format!("{ctx}, coefficient"),
+                                format!(
+                                    "a weir coefficient of {v} is far beyond any published value"
+                                ),
+                            )
+                            .expected("a weir coefficient such as 3.33 (US) or 1.84 (SI)"));
+                    }
                     Ok(v * cf)
                 }
                 None => Ok(default),
@@ -2405,6 +3136,15 @@ impl<'a> Builder<'a> {
                 let ff = Quantity::Flow.bare_factor(self.units).unwrap_or(1.0);
                 let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
                 let rows = self.table_rows(t, &format!("{ctx}, table"), lf, ff)?;
+                self.bounded_rows(
+                    &rows,
+                    &t.span(),
+                    &format!("{ctx}, table"),
+                    [
+                        (Quantity::Length, "stage", None),
+                        (Quantity::Flow, "flow", None),
+                    ],
+                )?;
                 if rows.len() < 2 {
                     return Err(self
                         .err(
@@ -2508,6 +3248,16 @@ impl<'a> Builder<'a> {
                 )
                 .expected("times and flows of zero or more"));
         }
+        let scaled: Vec<(f64, f64)> = rows.iter().map(|&(t, q)| (t, q * ff)).collect();
+        self.bounded_rows(
+            &scaled,
+            &ri.table.as_ref().map(|t| t.span()).unwrap_or(span.clone()),
+            ctx,
+            [
+                (Quantity::Time, "time", Some(MAX_INFLOW_H)),
+                (Quantity::Flow, "flow", None),
+            ],
+        )?;
         Ok(Inflow {
             table: rows.into_iter().map(|(t, q)| (t, q * ff)).collect(),
             storm,
@@ -2598,7 +3348,11 @@ impl<'a> Builder<'a> {
                     return Err(bad(format!("a percentage of {v} % cannot be met")));
                 }
                 (v / 100.0, r.trim().to_string())
-            } else if unit.contains('/') {
+            } else if unit.contains('/')
+                && units::parse_quantity(text, Quantity::Flow, self.units).is_err()
+            {
+                // A flow per unit area ("0.1 cfs/ac", "10 l/s/ha"); a flow
+                // unit that holds a slash ("0.24 m3/s", "240 l/s") is a flow.
                 let q = units::parse_flow_per_area(text).map_err(|e| bad(e.to_string()))?;
                 if q < 0.0 {
                     return Err(bad(format!(
@@ -2925,6 +3679,15 @@ fn cycle_text(elements: &[Element], start: usize) -> String {
     format!("the loop: {}", names.join(" -> "))
 }
 
+/// A number for a message, in exponent form when it is very large or small.
+fn big(x: f64) -> String {
+    if x != 0.0 && !(1e-4..1e6).contains(&x.abs()) {
+        format!("{x:e}")
+    } else {
+        units::short(x, 6)
+    }
+}
+
 fn show(v: &RawValue) -> String {
     match v {
         RawValue::Num(x) => x.to_string(),
@@ -3087,6 +3850,34 @@ mod tests {
         assert_eq!(format_step_up(1.0 / 60.0), "1.00 min");
         assert_eq!(format_step_up(0.1), "6.00 min");
         assert_eq!(format_step_up(20_100.0), "20100 h");
+    }
+
+    #[test]
+    fn condition_slips_are_typos_and_not_names_alike_on_purpose() {
+        // common practice, no published source: how engineers name conditions
+        assert!(condition_slip("proposed", "propsed"));
+        assert!(condition_slip("existing", "exisitng"));
+        assert!(condition_slip("existing", "Existing"));
+        assert!(condition_slip("EX", "ex"));
+        assert!(condition_slip("Phase-1", "phase-1"));
+        assert!(!condition_slip("phase-1", "phase-2"));
+        assert!(!condition_slip("proposed", "proposed-2"));
+        assert!(!condition_slip("2030", "2040"));
+        assert!(!condition_slip("alt-a", "alt-b"));
+        assert!(!condition_slip("option A", "option B"));
+        assert!(!condition_slip("proposed", "proposed-b"));
+        assert!(!condition_slip("ex", "pr"));
+        assert!(!condition_slip("A", "B"));
+        assert!(!condition_slip("pre", "post"));
+        assert!(!condition_slip("existing", "proposed"));
+        assert!(!condition_slip("proposed", "proposed"));
+    }
+
+    #[test]
+    fn big_numbers_print_in_exponent_form() {
+        assert_eq!(big(1.7e308), "1.7e308");
+        assert_eq!(big(1e18), "1e18");
+        assert_eq!(big(104.5), "104.5");
     }
 
     #[test]

@@ -136,6 +136,9 @@ pub struct RawScenario {
     pub step: Option<Spanned<RawValue>>,
     /// The condition the others are compared against.
     pub baseline: Option<Spanned<String>>,
+    /// The scenario's conditions, listed once (optional); when given, no
+    /// other condition name may be used.
+    pub conditions: Option<Spanned<Vec<Spanned<String>>>>,
     /// 2-year 24-hour rainfall.
     pub p2: Option<Spanned<RawValue>>,
     /// Memory cap for a run, e.g. "4 GB" (runnel's own key).
