@@ -20,7 +20,7 @@
 //!
 //! Everything here is pure computation on plain values: no I/O, no printing.
 
-use crate::gauge::{civil_from_days, days_from_civil};
+use crate::util::calendar;
 
 /// One plotting position of a ranked annual series.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -1047,13 +1047,15 @@ fn for_each_year(
         let Ok(t0_s) = i64::try_from(t0) else {
             break;
         };
-        let (y, _, _) = civil_from_days(t0_s.div_euclid(86_400));
-        let year_start = i128::from(days_from_civil(y, 1, 1)) * DAY_S;
-        let next_start = if y == i32::MAX {
-            i128::MAX / 4
-        } else {
-            i128::from(days_from_civil(y + 1, 1, 1)) * DAY_S
-        };
+        let y = calendar::year_of(t0_s);
+        // Beyond chrono's dates (about ±262,000 years) the years are clamped;
+        // the first and last then run to the end of time.
+        let year_start =
+            calendar::day_number(y, 1, 1).map_or(i128::MIN / 4, |z| i128::from(z) * DAY_S);
+        let next_start = y
+            .checked_add(1)
+            .and_then(|y1| calendar::day_number(y1, 1, 1))
+            .map_or(i128::MAX / 4, |z| i128::from(z) * DAY_S);
         let k_first = ceil_div(year_start - start, step);
         let k_next = ceil_div(next_start - start, step);
         let expected = usize::try_from((k_next - k_first).max(0)).unwrap_or(usize::MAX);
@@ -1077,6 +1079,11 @@ mod tests {
     use super::*;
     use approx::assert_abs_diff_eq;
     use proptest::prelude::*;
+
+    /// Day number (from 1970-01-01) of a date the test knows exists.
+    fn days_from_civil(y: i32, m: u32, d: u32) -> i64 {
+        calendar::day_number(y, m, d).unwrap_or_else(|| panic!("{y}-{m}-{d}"))
+    }
 
     #[test]
     fn the_fast_duration_path_takes_only_finite_non_negative_series() {
@@ -1801,7 +1808,7 @@ mod tests {
             let mut model: Vec<(i32, f64, usize)> = Vec::new();
             for (i, &v) in values.iter().enumerate() {
                 let t = start + i as i64 * step;
-                let (y, _, _) = civil_from_days(t.div_euclid(86_400));
+                let y = calendar::year_of(t);
                 match model.last_mut() {
                     Some(last) if last.0 == y => {
                         if v > last.1 { last.1 = v; }
@@ -1846,4 +1853,5 @@ mod tests {
             flow_duration_select(&flows, &ex)
         );
     }
+
 }

@@ -13,6 +13,7 @@
 use std::error::Error as StdError;
 use std::sync::OnceLock;
 
+use crate::util::calendar::{self, civil_from_days, decimal_year};
 use image::ImageEncoder;
 use image::codecs::png::{CompressionType, FilterType, PngEncoder};
 use plotters::coord::Shift;
@@ -1654,43 +1655,6 @@ fn draw_frequency(p: &FrequencyPlot) -> Result<Canvas, PlotError> {
     })
 }
 
-/// Days since 1970-01-01 of a proleptic Gregorian date (the well-known civil-calendar
-/// conversion; no published hydrologic source).
-fn days_from_civil(y: i64, m: i64, d: i64) -> i64 {
-    let y = if m <= 2 { y - 1 } else { y };
-    let era = y.div_euclid(400);
-    let yoe = y - era * 400;
-    let mp = (m + 9) % 12;
-    let doy = (153 * mp + 2) / 5 + d - 1;
-    let doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
-    era * 146_097 + doe - 719_468
-}
-
-/// Proleptic Gregorian date (y, m, d) of a day count since 1970-01-01.
-fn civil_from_days(z: i64) -> (i64, i64, i64) {
-    let z = z + 719_468;
-    let era = z.div_euclid(146_097);
-    let doe = z - era * 146_097;
-    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
-    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
-    let mp = (5 * doy + 2) / 153;
-    let d = doy - (153 * mp + 2) / 5 + 1;
-    let m = if mp < 10 { mp + 3 } else { mp - 9 };
-    (yoe + era * 400 + i64::from(m <= 2), m, d)
-}
-
-fn is_leap(y: i64) -> bool {
-    (y % 4 == 0 && y % 100 != 0) || y % 400 == 0
-}
-
-/// Fractional year of the start of a day (day count since 1970-01-01).
-fn decimal_year(z: i64) -> f64 {
-    let (y, _, _) = civil_from_days(z);
-    let start = days_from_civil(y, 1, 1);
-    let len = if is_leap(y) { 366.0 } else { 365.0 };
-    y as f64 + (z - start) as f64 / len
-}
-
 /// Ticks (fractional year, label) for a calendar axis from day `z0` to day `z1`.
 fn calendar_ticks(z0: i64, z1: i64) -> Vec<(f64, String)> {
     let (x0, x1) = (decimal_year(z0), decimal_year(z1));
@@ -1716,7 +1680,9 @@ fn calendar_ticks(z0: i64, z1: i64) -> Vec<(f64, String)> {
         let mut out = Vec::new();
         for y in y0..=y1 {
             for m in (1..=12).filter(|m| (m - 1) % every == 0) {
-                let x = decimal_year(days_from_civil(y, m, 1));
+                let Some(x) = calendar::day_number(y, m, 1).map(decimal_year) else {
+                    continue;
+                };
                 if x >= x0 - 1e-9 && x <= x1 + 1e-9 {
                     let label = if m == 1 {
                         y.to_string()
@@ -1781,19 +1747,12 @@ pub fn overview_png(p: &OverviewPlot) -> Result<Vec<u8>, PlotError> {
 fn draw_overview(p: &OverviewPlot) -> Result<Canvas, PlotError> {
     let name = plot_name("record overview", &p.title);
     let (y, m, d) = p.day_labels_start;
-    let month_len = match m {
-        2 if is_leap(i64::from(y)) => 29,
-        2 => 28,
-        4 | 6 | 9 | 11 => 30,
-        _ => 31,
-    };
-    if !(1..=12).contains(&m) || d < 1 || d > month_len {
+    let Some(z0) = calendar::day_number(y, m, d) else {
         return Err(input_error(
             &name,
             format!("expected a calendar date for day 0, got {y}-{m:02}-{d:02}"),
         ));
-    }
-    let z0 = days_from_civil(i64::from(y), i64::from(m), i64::from(d));
+    };
     let n_days = p.daily_max.iter().map(|(_, v)| v.len()).max().unwrap_or(0);
     let n_days = i64::try_from(n_days.max(1))
         .unwrap_or(i64::MAX)
@@ -1814,10 +1773,7 @@ fn draw_overview(p: &OverviewPlot) -> Result<Canvas, PlotError> {
             .map(|(_, l)| l.clone())
             .unwrap_or_default()
     };
-    let date_of = |k: i64| {
-        let (yy, mm, dd) = civil_from_days(z0 + k);
-        format!("{yy}-{mm:02}-{dd:02}")
-    };
+    let date_of = |k: i64| calendar::format_date(z0 + k);
     let has_days = p.daily_max.iter().any(|(_, v)| !v.is_empty());
     let subtitle = if !has_days {
         "No daily values to show".to_string()
@@ -2421,29 +2377,9 @@ mod tests {
         assert!((t[0] - 0.02).abs() < 1e-15 && (t[10] - 50.0).abs() < 1e-12);
     }
 
-    #[test]
-    fn calendar_days_match_posix_epoch_days() {
-        // POSIX.1 "Seconds Since the Epoch": 2000-01-01T00:00Z is 946 684 800 s, i.e. day
-        // 10 957 (from memory); 1970-01-01 is day 0 by definition.
-        assert_eq!(days_from_civil(1970, 1, 1), 0);
-        assert_eq!(days_from_civil(2000, 1, 1), 946_684_800 / 86_400);
-        assert_eq!(civil_from_days(10_957), (2000, 1, 1));
-        // Gregorian leap rule (ISO 8601): 2000 is a leap year, 1900 is not.
-        assert_eq!(
-            days_from_civil(2000, 3, 1) - days_from_civil(2000, 2, 28),
-            2
-        );
-        assert_eq!(
-            days_from_civil(1900, 3, 1) - days_from_civil(1900, 2, 28),
-            1
-        );
-        for z in [-800_000, -1, 0, 59, 10_957, 20_000, 2_000_000] {
-            let (y, m, d) = civil_from_days(z);
-            assert_eq!(days_from_civil(y, m, d), z);
-        }
-        assert!(
-            (decimal_year(days_from_civil(2001, 7, 2)) - (2001.0 + 182.0 / 365.0)).abs() < 1e-12
-        );
+    /// Day number of a date the test knows exists.
+    fn days_from_civil(y: i32, m: u32, d: u32) -> i64 {
+        calendar::day_number(y, m, d).unwrap_or_else(|| panic!("{y}-{m}-{d}"))
     }
 
     #[test]
