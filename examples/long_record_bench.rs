@@ -17,8 +17,10 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     let csv = dir.join("rain-5min-100yr.csv");
     let t0 = Instant::now();
     // Dense 5-minute record, 1925-2024, with invented storms every ~4 days.
-    let start = runnel::gauge::days_from_civil(1925, 1, 1) * 86_400;
-    let end = runnel::gauge::days_from_civil(2025, 1, 1) * 86_400;
+    let start =
+        runnel::util::calendar::day_number(1925, 1, 1).unwrap_or_else(|| panic!("a date")) * 86_400;
+    let end =
+        runnel::util::calendar::day_number(2025, 1, 1).unwrap_or_else(|| panic!("a date")) * 86_400;
     let n = ((end - start) / 300) as usize;
     let mut w = std::io::BufWriter::with_capacity(1 << 20, std::fs::File::create(&csv)?);
     writeln!(w, "time,depth")?;

@@ -10,8 +10,13 @@
 //! writes `time,depth` rows (inches per hour, END of each hour), only for
 //! rainy hours plus the first and the last: read it with `missing = "zero"`.
 
-use runnel::gauge::{civil_from_days, days_from_civil};
+use runnel::util::calendar::{civil_from_days, day_number};
 use std::io::Write;
+
+/// Day number of a date the generator knows exists.
+fn days_from_civil(y: i32, m: u32, d: u32) -> i64 {
+    day_number(y, m, d).unwrap_or_else(|| panic!("{y}-{m}-{d}"))
+}
 
 /// SplitMix64: a small, well-known generator (Steele, Lea & Flood 2014).
 struct Rng(u64);

@@ -1,15 +1,12 @@
-//! Rain-gauge CSV reading (scenario contract, "Rainfall CSV") and the civil
-//! calendar arithmetic used for record times.
+//! Rain-gauge CSV reading (scenario contract, "Rainfall CSV").
 //!
 //! The caller reads the file; [`parse_gauge`] turns its bytes into a dense
 //! series of rain depths per interval. The byte parser is written by hand
-//! (no CSV or date library in the hot loop) so that a century of 5-minute
-//! data parses in well under a second.
-//!
-//! Calendar conversions use Howard Hinnant's public-domain algorithms
-//! `days_from_civil` and `civil_from_days` ("chrono-Compatible Low-Level
-//! Date Algorithms", <https://howardhinnant.github.io/date_algorithms.html>),
-//! proleptic Gregorian calendar, days counted from 1970-01-01.
+//! (no CSV library in the hot loop) so that a century of 5-minute data
+//! parses in well under a second. Dates are checked and counted by
+//! [`crate::util::calendar`] (chrono), once per calendar day of rows: a
+//! cache keeps the day of the last date seen, and the rows of one hour read
+//! only their minutes.
 //!
 //! # File format as read here
 //!
@@ -193,93 +190,12 @@ const EXPECTED_TIME: &str = "a time like `2024-06-03 14:15`, `2024-06-03T14:15:0
 const EXPECTED_ROW: &str = "two fields per row, `time,value`, in the header's order";
 
 // ---------------------------------------------------------------------------
-// Calendar (Hinnant's algorithms)
+// Calendar
 // ---------------------------------------------------------------------------
 
-/// Days since 1970-01-01 of the proleptic Gregorian date `y-m-d`.
-///
-/// Howard Hinnant's `days_from_civil` (public domain). Valid for any `i32`
-/// year, month 1-12 and day 1-31; out-of-range months or days give a
-/// day count as if the date rolled over, without panicking.
-pub fn days_from_civil(y: i32, m: u32, d: u32) -> i64 {
-    days_from_civil_i64(i64::from(y), i64::from(m), i64::from(d))
-}
-
-fn days_from_civil_i64(y: i64, m: i64, d: i64) -> i64 {
-    let y = if m <= 2 { y - 1 } else { y };
-    let era = y.div_euclid(400);
-    let yoe = y - era * 400; // [0, 399]
-    let mp = (m + 9).rem_euclid(12); // March = 0
-    let doy = (153 * mp + 2) / 5 + d - 1;
-    let doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
-    era * 146_097 + doe - 719_468
-}
-
-/// Proleptic Gregorian (year, month 1-12, day 1-31) of the day `z` counted
-/// from 1970-01-01.
-///
-/// Howard Hinnant's `civil_from_days` (public domain). Years outside the
-/// `i32` range (|z| above about 7.8·10¹¹ days) saturate.
-pub fn civil_from_days(z: i64) -> (i32, u32, u32) {
-    let z = z.saturating_add(719_468);
-    let era = z.div_euclid(146_097);
-    let doe = z - era * 146_097; // [0, 146096]
-    let yoe = (doe - doe / 1_460 + doe / 36_524 - doe / 146_096) / 365; // [0, 399]
-    let y = yoe + era * 400;
-    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100); // [0, 365]
-    let mp = (5 * doy + 2) / 153; // [0, 11]
-    let d = doy - (153 * mp + 2) / 5 + 1; // [1, 31]
-    let m = if mp < 10 { mp + 3 } else { mp - 9 }; // [1, 12]
-    let y = if m <= 2 { y + 1 } else { y };
-    let year = i32::try_from(y).unwrap_or(if y < 0 { i32::MIN } else { i32::MAX });
-    (year, m as u32, d as u32)
-}
-
-/// `YYYY-MM-DDTHH:MM:SS` for `s` seconds since 1970-01-01T00:00 (naive).
-pub fn format_timestamp(s: i64) -> String {
-    let (y, mo, d) = civil_from_days(s.div_euclid(86_400));
-    let sod = s.rem_euclid(86_400);
-    format!(
-        "{y:04}-{mo:02}-{d:02}T{:02}:{:02}:{:02}",
-        sod / 3_600,
-        sod / 60 % 60,
-        sod % 60
-    )
-}
-
-/// Calendar month (1-12) of `s` seconds since 1970-01-01T00:00 (naive).
-pub fn month_of(s: i64) -> u32 {
-    civil_from_days(s.div_euclid(86_400)).1
-}
-
-fn is_leap(y: i64) -> bool {
-    (y % 4 == 0 && y % 100 != 0) || y % 400 == 0
-}
-
-fn days_in_month(y: i64, m: i64) -> i64 {
-    match m {
-        1 | 3 | 5 | 7 | 8 | 10 | 12 => 31,
-        4 | 6 | 9 | 11 => 30,
-        2 if is_leap(y) => 29,
-        2 => 28,
-        _ => 0,
-    }
-}
-
-const MONTH_NAMES: [&str; 12] = [
-    "January",
-    "February",
-    "March",
-    "April",
-    "May",
-    "June",
-    "July",
-    "August",
-    "September",
-    "October",
-    "November",
-    "December",
-];
+// The calendar lives in `util::calendar`; these names stay here for the
+// callers that reach it through the gauge module.
+use crate::util::calendar;
 
 // ---------------------------------------------------------------------------
 // Field parsers
@@ -349,18 +265,16 @@ fn parse_time(field: &[u8], cache: &mut DateCache) -> Result<Stamp, String> {
             if !(1..=12).contains(&m) {
                 return Err(format!("month {m:02} in {} is not 01 to 12", show(field)));
             }
-            let dim = days_in_month(y, m);
-            if d < 1 || d > dim {
-                let name = MONTH_NAMES
-                    .get(usize::try_from(m - 1).unwrap_or(0))
-                    .copied()
-                    .unwrap_or("");
+            // Four digits each: y in 0..=9999, m in 1..=12, d in 0..=99.
+            let (y, m, d) = (y as i32, m as u32, d as u32);
+            let Some(days) = calendar::day_number(y, m, d) else {
+                let dim = calendar::days_in_month(y, m).unwrap_or(0);
+                let name = calendar::month_name(m);
                 return Err(format!(
                     "day {d:02} in {} does not exist ({name} {y} has {dim} days)",
                     show(field)
                 ));
-            }
-            let days = days_from_civil_i64(y, m, d);
+            };
             if let Some(date) = date {
                 cache.key = date;
                 cache.days = days;
@@ -1303,7 +1217,8 @@ mod tests {
     }
 
     fn ts(y: i32, m: u32, d: u32, hh: i64, mm: i64, ss: i64) -> i64 {
-        days_from_civil(y, m, d) * 86_400 + hh * 3_600 + mm * 60 + ss
+        let day = calendar::day_number(y, m, d).unwrap_or_else(|| panic!("{y}-{m}-{d}"));
+        day * 86_400 + hh * 3_600 + mm * 60 + ss
     }
 
     // ---- reading in chunks (format rules of the scenario contract) ----
@@ -1432,47 +1347,52 @@ mod tests {
         assert!(e.message.contains("device gone"), "{e}");
     }
 
-    // ---- calendar ----
-
-    #[test]
-    fn civil_days_match_known_dates() {
-        // Hinnant's date algorithms: 1970-01-01 is day 0; 2000-03-01 is
-        // day 11017; 1969-12-31 is day -1 (Unix epoch convention).
-        assert_eq!(days_from_civil(1970, 1, 1), 0);
-        assert_eq!(days_from_civil(2000, 3, 1), 11_017);
-        assert_eq!(days_from_civil(1969, 12, 31), -1);
-        assert_eq!(civil_from_days(11_017), (2000, 3, 1));
-        assert_eq!(civil_from_days(-1), (1969, 12, 31));
-        // Unix time 1_700_000_000 s is 2023-11-14T22:13:20 (Unix epoch convention)
-        assert_eq!(format_timestamp(1_700_000_000), "2023-11-14T22:13:20");
-        assert_eq!(format_timestamp(-1), "1969-12-31T23:59:59");
-        assert_eq!(month_of(1_700_000_000), 11);
-    }
+    // ---- times against chrono ----
 
     proptest! {
-        #![proptest_config(ProptestConfig::with_cases(256))]
+        #![proptest_config(ProptestConfig::with_cases(512))]
 
+        /// The hand-written time reader (its date cache and the fast row
+        /// path's hour cache included) agrees with chrono on any time of
+        /// years 0000 to 9999, with and without a UTC offset.
         #[test]
-        fn civil_conversions_round_trip(z in -1_000_000_000i64..1_000_000_000) {
-            let (y, m, d) = civil_from_days(z);
-            prop_assert!((1..=12).contains(&m));
-            prop_assert!(d >= 1 && i64::from(d) <= days_in_month(i64::from(y), i64::from(m)));
-            prop_assert_eq!(days_from_civil(y, m, d), z);
-            // The next day is the next calendar date.
-            let (y2, m2, d2) = civil_from_days(z + 1);
-            prop_assert!((y2, m2, d2) > (y, m, d));
-        }
-    }
+        fn times_are_read_as_chrono_reads_them(
+            s in -62_167_219_200i64..253_402_300_800,
+            offset_min in -1_439i32..=1_439,
+            minute in 0i64..60,
+        ) {
+            use chrono::TimeZone;
+            let naive = chrono::DateTime::from_timestamp(s, 0)
+                .map(|t| t.naive_utc())
+                .unwrap_or_default();
+            let mut cache = DateCache::default();
+            let plain = naive.format("%Y-%m-%d %H:%M:%S").to_string();
+            let stamp = parse_time(plain.as_bytes(), &mut cache);
+            prop_assert_eq!(stamp.map(|t| (t.seconds, t.has_offset)), Ok((s, false)));
 
-    #[test]
-    fn civil_from_days_never_panics_at_the_extremes() {
-        let _ = civil_from_days(i64::MAX);
-        let _ = civil_from_days(i64::MIN);
-        let _ = format_timestamp(i64::MAX);
-        let _ = format_timestamp(i64::MIN);
-        let _ = days_from_civil(i32::MAX, 12, 31);
-        let _ = days_from_civil(i32::MIN, 1, 1);
-        let _ = days_from_civil(2000, u32::MAX, u32::MAX);
+            let offset = chrono::FixedOffset::east_opt(offset_min * 60)
+                .unwrap_or_else(|| panic!("offset {offset_min} min"));
+            let expected = offset
+                .from_local_datetime(&naive)
+                .single()
+                .map(|t| t.timestamp());
+            let zoned = format!("{}{}", naive.format("%Y-%m-%dT%H:%M:%S"), offset);
+            let stamp = parse_time(zoned.as_bytes(), &mut DateCache::default());
+            prop_assert_eq!(stamp.ok().map(|t| t.seconds), expected);
+
+            // Fast rows: the first fills the hour cache, the second reads
+            // only its minutes.
+            let hour_start = s - s.rem_euclid(3_600);
+            let mut cache = DateCache::default();
+            for t in [hour_start + s.rem_euclid(3_600) / 60 * 60, hour_start + minute * 60] {
+                let when = chrono::DateTime::from_timestamp(t, 0)
+                    .map(|t| t.naive_utc())
+                    .unwrap_or_default();
+                let row = format!("{},0.25\n", when.format("%Y-%m-%d %H:%M"));
+                let read = fast_row(row.as_bytes(), 0, &mut cache);
+                prop_assert_eq!(read, Some((t, 0.25, row.len())));
+            }
+        }
     }
 
     // ---- timestamps ----

@@ -37,6 +37,7 @@ pub mod storage_estimate;
 pub mod timing;
 pub mod unit_hydrograph;
 pub mod units;
+pub mod util;
 pub mod warning;
 
 pub use error::{Error, InputError};

@@ -138,3 +138,17 @@ fn main() -> ExitCode {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::Cli;
+    use clap::CommandFactory;
+
+    /// clap's own consistency checks of the argument definitions (duplicate
+    /// names, conflicting flags, bad defaults), which otherwise fire only
+    /// when the faulty argument is used.
+    #[test]
+    fn the_command_line_definition_is_consistent() {
+        Cli::command().debug_assert();
+    }
+}

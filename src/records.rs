@@ -7,7 +7,6 @@
 //! series are kept (they are compared across conditions).
 
 use crate::error::Error;
-use crate::gauge;
 use crate::model::{ElementKind, MoistureMode, Record, Study, Target};
 use crate::moisture;
 use crate::network;
@@ -19,6 +18,7 @@ use crate::report::summary::{ComparisonOut, DurationOut, Out, PondCheckOut};
 use crate::stats;
 use crate::unit_hydrograph;
 use crate::units::{Quantity, sig};
+use crate::util::calendar;
 use crate::warning::Warning;
 use serde::Serialize;
 use std::fmt::Write;
@@ -336,8 +336,8 @@ fn entry(
         condition: cond.to_string(),
         element: element.to_string(),
         kind,
-        start: gauge::format_timestamp(r.start_s),
-        end: gauge::format_timestamp(r.start_s + n as i64 * step_s),
+        start: calendar::format_timestamp(r.start_s),
+        end: calendar::format_timestamp(r.start_s + n as i64 * step_s),
         steps: n,
         rain_depth: o.depth(rain_in),
         runoff_depth: if area_ac > 0.0 {
@@ -347,7 +347,7 @@ fn entry(
         },
         volume: o.volume(st.volume_ft3),
         peak_flow: flow_conv(st.peak),
-        peak_time: gauge::format_timestamp(r.start_s + st.peak_index as i64 * step_s),
+        peak_time: calendar::format_timestamp(r.start_s + st.peak_index as i64 * step_s),
         annual_peaks,
         incomplete_years: incomplete,
         zero_years: zero,
@@ -406,7 +406,7 @@ pub fn rain_at_step(r: &Record) -> Result<std::borrow::Cow<'_, [f64]>, Error> {
             .position(|v| !(v.is_finite() && *v <= MAX_RAIN_PER_STEP_IN))
             .unwrap_or(0);
         let step_s = (r.step_h * 3600.0).round() as i64;
-        let when = gauge::format_timestamp(r.start_s + (k as i64 + 1) * step_s);
+        let when = calendar::format_timestamp(r.start_s + (k as i64 + 1) * step_s);
         return Err(crate::error::InputError::new(
             &r.path,
             format!(
@@ -475,15 +475,20 @@ fn incomplete_years(start_s: i64, step_s: i64, n: usize) -> Vec<(i32, usize, usi
     let first_k = |a: i64| {
         (a - start_s).div_euclid(step_s) + i64::from((a - start_s).rem_euclid(step_s) != 0)
     };
-    let (y0, _, _) = gauge::civil_from_days(start_s.div_euclid(86_400));
-    let (y1, _, _) = gauge::civil_from_days((end_s - 1).div_euclid(86_400));
+    let (y0, _, _) = calendar::civil_from_days(start_s.div_euclid(86_400));
+    let (y1, _, _) = calendar::civil_from_days((end_s - 1).div_euclid(86_400));
     let mut out = Vec::new();
     for y in [y0, y1] {
         if out.iter().any(|(x, _, _)| *x == y) {
             continue;
         }
-        let a = gauge::days_from_civil(y, 1, 1) * 86_400;
-        let b = gauge::days_from_civil(y + 1, 1, 1) * 86_400;
+        let (Some(a), Some(b)) = (
+            calendar::day_number(y, 1, 1),
+            calendar::day_number(y + 1, 1, 1),
+        ) else {
+            continue;
+        };
+        let (a, b) = (a * 86_400, b * 86_400);
         let (ka, kb) = (first_k(a), first_k(b));
         let expected = (kb - ka).max(0) as usize;
         let present = (kb.min(n as i64) - ka.max(0)).max(0) as usize;
@@ -536,7 +541,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
         res.timings.intervals += n;
         let rain_total = stats::sum(&rain);
         let len = n + 1;
-        let month_of = |k: usize| gauge::month_of(r.start_s + k as i64 * step_s);
+        let month_of = |k: usize| calendar::month_of(r.start_s + k as i64 * step_s);
         let bar = (progress && n > 2_000_000).then(|| {
             let b =
                 indicatif::ProgressBar::new((study.conditions.len() * study.elements.len()) as u64);
@@ -795,7 +800,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                                     pond: e.name.clone(),
                                     record: r.name.clone(),
                                     condition: cname.clone(),
-                                    when: gauge::format_timestamp(
+                                    when: calendar::format_timestamp(
                                         r.start_s + top_stage.1 as i64 * step_s,
                                     ),
                                     stage: format!("{} {lu}", sig(o.length(top_stage.0), 5)),
@@ -1191,7 +1196,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                     daily_max[c][pi].iter().map(|&q| o.flow(q)).collect(),
                 ));
             }
-            let (y, mo, d) = gauge::civil_from_days(r.start_s.div_euclid(86_400));
+            let (y, mo, d) = calendar::civil_from_days(r.start_s.div_euclid(86_400));
             let title = format!("{} - record \"{}\"", pt.name, r.name);
             let base = output::record_plot_base(&r.name, &pt.name);
             res.plots.push((
@@ -1340,19 +1345,19 @@ mod tests {
         // the calendar year of its start; years under 90 % of their
         // intervals are incomplete. Hourly from 1 March 2001 to 1 March
         // 2004: 2001 holds 306 of 365 days, 2004 holds 60 of 366.
-        let start = gauge::days_from_civil(2001, 3, 1) * 86_400;
-        let end = gauge::days_from_civil(2004, 3, 1) * 86_400;
+        let start = calendar::days_from_civil(2001, 3, 1) * 86_400;
+        let end = calendar::days_from_civil(2004, 3, 1) * 86_400;
         let n = ((end - start) / 3600) as usize;
         assert_eq!(
             incomplete_years(start, 3600, n),
             vec![(2001, 306 * 24, 365 * 24), (2004, 60 * 24, 366 * 24)]
         );
         // whole years: none
-        let start = gauge::days_from_civil(2001, 1, 1) * 86_400;
-        let end = gauge::days_from_civil(2003, 1, 1) * 86_400;
+        let start = calendar::days_from_civil(2001, 1, 1) * 86_400;
+        let end = calendar::days_from_civil(2003, 1, 1) * 86_400;
         assert!(incomplete_years(start, 3600, ((end - start) / 3600) as usize).is_empty());
         // 2 December to 31 December 2001 of a one-month record: 30 of 365 days
-        let start = gauge::days_from_civil(2001, 12, 2) * 86_400;
+        let start = calendar::days_from_civil(2001, 12, 2) * 86_400;
         assert_eq!(incomplete_years(start, 86_400, 30), vec![(2001, 30, 365)]);
     }
 

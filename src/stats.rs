@@ -20,7 +20,7 @@
 //!
 //! Everything here is pure computation on plain values: no I/O, no printing.
 
-use crate::gauge::{civil_from_days, days_from_civil};
+use crate::util::calendar;
 
 /// One plotting position of a ranked annual series.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -1047,13 +1047,15 @@ fn for_each_year(
         let Ok(t0_s) = i64::try_from(t0) else {
             break;
         };
-        let (y, _, _) = civil_from_days(t0_s.div_euclid(86_400));
-        let year_start = i128::from(days_from_civil(y, 1, 1)) * DAY_S;
-        let next_start = if y == i32::MAX {
-            i128::MAX / 4
-        } else {
-            i128::from(days_from_civil(y + 1, 1, 1)) * DAY_S
-        };
+        let y = calendar::year_of(t0_s);
+        // Beyond chrono's dates (about ±262,000 years) the years are clamped;
+        // the first and last then run to the end of time.
+        let year_start =
+            calendar::day_number(y, 1, 1).map_or(i128::MIN / 4, |z| i128::from(z) * DAY_S);
+        let next_start = y
+            .checked_add(1)
+            .and_then(|y1| calendar::day_number(y1, 1, 1))
+            .map_or(i128::MAX / 4, |z| i128::from(z) * DAY_S);
         let k_first = ceil_div(year_start - start, step);
         let k_next = ceil_div(next_start - start, step);
         let expected = usize::try_from((k_next - k_first).max(0)).unwrap_or(usize::MAX);
@@ -1077,6 +1079,11 @@ mod tests {
     use super::*;
     use approx::assert_abs_diff_eq;
     use proptest::prelude::*;
+
+    /// Day number (from 1970-01-01) of a date the test knows exists.
+    fn days_from_civil(y: i32, m: u32, d: u32) -> i64 {
+        calendar::day_number(y, m, d).unwrap_or_else(|| panic!("{y}-{m}-{d}"))
+    }
 
     #[test]
     fn the_fast_duration_path_takes_only_finite_non_negative_series() {
@@ -1801,7 +1808,7 @@ mod tests {
             let mut model: Vec<(i32, f64, usize)> = Vec::new();
             for (i, &v) in values.iter().enumerate() {
                 let t = start + i as i64 * step;
-                let (y, _, _) = civil_from_days(t.div_euclid(86_400));
+                let y = calendar::year_of(t);
                 match model.last_mut() {
                     Some(last) if last.0 == y => {
                         if v > last.1 { last.1 = v; }
@@ -1845,5 +1852,145 @@ mod tests {
             flow_duration_radix(&flows, &ex),
             flow_duration_select(&flows, &ex)
         );
+    }
+
+    // ---- special functions against statrs (dev-dependency oracle) ----
+    //
+    // statrs 0.18 is an independent, maintained implementation: ln Γ by
+    // Pugh's Lanczos approximation (16 digits), the regularized incomplete
+    // gamma functions by series and continued fraction, the normal quantile
+    // through its inverse complementary error function. Where the two
+    // disagree by more than the tolerances below, one of them is wrong.
+
+    /// ln Γ(x): |ours − statrs| ≤ tol · max(1, |ln Γ(x)|). Both Lanczos
+    /// forms claim about 15 digits; 1e-13 leaves two for the rounding of
+    /// the sums near the zeros at x = 1 and 2.
+    const LN_GAMMA_TOL: f64 = 1e-13;
+    /// P(a, x) and Q(a, x): absolute difference, plus the oracle's own
+    /// error below, and relative difference of the smaller tail while it is
+    /// above 1e-250 (both sum their series to about 1e-16).
+    const INCOMPLETE_GAMMA_ABS_TOL: f64 = 1e-13;
+    const INCOMPLETE_GAMMA_REL_TOL: f64 = 1e-9;
+    /// statrs treats any x below about 1.1e-15 as zero (its
+    /// `DEFAULT_F64_ACC`), so it is asked nothing below this.
+    const STATRS_SMALLEST_X: f64 = 1e-14;
+
+    /// The error statrs itself makes in P or Q: it forms
+    /// ln(x^a e^(-x) / Γ(a)) as a ln x − x − ln Γ(a), and each term keeps a
+    /// rounding error of about ε times its size (runnel rearranges the
+    /// large-shape case to avoid this); eight ε per unit of those sizes.
+    fn statrs_incomplete_gamma_error(a: f64, x: f64) -> f64 {
+        8.0 * f64::EPSILON * (a * x.ln().abs() + x + ln_gamma(a).abs())
+    }
+    /// z(p): relative difference (AS 241 claims about 1e-16; statrs' inverse
+    /// error function a few 1e-16).
+    const NORMAL_QUANTILE_REL_TOL: f64 = 1e-13;
+    /// Gamma quantile x(p): statrs' regularized incomplete gamma function of
+    /// our quantile gives back the target tail probability to this relative
+    /// difference (the incomplete gamma tolerance plus the step of x at
+    /// convergence).
+    const GAMMA_QUANTILE_REL_TOL: f64 = 1e-9;
+
+    fn ln_gamma_grid() -> Vec<f64> {
+        // 1e-3 to 1e4, 40 points a decade, plus the integers and halves to 30.
+        let mut xs: Vec<f64> = (0..=280)
+            .map(|i| 10f64.powf(-3.0 + i as f64 / 40.0))
+            .collect();
+        xs.extend((1..=60).map(|i| i as f64 / 2.0));
+        xs
+    }
+
+    #[test]
+    fn ln_gamma_agrees_with_statrs() {
+        for x in ln_gamma_grid() {
+            let want = statrs::function::gamma::ln_gamma(x);
+            let got = ln_gamma(x);
+            assert!(
+                (got - want).abs() <= LN_GAMMA_TOL * want.abs().max(1.0),
+                "ln_gamma({x}) = {got}, statrs {want}"
+            );
+        }
+    }
+
+    const SHAPES: [f64; 12] = [
+        0.05, 0.1, 0.25, 0.5, 1.0, 1.5, 2.5, 5.0, 10.0, 40.0, 200.0, 1000.0,
+    ];
+
+    #[test]
+    fn incomplete_gamma_agrees_with_statrs() {
+        let ratios = [
+            1e-4, 1e-3, 0.01, 0.05, 0.1, 0.3, 0.5, 0.7, 0.9, 0.95, 1.0, 1.05, 1.1, 1.3, 1.5, 2.0,
+            3.0, 5.0, 10.0, 30.0,
+        ];
+        for a in SHAPES {
+            for r in ratios {
+                let x = a * r;
+                let (p, q) = gamma_pq(a, x, x.ln());
+                let ps = statrs::function::gamma::gamma_lr(a, x);
+                let qs = statrs::function::gamma::gamma_ur(a, x);
+                let tol = INCOMPLETE_GAMMA_ABS_TOL + statrs_incomplete_gamma_error(a, x);
+                assert!(
+                    (p - ps).abs() <= tol && (q - qs).abs() <= tol,
+                    "P, Q({a}, {x}) = {p}, {q}; statrs {ps}, {qs}"
+                );
+                let (tail, tail_s) = if ps <= qs { (p, ps) } else { (q, qs) };
+                if tail_s > 1e-250 {
+                    assert!(
+                        (tail - tail_s).abs() <= INCOMPLETE_GAMMA_REL_TOL * tail_s,
+                        "smaller tail of ({a}, {x}) = {tail}, statrs {tail_s}"
+                    );
+                }
+            }
+        }
+    }
+
+    /// Probabilities from 1e-12 to 1 − 1e-12: geometric in each tail, even
+    /// in the middle.
+    fn probability_grid() -> Vec<f64> {
+        let mut ps: Vec<f64> = (0..=44)
+            .map(|i| 10f64.powf(-12.0 + i as f64 / 4.0))
+            .collect();
+        ps.retain(|&p| p < 0.1);
+        ps.extend((1..=49).map(|i| i as f64 / 50.0));
+        let upper: Vec<f64> = ps.iter().filter(|&&p| p < 0.5).map(|p| 1.0 - p).collect();
+        ps.extend(upper);
+        ps
+    }
+
+    #[test]
+    fn normal_quantile_agrees_with_statrs() {
+        use statrs::distribution::{ContinuousCDF, Normal};
+        let n = Normal::new(0.0, 1.0).unwrap_or_else(|e| panic!("{e}"));
+        for p in probability_grid() {
+            let want = n.inverse_cdf(p);
+            let got = normal_quantile(p);
+            assert!(
+                (got - want).abs() <= NORMAL_QUANTILE_REL_TOL * want.abs().max(1e-3),
+                "z({p}) = {got}, statrs {want}"
+            );
+        }
+    }
+
+    #[test]
+    fn gamma_quantile_is_inverted_by_statrs() {
+        for a in SHAPES {
+            for p in probability_grid() {
+                let q = 1.0 - p;
+                let x = gamma_quantile(a, p, q);
+                if x < STATRS_SMALLEST_X {
+                    continue;
+                }
+                // The smaller tail is the exact one (1 - p is exact for p >= 0.5).
+                let (target, back) = if p <= q {
+                    (p, statrs::function::gamma::gamma_lr(a, x))
+                } else {
+                    (q, statrs::function::gamma::gamma_ur(a, x))
+                };
+                assert!(
+                    (back - target).abs() <= GAMMA_QUANTILE_REL_TOL * target,
+                    "shape {a}, p {p}: x = {x}, statrs tail {back}, wanted {target}"
+                );
+            }
+        }
     }
 }

@@ -36,11 +36,7 @@ pub fn default_out(scenario: &Path) -> PathBuf {
 
 /// Current UTC time as `YYYY-MM-DDTHH:MM:SSZ`.
 pub fn now_utc() -> String {
-    let secs = std::time::SystemTime::now()
-        .duration_since(std::time::UNIX_EPOCH)
-        .map(|d| d.as_secs() as i64)
-        .unwrap_or(0);
-    format!("{}Z", crate::gauge::format_timestamp(secs))
+    crate::util::calendar::now_utc()
 }
 
 /// Runs a scenario and writes its results.

@@ -1,0 +1,162 @@
+//! Hydrographs of every condition at a point under the storm's rain.
+
+use super::{PlotError, StormPointPlot};
+use plotters::prelude::*;
+
+use super::axes::*;
+use super::draw::*;
+use super::style::*;
+
+/// Hydrographs of every condition at a point, with the storm's rain hanging from the top on an
+/// inverted right axis and each condition's peak labelled with its flow and time.
+///
+/// The flow axis reaches 1.6 times the highest flow and the rain axis 3 times the highest rain
+/// per step, so the bars keep to the top third and the hydrographs to the lower part.
+pub fn storm_point_png(p: &StormPointPlot) -> Result<Vec<u8>, PlotError> {
+    encode_png(draw_storm_point(p)?)
+}
+
+pub(super) fn draw_storm_point(p: &StormPointPlot) -> Result<Canvas, PlotError> {
+    let name = plot_name("storm plot", &p.title);
+    let dt = check_step(&name, p.step_h)?;
+    let n_flow = p
+        .hydrographs
+        .iter()
+        .map(|s| s.values.len().saturating_sub(1))
+        .max()
+        .unwrap_or(0);
+    let t_end = time_end(&name, n_flow.max(p.rain.len()), dt)?;
+    let limit_value = p.limit.as_ref().map(|(_, v)| *v).filter(|v| v.is_finite());
+    let flows = p
+        .hydrographs
+        .iter()
+        .flat_map(|s| s.values.iter().copied())
+        .chain(limit_value);
+    let (q_lo, q_hi) = value_range(flows, 1.6).map_err(|m| input_error(&name, m))?;
+    let rain_max = finite(p.rain.iter().copied()).fold(0.0_f64, f64::max);
+    let r_hi = if rain_max > 0.0 {
+        let r = rain_max * 3.0;
+        if r.is_finite() { r } else { rain_max }
+    } else {
+        1.0
+    };
+    let step_words = fmt_step(dt);
+
+    let mut legend: Vec<(String, Swatch)> = vec![(
+        if rain_max > 0.0 {
+            format!("rain in each {step_words} step (right axis)")
+        } else {
+            "no rain in this storm".to_string()
+        },
+        Swatch::Bar(RAIN_FILL, RAIN_EDGE),
+    )];
+    let peaks: Vec<Option<(usize, f64)>> = p.hydrographs.iter().map(|s| peak(&s.values)).collect();
+    for (i, (s, pk)) in p.hydrographs.iter().zip(&peaks).enumerate() {
+        let label = match pk {
+            Some((_, v)) if *v > 0.0 => s.label.clone(),
+            _ => format!("{} (no flow)", s.label),
+        };
+        legend.push((label, Swatch::Line(colour_of(i), 3, dash_of(i))));
+    }
+    if let (Some((label, _)), Some(v)) = (&p.limit, limit_value) {
+        legend.push((
+            format!("{label}: {} {}", fmt_value(v), p.flow_unit),
+            Swatch::Line(LIMIT, 2, Dash::Long),
+        ));
+    }
+    let (x_major, x_minor) = time_ticks(t_end);
+
+    render(&name, |root| {
+        let (body, foot, rows) = layout(root, &p.title, &p.subtitle, &legend)?;
+        let mut chart = ChartBuilder::on(&body)
+            .margin_left(24)
+            .margin_right(24)
+            .margin_top(12)
+            .margin_bottom(6)
+            .x_label_area_size(70)
+            .y_label_area_size(104)
+            .right_y_label_area_size(112)
+            .build_cartesian_2d(
+                TickedAxis::new(0.0, t_end, x_major.clone(), x_minor.clone()),
+                q_lo..q_hi,
+            )?
+            .set_secondary_coord(0.0..t_end, r_hi..0.0);
+        house_mesh!(chart)
+            .x_label_formatter(&|v| fmt_tick(v))
+            .y_label_formatter(&|v| fmt_tick(v))
+            .y_labels(10)
+            .y_max_light_lines(1)
+            .x_desc("Time from start of storm (h)")
+            .y_desc(format!("Flow ({})", p.flow_unit))
+            .draw()?;
+        chart
+            .configure_secondary_axes()
+            .axis_style(MUTED.stroke_width(1))
+            .label_style(font(19))
+            .axis_desc_style(font(22))
+            .y_label_formatter(&|v| fmt_tick(v))
+            .y_labels(8)
+            .y_desc(format!("Rain per {step_words} step ({})", p.rain_unit))
+            .draw()?;
+
+        let bounds = plot_bounds(chart.plotting_area());
+        let mut crowd = Crowding::new(bounds);
+
+        // Rain bars hanging from the top; outlined only when wide enough to show the outline.
+        let rain_area = chart.secondary_plotting_area();
+        let bar_px = f64::from(rain_area.dim_in_pixel().0) * dt / t_end;
+        for (k, r) in p.rain.iter().enumerate() {
+            if !(r.is_finite() && *r > 0.0) {
+                continue;
+            }
+            let b = [(k as f64 * dt, 0.0), ((k + 1) as f64 * dt, r.min(r_hi))];
+            rain_area.draw(&Rectangle::new(b, RAIN_FILL.filled()))?;
+            if bar_px >= 5.0 {
+                rain_area.draw(&Rectangle::new(b, RAIN_EDGE.stroke_width(1)))?;
+            }
+            crowd.fill(
+                rain_area.map_coordinate(&b[0]),
+                rain_area.map_coordinate(&b[1]),
+            );
+        }
+
+        let area = chart.plotting_area();
+        if let Some(v) = limit_value {
+            let line = vec![(0.0, v), (t_end, v)];
+            crowd.trace(line.iter().map(|pt| area.map_coordinate(pt)));
+            draw_path(area, line, LIMIT.stroke_width(2), Dash::Long)?;
+        }
+        let mut notes: Vec<(f64, Note)> = Vec::new();
+        for (i, (s, pk)) in p.hydrographs.iter().zip(&peaks).enumerate() {
+            for run in runs(timed(&s.values, dt)) {
+                crowd.trace(run.iter().map(|pt| area.map_coordinate(pt)));
+                draw_path(area, run, colour_of(i).stroke_width(3), dash_of(i))?;
+            }
+            if let Some((k, v)) = pk.filter(|&(_, v)| v > 0.0) {
+                let t = k as f64 * dt;
+                let text = format!(
+                    "{}: {} {} at {} h",
+                    s.label,
+                    fmt_value(v),
+                    p.flow_unit,
+                    fmt_hours(t)
+                );
+                notes.push((
+                    v,
+                    Note {
+                        anchor: area.map_coordinate(&(t, v)),
+                        text,
+                        colour: colour_of(i),
+                        marker: Some(shape_of(i)),
+                    },
+                ));
+            }
+        }
+        // The highest peak gets the first choice of place.
+        notes.sort_by(|a, b| b.0.total_cmp(&a.0));
+        let notes: Vec<Note> = notes.into_iter().map(|(_, n)| n).collect();
+        draw_notes(root, &notes, &mut crowd, bounds)?;
+        draw_legend(&foot, &legend, &rows)?;
+        Ok(())
+    })
+}
