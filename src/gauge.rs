@@ -1198,6 +1198,7 @@ fn parse_header(header: &[u8]) -> Option<(bool, DepthColumn)> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::util::calendar::format_timestamp;
     use approx::assert_abs_diff_eq;
     use proptest::prelude::*;
 

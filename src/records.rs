@@ -1345,19 +1345,19 @@ mod tests {
         // the calendar year of its start; years under 90 % of their
         // intervals are incomplete. Hourly from 1 March 2001 to 1 March
         // 2004: 2001 holds 306 of 365 days, 2004 holds 60 of 366.
-        let start = calendar::days_from_civil(2001, 3, 1) * 86_400;
-        let end = calendar::days_from_civil(2004, 3, 1) * 86_400;
+        let start = calendar::day_number(2001, 3, 1).unwrap_or_default() * 86_400;
+        let end = calendar::day_number(2004, 3, 1).unwrap_or_default() * 86_400;
         let n = ((end - start) / 3600) as usize;
         assert_eq!(
             incomplete_years(start, 3600, n),
             vec![(2001, 306 * 24, 365 * 24), (2004, 60 * 24, 366 * 24)]
         );
         // whole years: none
-        let start = calendar::days_from_civil(2001, 1, 1) * 86_400;
-        let end = calendar::days_from_civil(2003, 1, 1) * 86_400;
+        let start = calendar::day_number(2001, 1, 1).unwrap_or_default() * 86_400;
+        let end = calendar::day_number(2003, 1, 1).unwrap_or_default() * 86_400;
         assert!(incomplete_years(start, 3600, ((end - start) / 3600) as usize).is_empty());
         // 2 December to 31 December 2001 of a one-month record: 30 of 365 days
-        let start = calendar::days_from_civil(2001, 12, 2) * 86_400;
+        let start = calendar::day_number(2001, 12, 2).unwrap_or_default() * 86_400;
         assert_eq!(incomplete_years(start, 86_400, 30), vec![(2001, 30, 365)]);
     }
 

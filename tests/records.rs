@@ -6,7 +6,7 @@ use common::*;
 use std::fmt::Write;
 
 fn stamp(s: i64) -> String {
-    runnel::gauge::format_timestamp(s)[..16].replace('T', " ")
+    runnel::util::calendar::format_timestamp(s)[..16].replace('T', " ")
 }
 
 /// A gauge CSV holding the NRCS Type II 24-h storm at 6-min intervals,
