@@ -71,7 +71,7 @@ fn parse_gauge_10_5_million_rows(b: divan::Bencher) {
     for k in 1..=n {
         let t = start + k as i64 * 300;
         let d = if k % 97 < 5 { "0.02" } else { "0" };
-        text.push_str(&runnel::gauge::format_timestamp(t)[..16].replace('T', " "));
+        text.push_str(&runnel::util::calendar::format_timestamp(t)[..16].replace('T', " "));
         text.push(',');
         text.push_str(d);
         text.push('\n');

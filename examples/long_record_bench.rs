@@ -37,7 +37,7 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
             0.0
         };
         line.clear();
-        let ts = runnel::gauge::format_timestamp(start + k as i64 * 300);
+        let ts = runnel::util::calendar::format_timestamp(start + k as i64 * 300);
         let _ = write!(line, "{} {},{d:.3}", &ts[..10], &ts[11..16]);
         writeln!(w, "{line}")?;
     }

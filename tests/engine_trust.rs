@@ -241,7 +241,8 @@ fn a_mass_balance_off_by_more_than_a_tenth_of_a_percent_is_warned_about() {
 /// `storm_in` of rain spread over the 12 intervals starting at each of
 /// `storm_at` (interval indices).
 fn gauge(start: (i32, u32, u32), days: i64, interval_min: i64, storms: &[(usize, f64)]) -> String {
-    let t0 = runnel::gauge::days_from_civil(start.0, start.1, start.2) * 86_400;
+    let t0 =
+        runnel::util::calendar::day_number(start.0, start.1, start.2).unwrap_or_default() * 86_400;
     let dt = interval_min * 60;
     let n = (days * 86_400 / dt) as usize;
     let mut out = String::from("time,depth\n");
@@ -250,7 +251,7 @@ fn gauge(start: (i32, u32, u32), days: i64, interval_min: i64, storms: &[(usize,
             .iter()
             .filter(|(at, _)| (*at..at + 12).contains(&k))
             .fold(0.0, |a, (_, depth)| a + depth / 12.0);
-        let ts = runnel::gauge::format_timestamp(t0 + (k as i64 + 1) * dt);
+        let ts = runnel::util::calendar::format_timestamp(t0 + (k as i64 + 1) * dt);
         let _ = writeln!(out, "{} {},{d:.6}", &ts[..10], &ts[11..16]);
     }
     out
