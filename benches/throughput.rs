@@ -14,8 +14,8 @@ fn example() -> PathBuf {
 /// The demo study: 4 storms x 2 conditions, every series (no files written).
 #[divan::bench(sample_count = 20)]
 fn demo_study_compute(b: divan::Bencher) {
-    let study = runnel::scenario::load(&example()).unwrap_or_else(|e| panic!("{e}"));
-    b.bench_local(|| runnel::analysis::analyse(divan::black_box(&study)));
+    let study = runnel::input::scenario::load(&example()).unwrap_or_else(|e| panic!("{e}"));
+    b.bench_local(|| runnel::engine::analysis::analyse(divan::black_box(&study)));
 }
 
 /// The whole `runnel run` of the demo, PNGs and all, into a temporary folder.
@@ -29,35 +29,36 @@ fn demo_run_with_plots(b: divan::Bencher) {
 /// Storage-indication routing of 10 million steps through a 1000-row table.
 #[divan::bench(sample_count = 5)]
 fn route_10_million_steps(b: divan::Bencher) {
-    let storage = runnel::pond::StageStorage::from_stage_area(&[
+    let storage = runnel::methods::pond::StageStorage::from_stage_area(&[
         (100.0, 5000.0),
         (105.0, 15000.0),
         (110.0, 30000.0),
     ])
     .unwrap_or_else(|e| panic!("{e}"));
     let outlets = [
-        runnel::hydraulics::Outlet::CircularOrifice {
+        runnel::methods::hydraulics::Outlet::CircularOrifice {
             invert_ft: 100.0,
             diameter_ft: 0.5,
             cd: 0.61,
         },
-        runnel::hydraulics::Outlet::SharpCrestedWeir {
+        runnel::methods::hydraulics::Outlet::SharpCrestedWeir {
             crest_ft: 103.0,
             length_ft: 4.0,
             coefficient: 3.33,
             contractions: 0,
         },
     ];
-    let table = runnel::pond::PondTable::build(&storage, &outlets, None, 300.0, 0.01, 250_000.0)
-        .unwrap_or_else(|e| panic!("{e}"));
+    let table =
+        runnel::methods::pond::PondTable::build(&storage, &outlets, None, 300.0, 0.01, 250_000.0)
+            .unwrap_or_else(|e| panic!("{e}"));
     let n: usize = 10_000_000;
     let inflow: Vec<f64> = (0..n)
         .map(|k| 20.0 * ((k as f64 / 5000.0).sin().max(0.0)).powi(4))
         .collect();
-    let mut out = runnel::pond::Routed::default();
+    let mut out = runnel::methods::pond::Routed::default();
     b.counter(divan::counter::ItemsCount::new(n))
         .bench_local(|| {
-            runnel::pond::route_into(&table, divan::black_box(&inflow), 100.0, &mut out)
+            runnel::methods::pond::route_into(&table, divan::black_box(&inflow), 100.0, &mut out)
         });
 }
 
@@ -76,14 +77,14 @@ fn parse_gauge_10_5_million_rows(b: divan::Bencher) {
         text.push_str(d);
         text.push('\n');
     }
-    let opts = runnel::gauge::GaugeOptions {
+    let opts = runnel::input::gauge::GaugeOptions {
         interval_s: None,
         missing_zero: false,
         max_intervals: 50_000_000,
     };
     b.counter(divan::counter::ItemsCount::new(n))
         .bench_local(|| {
-            runnel::gauge::parse_gauge(divan::black_box(text.as_bytes()), &opts)
+            runnel::input::gauge::parse_gauge(divan::black_box(text.as_bytes()), &opts)
                 .map(|s| s.depth.len())
         });
 }
@@ -92,10 +93,10 @@ fn parse_gauge_10_5_million_rows(b: divan::Bencher) {
 #[divan::bench(sample_count = 5)]
 fn size_two_dimensions_four_storms(b: divan::Bencher) {
     let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data/sizing-two-dims.toml");
-    let study = runnel::scenario::load(&path).unwrap_or_else(|e| panic!("{e}"));
+    let study = runnel::input::scenario::load(&path).unwrap_or_else(|e| panic!("{e}"));
     b.bench_local(|| {
         let mut s = study.clone();
-        runnel::sizing::solve(&mut s).map(|z| z.outputs.len())
+        runnel::engine::sizing::solve(&mut s).map(|z| z.outputs.len())
     });
 }
 
@@ -119,7 +120,7 @@ fn flow_duration_10_5_million(b: divan::Bencher) {
     let fractions: Vec<f64> = (0..69)
         .map(|k| 10f64.powf(-4.0 + 4.0 * k as f64 / 68.0))
         .collect();
-    b.bench_local(|| runnel::stats::flow_duration(divan::black_box(&flows), &fractions));
+    b.bench_local(|| runnel::methods::stats::flow_duration(divan::black_box(&flows), &fractions));
 }
 
 /// Invented 5-minute rain for 100 years: a 3-hour storm every 4 days.
@@ -136,8 +137,8 @@ fn record_rain() -> Vec<f64> {
 }
 
 /// Events split by 6 h of dry 5-minute intervals, no antecedent adjustment.
-fn six_hour_events() -> runnel::moisture::EventOptions {
-    runnel::moisture::EventOptions {
+fn six_hour_events() -> runnel::methods::moisture::EventOptions {
+    runnel::methods::moisture::EventOptions {
         dry_gap_steps: 72,
         antecedent: None,
     }
@@ -151,11 +152,11 @@ fn event_excess_10_5_million(b: divan::Bencher) {
     let opts = six_hour_events();
     let mut out = vec![0.0; rain.len()];
     b.bench_local(|| {
-        runnel::moisture::event_excess_into(
+        runnel::methods::moisture::event_excess_into(
             divan::black_box(&rain),
             5.0 / 60.0,
             92.0,
-            runnel::runoff::Lambda::Standard,
+            runnel::methods::runoff::Lambda::Standard,
             &opts,
             &|_| 6,
             &mut out,
@@ -169,19 +170,22 @@ fn event_excess_10_5_million(b: divan::Bencher) {
 fn convolution_10_5_million(b: divan::Bencher) {
     let rain = record_rain();
     let opts = six_hour_events();
-    let excess = runnel::moisture::event_excess_in(
+    let excess = runnel::methods::moisture::event_excess_in(
         &rain,
         5.0 / 60.0,
         92.0,
-        runnel::runoff::Lambda::Standard,
+        runnel::methods::runoff::Lambda::Standard,
         &opts,
         &|_| 6,
     )
     .unwrap_or_else(|e| panic!("{e}"));
     let step_h = 5.0 / 60.0;
-    let tp = runnel::unit_hydrograph::time_to_peak_h(step_h, runnel::timing::lag_h(0.25));
-    let uh = runnel::unit_hydrograph::ordinates_cfs_per_in(
-        runnel::unit_hydrograph::Shape::Standard,
+    let tp = runnel::methods::unit_hydrograph::time_to_peak_h(
+        step_h,
+        runnel::methods::timing::lag_h(0.25),
+    );
+    let uh = runnel::methods::unit_hydrograph::ordinates_cfs_per_in(
+        runnel::methods::unit_hydrograph::Shape::Standard,
         8.0,
         tp,
         step_h,
@@ -189,6 +193,6 @@ fn convolution_10_5_million(b: divan::Bencher) {
     let mut q = vec![0.0; excess.len() + 1];
     b.bench_local(|| {
         q.fill(0.0);
-        runnel::unit_hydrograph::convolve_into(divan::black_box(&excess), &uh, &mut q);
+        runnel::methods::unit_hydrograph::convolve_into(divan::black_box(&excess), &uh, &mut q);
     });
 }

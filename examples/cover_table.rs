@@ -5,7 +5,7 @@
 
 fn main() {
     println!("| `land` key | table | cover | CN for soil A / B / C / D |\n|---|---|---|---|");
-    for c in runnel::cover::COVERS {
+    for c in runnel::methods::cover::COVERS {
         let cn: Vec<String> =
             c.cn.iter()
                 .map(|v| v.map(|x| format!("{x:.0}")).unwrap_or_else(|| "-".into()))
@@ -19,11 +19,11 @@ fn main() {
         );
     }
     println!("\n| sheet-flow `n` name | Manning n |\n|---|---:|");
-    for s in runnel::cover::SHEET_SURFACES {
+    for s in runnel::methods::cover::SHEET_SURFACES {
         println!("| `{}` | {} |", s.name, s.n);
     }
     println!("\n| shallow-flow `surface` | k in V = k s^0.5 (ft/s) |\n|---|---:|");
-    for s in runnel::cover::SHALLOW_SURFACES {
+    for s in runnel::methods::cover::SHALLOW_SURFACES {
         println!("| `{}` | {} |", s.name, s.k_fps);
     }
 }

@@ -143,7 +143,7 @@ pub enum Error {
     /// A storm or record cannot be simulated with these inputs (a pond that
     /// cannot be routed, a result that is not finite, a run too long).
     #[error("{0}")]
-    Simulation(#[from] crate::network::SimulationError),
+    Simulation(#[from] crate::engine::network::SimulationError),
     /// The run would need more memory than runnel allows itself.
     #[error("{message}")]
     TooLarge {

@@ -7,36 +7,23 @@
 //! routed by storage-indication -> comparison of conditions at points ->
 //! JSON, Markdown, CSV and PNG results.
 //!
-//! The pipeline reads top-down: [`scenario::load`] builds a validated
-//! [`model::Study`]; [`sizing::solve`] fixes any ranged outlet dimension;
-//! [`analysis::analyse`] runs every storm through [`network`];
-//! [`records::run`] does the long records; [`cli::run`] writes the report.
+//! The folders follow the data: [`input`] reads the scenario and gauge
+//! files and builds the validated [`model::Study`]; [`methods`] holds the
+//! published methods as pure functions; [`engine`] runs the study
+//! ([`engine::sizing::solve`] fixes ranged outlet dimensions,
+//! [`engine::analysis::analyse`] runs every storm through
+//! [`engine::network`], [`engine::records::run`] the long records);
+//! [`report`] turns results into output units and formats; [`cli`] writes
+//! the files and prints. [`util`] holds what several layers share.
 #![forbid(unsafe_code)]
 
-pub mod analysis;
 pub mod cli;
-pub mod cover;
+pub mod engine;
 pub mod error;
-pub mod gauge;
-pub mod graphical_peak;
-pub mod hydraulics;
-pub mod interp;
+pub mod input;
+pub mod methods;
 pub mod model;
-pub mod moisture;
-pub mod network;
-pub mod output;
-pub mod pond;
-pub mod rainfall;
-pub mod records;
 pub mod report;
-pub mod runoff;
-pub mod scenario;
-pub mod sizing;
-pub mod stats;
-pub mod storage_estimate;
-pub mod timing;
-pub mod unit_hydrograph;
-pub mod units;
 pub mod util;
 pub mod warning;
 

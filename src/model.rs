@@ -5,13 +5,13 @@
 //! `scenario::load`, which checks everything once; the simulation then
 //! needs no further checks.
 
-use crate::hydraulics::Outlet;
-use crate::pond::StageStorage;
-use crate::rainfall::{MassCurve, NrcsType};
-use crate::runoff::Lambda;
-use crate::timing::Segment;
-use crate::unit_hydrograph::Shape;
-use crate::units::UnitSystem;
+use crate::methods::hydraulics::Outlet;
+use crate::methods::pond::StageStorage;
+use crate::methods::rainfall::{MassCurve, NrcsType};
+use crate::methods::runoff::Lambda;
+use crate::methods::timing::Segment;
+use crate::methods::unit_hydrograph::Shape;
+use crate::util::units::UnitSystem;
 use crate::warning::Warning;
 use std::path::PathBuf;
 
@@ -159,12 +159,14 @@ impl Storm {
                 depth_in,
                 duration_h,
                 ..
-            } => crate::rainfall::hyetograph(curve, *depth_in, *duration_h, step_h, n_steps),
+            } => {
+                crate::methods::rainfall::hyetograph(curve, *depth_in, *duration_h, step_h, n_steps)
+            }
             StormRain::Gauge {
                 depth_in,
                 interval_h,
                 ..
-            } => crate::rainfall::resample_gauge(depth_in, *interval_h, step_h, n_steps),
+            } => crate::methods::rainfall::resample_gauge(depth_in, *interval_h, step_h, n_steps),
         }
     }
 }
@@ -282,8 +284,8 @@ pub const EMBANKMENT_WEIR_COEFFICIENT: f64 = 2.6;
 
 impl Pond {
     /// The embankment as a broad-crested weir above `top`, if there is a top.
-    pub fn embankment(&self) -> Option<crate::pond::Embankment> {
-        self.top_ft.map(|top| crate::pond::Embankment {
+    pub fn embankment(&self) -> Option<crate::methods::pond::Embankment> {
+        self.top_ft.map(|top| crate::methods::pond::Embankment {
             top_ft: top,
             crest_length_ft: self.top_length_ft,
             coefficient: EMBANKMENT_WEIR_COEFFICIENT,
@@ -307,7 +309,7 @@ impl Inflow {
     pub fn flow_at(&self, t_h: f64) -> f64 {
         match (self.table.first(), self.table.last()) {
             (Some(a), Some(b)) if t_h >= a.0 && t_h <= b.0 => {
-                crate::interp::linear(&self.table, t_h)
+                crate::util::interp::linear(&self.table, t_h)
             }
             _ => 0.0,
         }

@@ -582,7 +582,7 @@ impl fmt::Display for Warning {
             } => write!(
                 f,
                 "{at}: {value} is a {} % slope; did you mean {likely}? ({usual}; a bare slope is a ratio, so write \"%\" for a percentage)",
-                crate::units::short(*percent, 4)
+                crate::util::units::short(*percent, 4)
             ),
             Warning::ManningNUnusual {
                 at,

@@ -228,7 +228,7 @@ fn previous_results(parent: &Path) -> PathBuf {
         "runnel results folder: an earlier run's, made by tests/bad_input.rs\nstorm-10-yr.csv\nsummary.json\n",
     )
     .unwrap_or_else(|e| panic!("{e}"));
-    assert!(runnel::output::is_own_folder(&out));
+    assert!(runnel::cli::output::is_own_folder(&out));
     out
 }
 

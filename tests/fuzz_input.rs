@@ -14,7 +14,7 @@
 use proptest::prelude::*;
 use proptest::sample::select;
 use proptest::test_runner::TestRunner;
-use runnel::gauge::{GaugeOptions, parse_gauge};
+use runnel::input::gauge::{GaugeOptions, parse_gauge};
 use std::cell::Cell;
 use std::path::{Path, PathBuf};
 
@@ -413,7 +413,7 @@ fn write(dir: &Path, name: &str, bytes: &[u8]) -> PathBuf {
 /// (memory check, storms, records; not sizing), without writing anything.
 /// Returns whether it loaded.
 fn load_and_run(path: &Path) -> bool {
-    let mut study = match runnel::scenario::load(path) {
+    let mut study = match runnel::input::scenario::load(path) {
         Ok(s) => s,
         Err(e) => {
             // Every refusal is a message, never an empty one.
@@ -428,7 +428,7 @@ fn load_and_run(path: &Path) -> bool {
     }
     // Sizing is left out: it repeats the analysis many times, and a
     // generated range can make it take far too long for a unit of fuzzing.
-    match runnel::analysis::analyse(&study) {
+    match runnel::engine::analysis::analyse(&study) {
         Ok(a) => assert_eq!(a.storms.len(), study.storms.len()),
         // A storm that cannot be simulated is refused as input, with a message.
         Err(e) => {
@@ -436,7 +436,7 @@ fn load_and_run(path: &Path) -> bool {
             assert_eq!(e.exit_code(), 2);
         }
     }
-    let _ = runnel::records::run(&study, false);
+    let _ = runnel::engine::records::run(&study, false);
     true
 }
 

@@ -1,17 +1,23 @@
 //! Checks of the published methods through the library's own pipeline
 //! (rainfall pattern -> CN excess -> unit hydrograph -> convolution).
 
-use runnel::graphical_peak::{self, StormType};
-use runnel::rainfall::NrcsType;
-use runnel::runoff;
-use runnel::unit_hydrograph::{self, Shape};
+use runnel::methods::graphical_peak::{self, StormType};
+use runnel::methods::rainfall::NrcsType;
+use runnel::methods::runoff;
+use runnel::methods::unit_hydrograph::{self, Shape};
 
 /// Hydrograph (cfs) of one catchment in a Type II storm, with its step (h)
 /// by the contract rule.
 fn hydrograph(area_ac: f64, cn: f64, tc_h: f64, depth_in: f64) -> (Vec<f64>, f64) {
-    let step_h = runnel::scenario::default_step_h(tc_h);
+    let step_h = runnel::input::scenario::default_step_h(tc_h);
     let n = ((24.0 + 10.0 * tc_h + 2.0) / step_h).ceil() as usize;
-    let rain = runnel::rainfall::hyetograph(&NrcsType::II.mass_curve(), depth_in, 24.0, step_h, n);
+    let rain = runnel::methods::rainfall::hyetograph(
+        &NrcsType::II.mass_curve(),
+        depth_in,
+        24.0,
+        step_h,
+        n,
+    );
     let excess = runoff::excess_per_step_in(&rain, runoff::retention_in(cn), 0.2);
     let tp = unit_hydrograph::time_to_peak_h(step_h, 0.6 * tc_h);
     let uh = unit_hydrograph::ordinates_cfs_per_in(Shape::Standard, area_ac, tp, step_h);
@@ -75,7 +81,7 @@ fn hydrograph_volume_equals_runoff_depth_over_the_area() {
         (640.0, 61.0, 1.8, 8.0),
     ] {
         let (q, step_h) = hydrograph(area, cn, tc, p);
-        let vol = runnel::network::volume_ft3(&q, step_h);
+        let vol = runnel::engine::network::volume_ft3(&q, step_h);
         let want =
             runoff::runoff_depth_in(p, runoff::retention_in(cn), 0.2) / 12.0 * area * 43_560.0;
         assert!((vol - want).abs() <= 0.005 * want, "{vol} vs {want}");

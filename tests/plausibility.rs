@@ -363,7 +363,8 @@ fn the_shipped_scenarios_hold_no_slips() {
         "tc-long",
     ];
     for f in &files {
-        let study = runnel::scenario::load(f).unwrap_or_else(|e| panic!("{}: {e}", f.display()));
+        let study =
+            runnel::input::scenario::load(f).unwrap_or_else(|e| panic!("{}: {e}", f.display()));
         let name = f.file_name().map(|n| n.to_string_lossy().into_owned());
         let allowed: &[&str] = match name.as_deref() {
             Some("ponce.toml") => &["storm \"routing\", depth: 0.01 in"],
@@ -449,7 +450,7 @@ fn the_conditions_list_orders_the_study_with_the_baseline_first() {
         "p2 = \"3.2 in\"",
         "p2 = \"3.2 in\"\nconditions = [\"proposed\", \"existing\"]",
     )]);
-    let study = runnel::scenario::load(&path).unwrap_or_else(|e| panic!("{e}"));
+    let study = runnel::input::scenario::load(&path).unwrap_or_else(|e| panic!("{e}"));
     assert_eq!(study.conditions, ["existing", "proposed"]);
 }
 
@@ -469,7 +470,7 @@ fn limits_read_every_flow_unit_the_readme_lists() {
         ("3800 gpm", 3800.0 * cfs_per_gpm),
     ] {
         let (_dir, path) = variant(&[("limit = \"existing\"", &format!("limit = \"{limit}\""))]);
-        let study = runnel::scenario::load(&path).unwrap_or_else(|e| panic!("{limit}: {e}"));
+        let study = runnel::input::scenario::load(&path).unwrap_or_else(|e| panic!("{limit}: {e}"));
         match &study.points[0].limits[0] {
             Limit::Absolute { flow_cfs } => assert!(
                 (flow_cfs - cfs).abs() < 1e-9 * cfs,
@@ -487,7 +488,7 @@ fn limits_read_every_flow_unit_the_readme_lists() {
         ),
     ] {
         let (_dir, path) = variant(&[("limit = \"existing\"", &format!("limit = \"{limit}\""))]);
-        let study = runnel::scenario::load(&path).unwrap_or_else(|e| panic!("{limit}: {e}"));
+        let study = runnel::input::scenario::load(&path).unwrap_or_else(|e| panic!("{limit}: {e}"));
         match &study.points[0].limits[0] {
             Limit::PerArea { cfs_per_ac: q } => assert!(
                 (q - cfs_per_ac).abs() < 1e-9 * cfs_per_ac,

@@ -1,14 +1,15 @@
 //! Property tests of physical invariants over random inputs.
 
 use proptest::prelude::*;
-use runnel::rainfall::NrcsType;
-use runnel::runoff;
-use runnel::unit_hydrograph::{self, Shape};
+use runnel::methods::rainfall::NrcsType;
+use runnel::methods::runoff;
+use runnel::methods::unit_hydrograph::{self, Shape};
 
 fn run(area_ac: f64, cn: f64, tc_h: f64, depth_in: f64, pattern: NrcsType) -> (f64, f64, f64) {
-    let step_h = runnel::scenario::default_step_h(tc_h);
+    let step_h = runnel::input::scenario::default_step_h(tc_h);
     let n = ((24.0 + 6.0 * tc_h + 1.0) / step_h).ceil() as usize;
-    let rain = runnel::rainfall::hyetograph(&pattern.mass_curve(), depth_in, 24.0, step_h, n);
+    let rain =
+        runnel::methods::rainfall::hyetograph(&pattern.mass_curve(), depth_in, 24.0, step_h, n);
     let excess = runoff::excess_per_step_in(&rain, runoff::retention_in(cn), 0.2);
     let tp = unit_hydrograph::time_to_peak_h(step_h, 0.6 * tc_h);
     let uh = unit_hydrograph::ordinates_cfs_per_in(Shape::Standard, area_ac, tp, step_h);
@@ -16,7 +17,7 @@ fn run(area_ac: f64, cn: f64, tc_h: f64, depth_in: f64, pattern: NrcsType) -> (f
     let peak = q.iter().copied().fold(0.0, f64::max);
     (
         peak,
-        runnel::network::volume_ft3(&q, step_h),
+        runnel::engine::network::volume_ft3(&q, step_h),
         excess.iter().sum(),
     )
 }

@@ -13,7 +13,7 @@ fn stamp(s: i64) -> String {
 /// starting `pad_days` after `start_s`, padded with dry rows.
 fn type_ii_csv(depth_in: f64, start_s: i64, pad_days: i64, total_days: i64) -> String {
     let dt = 360;
-    let curve = runnel::rainfall::NrcsType::II.mass_curve();
+    let curve = runnel::methods::rainfall::NrcsType::II.mass_curve();
     let mut out = String::from("time,depth\n");
     let n = total_days * 86_400 / dt;
     let storm0 = pad_days * 86_400 / dt;
@@ -85,7 +85,7 @@ fn storms_further_apart_than_the_dry_gap_are_separate_events_and_closer_ones_one
     let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
     let start =
         runnel::util::calendar::day_number(2010, 7, 1).unwrap_or_else(|| panic!("a date")) * 86_400;
-    let s80 = runnel::runoff::retention_in(80.0);
+    let s80 = runnel::methods::runoff::retention_in(80.0);
     for (gap_h, separate) in [(30i64, true), (3i64, false)] {
         let mut csv = String::from("time,depth\n");
         let _ = writeln!(csv, "{},0", stamp(start + 3600));
@@ -108,10 +108,10 @@ fn storms_further_apart_than_the_dry_gap_are_separate_events_and_closer_ones_one
             .unwrap_or_else(|| panic!("no entry"));
         let got = num(&rec["runoff_depth"]);
         let want = if separate {
-            runnel::runoff::runoff_depth_in(2.0, s80, 0.2)
-                + runnel::runoff::runoff_depth_in(2.0, s80, 0.2)
+            runnel::methods::runoff::runoff_depth_in(2.0, s80, 0.2)
+                + runnel::methods::runoff::runoff_depth_in(2.0, s80, 0.2)
         } else {
-            runnel::runoff::runoff_depth_in(4.0, s80, 0.2)
+            runnel::methods::runoff::runoff_depth_in(4.0, s80, 0.2)
         };
         assert!((got - want).abs() < 1e-9, "gap {gap_h} h: {got} vs {want}");
         assert_eq!(rec["events"], if separate { 2 } else { 1 });

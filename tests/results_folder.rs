@@ -210,7 +210,7 @@ fn earlier_results_without_a_marker_are_replaced_but_not_with_a_stray_file() {
 fn the_committed_demo_results_may_be_replaced_by_the_readme_command() {
     let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("output/wrenfield-commons");
     let inputs = [example("wrenfield-commons.toml")];
-    let r = runnel::output::check_target(&demo, &inputs);
+    let r = runnel::cli::output::check_target(&demo, &inputs);
     assert!(r.is_ok(), "{:?}", r.err().map(|e| e.to_string()));
 }
 

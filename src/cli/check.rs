@@ -1,14 +1,14 @@
 //! `runnel check` (derived parameters, writes nothing) and `runnel
 //! estimate` (TR-55 chapter 6 first-cut pond storage).
 
-use crate::analysis;
+use crate::engine::analysis;
+use crate::engine::network;
 use crate::error::Error;
+use crate::methods::storage_estimate;
 use crate::model::{ElementKind, Study, Target};
-use crate::network;
 use crate::report::markdown::describe_outlet;
 use crate::report::summary::{self, Out};
-use crate::storage_estimate;
-use crate::units::{Quantity, sig};
+use crate::util::units::{Quantity, sig};
 use std::fmt::Write;
 use std::path::Path;
 
@@ -17,10 +17,10 @@ use std::path::Path;
 /// # Errors
 /// Bad input.
 pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
-    let study = crate::scenario::load(scenario)?;
+    let study = crate::input::scenario::load(scenario)?;
     crate::cli::run::check_memory(&study)?;
     // The records' gauges as `run` reads them (without simulating).
-    crate::records::validate(&study)?;
+    crate::engine::records::validate(&study)?;
     let a = analysis::analyse(&study)?;
     let s = summary::build(
         &study,
@@ -127,8 +127,10 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
             p.storage_kind
         );
         for (i, d) in p.outlets.iter().enumerate() {
-            let label =
-                crate::sizing::outlet_label(i, p.outlet_names.get(i).and_then(|n| n.as_deref()));
+            let label = crate::engine::sizing::outlet_label(
+                i,
+                p.outlet_names.get(i).and_then(|n| n.as_deref()),
+            );
             let _ = writeln!(t, "  {label}: {}", describe_outlet(d, o));
         }
         let _ = writeln!(
@@ -162,10 +164,10 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
 /// # Errors
 /// Bad input.
 pub fn estimate(scenario: &Path) -> Result<String, Error> {
-    let study = crate::scenario::load(scenario)?;
+    let study = crate::input::scenario::load(scenario)?;
     crate::cli::run::check_memory(&study)?;
     // The records' gauges as `run` reads them (without simulating).
-    crate::records::validate(&study)?;
+    crate::engine::records::validate(&study)?;
     let a = analysis::analyse(&study)?;
     let t = estimate_text(&study, &a);
     Ok(if t.is_empty() {

@@ -2,6 +2,7 @@
 
 pub mod check;
 pub mod init;
+pub mod output;
 pub mod run;
 
 pub use check::{check, estimate};

@@ -1,12 +1,12 @@
 //! `runnel run`: simulate, size, check, and write the results.
 
-use crate::analysis::{self, Analysis};
+use crate::cli::output::{self, Staging};
+use crate::engine::analysis::{self, Analysis};
+use crate::engine::network;
 use crate::error::Error;
 use crate::model::{ElementKind, Study};
-use crate::network;
-use crate::output::{self, Staging};
 use crate::report::{self, plot, summary};
-use crate::units::Quantity;
+use crate::util::units::Quantity;
 use rayon::prelude::*;
 use std::path::{Path, PathBuf};
 
@@ -46,7 +46,7 @@ pub fn now_utc() -> String {
 /// previous results stay in place).
 pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOutcome, Error> {
     let t0 = std::time::Instant::now();
-    let mut study = crate::scenario::load(scenario)?;
+    let mut study = crate::input::scenario::load(scenario)?;
     let t_load = t0.elapsed().as_secs_f64();
     check_memory(&study)?;
     // The results folder is judged before any work: runnel only replaces
@@ -58,10 +58,10 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
             .unwrap_or_else(|| default_out(scenario)),
         &inputs,
     )?;
-    let sized = crate::sizing::solve(&mut study)?;
+    let sized = crate::engine::sizing::solve(&mut study)?;
     let a = analysis::analyse(&study)?;
     let t1 = std::time::Instant::now();
-    let rec = crate::records::run(&study, progress)?;
+    let rec = crate::engine::records::run(&study, progress)?;
     let t_records = t1.elapsed().as_secs_f64();
     let t2 = std::time::Instant::now();
     let run_date = now_utc();
@@ -86,7 +86,7 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let stage = Staging::new(&out_dir, &inputs)?;
     let plots = write_plots(&study, &a, &stage)?;
     let mut all_plots = plots;
-    all_plots.extend(crate::records::write_plots(&study, &rec, &stage)?);
+    all_plots.extend(crate::engine::records::write_plots(&study, &rec, &stage)?);
     for st in &a.storms {
         let name = output::storm_csv_name(&study.storms[st.storm].name);
         stage.write(&name, report::csv::storm_csv(&study, st).as_bytes())?;
@@ -99,7 +99,7 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let md = report::markdown::render(&study, &s, &all_plots, &rec.markdown);
     stage.write("summary.md", md.as_bytes())?;
     if !study.sizing.is_empty() {
-        let text = crate::sizing::sized_scenario_text(&study, stage.target(), scenario);
+        let text = crate::engine::sizing::sized_scenario_text(&study, stage.target(), scenario);
         stage.write("sized-scenario.toml", text.as_bytes())?;
     }
     let committed = stage.commit()?;
@@ -149,8 +149,8 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         ));
     }
     for (z, d) in s.sized.iter().zip(&study.sizing) {
-        let label = crate::sizing::outlet_label(z.outlet, z.outlet_name.as_deref());
-        let value = crate::sizing::value_text(&study, d);
+        let label = crate::engine::sizing::outlet_label(z.outlet, z.outlet_name.as_deref());
+        let value = crate::engine::sizing::value_text(&study, d);
         if z.feasible {
             lines.push(format!(
                 "sized   {}, {label} {} = {value}{}",
@@ -263,7 +263,7 @@ pub fn estimate_memory(study: &Study) -> MemoryEstimate {
     let records = study
         .records
         .iter()
-        .map(|r| crate::records::estimate_bytes(study, r))
+        .map(|r| crate::engine::records::estimate_bytes(study, r))
         .max()
         .unwrap_or(0);
     MemoryEstimate {
@@ -399,7 +399,7 @@ fn write_plots(
                 ),
                 subtitle: format!(
                     "depth {} {du}, step {:.0} min; runnel {}",
-                    crate::units::sig(o.depth(storm.depth_in()), 3),
+                    crate::util::units::sig(o.depth(storm.depth_in()), 3),
                     study.step_h * 60.0,
                     env!("CARGO_PKG_VERSION")
                 ),
@@ -430,7 +430,7 @@ fn write_plots(
                     .unwrap_or_default();
                 let mut references = Vec::new();
                 for (k, d) in pond.outlets.iter().enumerate() {
-                    let label = crate::sizing::outlet_label(
+                    let label = crate::engine::sizing::outlet_label(
                         k,
                         pond.outlet_names.get(k).and_then(|n| n.as_deref()),
                     );
@@ -488,8 +488,8 @@ fn write_plots(
         .collect()
 }
 
-fn kind_word(d: &crate::hydraulics::Outlet) -> &'static str {
-    use crate::hydraulics::Outlet as D;
+fn kind_word(d: &crate::methods::hydraulics::Outlet) -> &'static str {
+    use crate::methods::hydraulics::Outlet as D;
     match d {
         D::CircularOrifice { .. } => "orifice invert",
         D::RectangularOrifice { .. } => "orifice invert",
@@ -503,7 +503,7 @@ fn kind_word(d: &crate::hydraulics::Outlet) -> &'static str {
 
 /// The printed line of one check at a point.
 fn comparison_line(c: &summary::ComparisonOut, fu: &str) -> String {
-    use crate::units::sig;
+    use crate::util::units::sig;
     let verdict = match c.pass {
         Some(true) => "meets",
         Some(false) => "EXCEEDS",

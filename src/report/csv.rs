@@ -2,10 +2,10 @@
 //! and element (pond outflow, stage and storage), then the points; units in
 //! every header.
 
+use crate::engine::network::StormResult;
 use crate::model::{ElementKind, Study};
-use crate::network::StormResult;
 use crate::report::summary::Out;
-use crate::units::Quantity;
+use crate::util::units::Quantity;
 use std::fmt::Write;
 
 /// The CSV text of one storm's hydrographs.

@@ -4,10 +4,10 @@
 //! design points, the catchment worksheet, the event table, the ponds, any
 //! sizing and long-record results, the plots and the warnings.
 
+use crate::engine::network;
 use crate::model::{ElementKind, Study};
-use crate::network;
 use crate::report::summary::{Out, Summary};
-use crate::units::{Quantity, sig};
+use crate::util::units::{Quantity, sig};
 use std::fmt::Write;
 
 fn f(v: f64, d: usize) -> String {
@@ -539,7 +539,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
                 m,
                 "| {} | {} | {} | {} to {} {unit} | {} | {} | {} | {} |",
                 z.pond,
-                crate::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
+                crate::engine::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
                 z.field,
                 sig(z.min, 4),
                 sig(z.max, 4),
@@ -556,7 +556,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
                 m,
                 "\n**No value of {}, {} {} from {} to {} {} meets every limit:** {}.",
                 crate::report::summary::kind_and_name("pond", &z.pond),
-                crate::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
+                crate::engine::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
                 z.field,
                 sig(z.min, 4),
                 sig(z.max, 4),
@@ -609,8 +609,8 @@ fn result_word(c: &crate::report::summary::ComparisonOut) -> String {
 }
 
 /// One-line description of an outlet in the scenario's units.
-pub fn describe_outlet(d: &crate::hydraulics::Outlet, o: Out) -> String {
-    use crate::hydraulics::Outlet as D;
+pub fn describe_outlet(d: &crate::methods::hydraulics::Outlet, o: Out) -> String {
+    use crate::methods::hydraulics::Outlet as D;
     let lu = o.unit(Quantity::Length);
     let l = |x: f64| f(o.length(x), 3);
     match d {

@@ -2,10 +2,10 @@
 //! `summary.json` is this structure, and the Markdown report and plots read
 //! it too.
 
-use crate::analysis::Analysis;
+use crate::engine::analysis::Analysis;
+use crate::engine::network;
 use crate::model::{ElementKind, Study};
-use crate::network;
-use crate::units::{Quantity, UnitSystem};
+use crate::util::units::{Quantity, UnitSystem};
 use serde::Serialize;
 
 /// Units of the numbers in the summary.
@@ -392,7 +392,7 @@ impl Out {
     pub fn weir_coefficient(&self, c_us: f64) -> f64 {
         match self.0 {
             UnitSystem::Us => c_us,
-            UnitSystem::Si => c_us * crate::units::M_PER_FT.sqrt(),
+            UnitSystem::Si => c_us * crate::util::units::M_PER_FT.sqrt(),
         }
     }
 }
@@ -434,8 +434,8 @@ pub fn build(
             .map(|(n, _)| n.clone())
             .collect();
         let p2 = study.p2_in.unwrap_or(1.0);
-        let lag = crate::timing::lag_h(c.tc_h);
-        let tp = crate::unit_hydrograph::time_to_peak_h(step_h, lag);
+        let lag = crate::methods::timing::lag_h(c.tc_h);
+        let tp = crate::methods::unit_hydrograph::time_to_peak_h(step_h, lag);
         let uh = network::catchment_uh(c, step_h);
         catchments.push(CatchmentOut {
             name: e.name.clone(),
@@ -444,7 +444,7 @@ pub fn build(
             area: o.area(c.area_ac),
             cn: c.cn,
             lambda: c.lambda.ratio(),
-            cn_used: crate::runoff::cn_from_retention_in(c.retention_in),
+            cn_used: crate::methods::runoff::cn_from_retention_in(c.retention_in),
             retention: o.depth(c.retention_in),
             tc_h: c.tc_h,
             lag_h: lag,
@@ -466,9 +466,9 @@ pub fn build(
                 .map(|s| {
                     let t = s.travel(p2);
                     let (n, surface) = match s {
-                        crate::timing::Segment::Sheet { n, .. }
-                        | crate::timing::Segment::Channel { n, .. } => (Some(*n), None),
-                        crate::timing::Segment::Shallow { surface, .. } => {
+                        crate::methods::timing::Segment::Sheet { n, .. }
+                        | crate::methods::timing::Segment::Channel { n, .. } => (Some(*n), None),
+                        crate::methods::timing::Segment::Shallow { surface, .. } => {
                             (None, Some(surface.clone()))
                         }
                     };

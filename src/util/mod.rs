@@ -1,3 +1,5 @@
 //! Small shared utilities that several layers need, one concept per module.
 
 pub mod calendar;
+pub mod interp;
+pub mod units;

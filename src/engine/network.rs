@@ -7,17 +7,17 @@
 //! by its `lag`, is added to what reaches its `to`. Every condition of a
 //! storm shares one time base: values at `t = k * step`, k = 0..=n.
 
+use crate::methods::pond::{self, PondSummary, PondTable, Routed};
+use crate::methods::runoff;
+use crate::methods::timing;
+use crate::methods::unit_hydrograph;
 use crate::model::{Element, ElementKind, Pond, Study, Target};
-use crate::pond::{self, PondSummary, PondTable, Routed};
-use crate::runoff;
-use crate::timing;
-use crate::unit_hydrograph;
 
 /// Hours of simulation allowed after the last rain or inflow (contract: 7 days).
 pub const TAIL_H: f64 = 7.0 * 24.0;
 
 /// Largest number of steps one storm may run (the scenario's limit).
-pub const MAX_RUN_STEPS: usize = crate::scenario::MAX_STEPS;
+pub const MAX_RUN_STEPS: usize = crate::input::scenario::MAX_STEPS;
 
 /// Why a storm could not be simulated. Each is a problem with the input
 /// (exit code 2): a value the methods cannot carry to a finite answer.
@@ -162,7 +162,7 @@ pub struct PondResult {
 
 /// Peak value and its index.
 pub fn peak(values: &[f64]) -> (f64, usize) {
-    match crate::stats::max_first(values) {
+    match crate::methods::stats::max_first(values) {
         Some((v, i)) if v > 0.0 => (v, i),
         _ => (0.0, 0),
     }
@@ -170,7 +170,7 @@ pub fn peak(values: &[f64]) -> (f64, usize) {
 
 /// Volume of a hydrograph (ft3), trapezoidal in time.
 pub fn volume_ft3(flow_cfs: &[f64], step_h: f64) -> f64 {
-    volume_from_sum_ft3(crate::stats::sum(flow_cfs), flow_cfs, step_h)
+    volume_from_sum_ft3(crate::methods::stats::sum(flow_cfs), flow_cfs, step_h)
 }
 
 /// [`volume_ft3`] from the already known sum of the same `flow_cfs`.
@@ -694,7 +694,7 @@ pub fn rating_rows(p: &Pond) -> Vec<(f64, f64, f64)> {
             (
                 h,
                 p.storage.volume_ft3(h),
-                crate::hydraulics::total_flow_cfs(&p.outlets, h),
+                crate::methods::hydraulics::total_flow_cfs(&p.outlets, h),
             )
         })
         .collect()

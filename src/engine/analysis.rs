@@ -2,11 +2,11 @@
 //! engineer's report needs: limits at points, pond limits, and the TR-55
 //! graphical-method cross-check of every catchment.
 
-use crate::graphical_peak::{self, StormType};
+use crate::engine::network::{self, StormResult};
+use crate::methods::graphical_peak::{self, StormType};
+use crate::methods::rainfall::NrcsType;
+use crate::methods::runoff;
 use crate::model::{ElementKind, Limit, Pond, Study, Target};
-use crate::network::{self, StormResult};
-use crate::rainfall::NrcsType;
-use crate::runoff;
 use crate::warning::Warning;
 use rayon::prelude::*;
 
@@ -350,13 +350,13 @@ pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
         let (h, gp) = (g.hydrograph_peak_cfs, g.graphical_peak_cfs);
         let lambda_std = matches!(&study.elements[g.element].kind, ElementKind::Catchment(c) if c.lambda == runoff::Lambda::Standard);
         if lambda_std && h > 0.0 && gp > 0.0 && ((h - gp).abs() / gp) > 0.25 {
-            let f = crate::units::Quantity::Flow.output_factor(study.units);
-            let u = crate::units::Quantity::Flow.output_unit(study.units);
+            let f = crate::util::units::Quantity::Flow.output_factor(study.units);
+            let u = crate::util::units::Quantity::Flow.output_unit(study.units);
             warnings.push(Warning::GraphicalPeakDiffers {
                 catchment: study.elements[g.element].name.clone(),
                 storm: study.storms[g.storm].name.clone(),
-                hydrograph: format!("{} {u}", crate::units::sig(h * f, 3)),
-                graphical: format!("{} {u}", crate::units::sig(gp * f, 3)),
+                hydrograph: format!("{} {u}", crate::util::units::sig(h * f, 3)),
+                graphical: format!("{} {u}", crate::util::units::sig(gp * f, 3)),
             });
         }
     }
@@ -399,12 +399,12 @@ pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
         let Some(p) = pond_of(study, i) else { continue };
         for (k, o) in p.outlets.iter().enumerate() {
             let crown = match o {
-                crate::hydraulics::Outlet::CircularOrifice {
+                crate::methods::hydraulics::Outlet::CircularOrifice {
                     invert_ft,
                     diameter_ft,
                     ..
                 } => invert_ft + diameter_ft,
-                crate::hydraulics::Outlet::RectangularOrifice {
+                crate::methods::hydraulics::Outlet::RectangularOrifice {
                     invert_ft,
                     height_ft,
                     ..
@@ -425,7 +425,7 @@ pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
             if max_stage.is_finite() && max_stage < crown {
                 warnings.push(Warning::OrificeNeverSubmerged {
                     pond: study.elements[i].name.clone(),
-                    outlet: crate::sizing::outlet_label(
+                    outlet: crate::engine::sizing::outlet_label(
                         k,
                         p.outlet_names.get(k).and_then(|n| n.as_deref()),
                     ),
@@ -483,9 +483,9 @@ pub fn area_balance(study: &Study) -> Vec<Warning> {
     if study.baseline_empty {
         return out;
     }
-    let au = crate::units::Quantity::Area.output_unit(study.units);
-    let af = crate::units::Quantity::Area.output_factor(study.units);
-    let show = |ac: f64| format!("{} {au}", crate::units::sig(ac * af, 4));
+    let au = crate::util::units::Quantity::Area.output_unit(study.units);
+    let af = crate::util::units::Quantity::Area.output_factor(study.units);
+    let show = |ac: f64| format!("{} {au}", crate::util::units::sig(ac * af, 4));
     for (p, pt) in study.points.iter().enumerate() {
         let base = area_to_point_ac(study, p, study.baseline);
         for c in study.simulated_conditions() {

@@ -6,7 +6,7 @@
 //! is a preliminary estimate to start a pond design from; runnel's routing
 //! (storage-indication) is the real check.
 
-use crate::graphical_peak::StormType;
+use crate::methods::graphical_peak::StormType;
 
 /// Lowest qo/qi of TR-55 Figure 6-1 (from memory).
 pub const RATIO_MIN: f64 = 0.1;

@@ -6,19 +6,19 @@
 //! as soon as it has been added to what it drains to; only the points'
 //! series are kept (they are compared across conditions).
 
+use crate::cli::output::{self, Staging};
+use crate::engine::network;
+use crate::engine::network::SimulationError;
 use crate::error::Error;
+use crate::methods::moisture;
+use crate::methods::pond;
+use crate::methods::stats;
+use crate::methods::unit_hydrograph;
 use crate::model::{ElementKind, MoistureMode, Record, Study, Target};
-use crate::moisture;
-use crate::network;
-use crate::network::SimulationError;
-use crate::output::{self, Staging};
-use crate::pond;
 use crate::report::plot;
 use crate::report::summary::{ComparisonOut, DurationOut, Out, PondCheckOut};
-use crate::stats;
-use crate::unit_hydrograph;
-use crate::units::{Quantity, sig};
 use crate::util::calendar;
+use crate::util::units::{Quantity, sig};
 use crate::warning::Warning;
 use serde::Serialize;
 use std::fmt::Write;
@@ -341,7 +341,7 @@ fn entry(
         steps: n,
         rain_depth: o.depth(rain_in),
         runoff_depth: if area_ac > 0.0 {
-            o.depth(st.volume_ft3 / (area_ac * crate::units::FT2_PER_AC) * 12.0)
+            o.depth(st.volume_ft3 / (area_ac * crate::util::units::FT2_PER_AC) * 12.0)
         } else {
             0.0
         },
@@ -392,7 +392,7 @@ pub fn rain_at_step(r: &Record) -> Result<std::borrow::Cow<'_, [f64]>, Error> {
         if (r.step_h - r.interval_h).abs() < 1e-12 && r.depth_in.len() == n {
             std::borrow::Cow::Borrowed(&r.depth_in)
         } else {
-            std::borrow::Cow::Owned(crate::rainfall::resample_gauge(
+            std::borrow::Cow::Owned(crate::methods::rainfall::resample_gauge(
                 &r.depth_in,
                 r.interval_h,
                 r.step_h,
@@ -449,7 +449,10 @@ pub fn input_warnings(study: &Study) -> Vec<Warning> {
         }
         for e in &study.elements {
             if let ElementKind::Catchment(c) = &e.kind {
-                let tp = unit_hydrograph::time_to_peak_h(r.step_h, crate::timing::lag_h(c.tc_h));
+                let tp = unit_hydrograph::time_to_peak_h(
+                    r.step_h,
+                    crate::methods::timing::lag_h(c.tc_h),
+                );
                 if r.step_h > 0.25 * tp {
                     out.push(Warning::RecordStepCoarse {
                         record: r.name.clone(),
@@ -601,8 +604,10 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                 match &e.kind {
                     ElementKind::Catchment(cat) => {
                         let clock = std::time::Instant::now();
-                        let tp =
-                            unit_hydrograph::time_to_peak_h(step_h, crate::timing::lag_h(cat.tc_h));
+                        let tp = unit_hydrograph::time_to_peak_h(
+                            step_h,
+                            crate::methods::timing::lag_h(cat.tc_h),
+                        );
                         let uh = unit_hydrograph::ordinates_cfs_per_in(
                             cat.shape,
                             cat.area_ac,
@@ -665,7 +670,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                             }
                         }
                         generated_ft3[i] =
-                            runoff_in / 12.0 * cat.area_ac * crate::units::FT2_PER_AC;
+                            runoff_in / 12.0 * cat.area_ac * crate::util::units::FT2_PER_AC;
                         rec_entry = entry(
                             r,
                             Subject {
@@ -737,7 +742,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         res.timings.routing_s += clock.elapsed().as_secs_f64();
                         let mut stage = inflow;
                         let st = series_stats(&out, r.start_s, step_s, step_h);
-                        let area = crate::analysis::area_to_element_ac(study, i, c);
+                        let area = crate::engine::analysis::area_to_element_ac(study, i, c);
                         rec_entry = entry(
                             r,
                             Subject {
@@ -845,7 +850,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                             0.0
                         };
                         rec_entry.mass_balance_error = Some(mb);
-                        if mb.abs() > crate::analysis::MASS_BALANCE_WARN {
+                        if mb.abs() > crate::engine::analysis::MASS_BALANCE_WARN {
                             res.warnings.push(Warning::MassBalance {
                                 pond: e.name.clone(),
                                 run: run_name.clone(),
@@ -853,7 +858,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                                 error: mb,
                             });
                         }
-                        if vin > 0.0 && ds > crate::analysis::MASS_BALANCE_WARN * vin {
+                        if vin > 0.0 && ds > crate::engine::analysis::MASS_BALANCE_WARN * vin {
                             res.warnings.push(Warning::RecordWaterLeft {
                                 record: r.name.clone(),
                                 condition: cname.clone(),
@@ -923,11 +928,11 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                 // when the record ends (in ponds, in the falling limbs of
                 // the last storms, or lagged past the end).
                 let entered: f64 = (0..study.elements.len())
-                    .filter(|&j| crate::analysis::reaches(study, j, pi))
+                    .filter(|&j| crate::engine::analysis::reaches(study, j, pi))
                     .map(|j| generated_ft3[j])
                     .sum();
                 let missing = entered - st.volume_ft3;
-                if entered > 0.0 && missing > crate::analysis::MASS_BALANCE_WARN * entered {
+                if entered > 0.0 && missing > crate::engine::analysis::MASS_BALANCE_WARN * entered {
                     res.warnings.push(Warning::RecordWaterLeft {
                         record: r.name.clone(),
                         condition: cname.clone(),
@@ -937,7 +942,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         what: "of the runoff generated upstream has not reached it",
                     });
                 }
-                let area = crate::analysis::area_to_point_ac(study, pi, c);
+                let area = crate::engine::analysis::area_to_point_ac(study, pi, c);
                 // The table's fractions and the plot's, in one ranking.
                 let mut wanted = EXCEEDANCES.to_vec();
                 wanted.extend(plot_exceedances());
@@ -1096,8 +1101,8 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         limit: None,
                         limit_text: duration_rule_text(dc),
                         pass: Some(pass),
-                        area: o.area(crate::analysis::area_to_point_ac(study, pi, c)),
-                        baseline_area: Some(o.area(crate::analysis::area_to_point_ac(
+                        area: o.area(crate::engine::analysis::area_to_point_ac(study, pi, c)),
+                        baseline_area: Some(o.area(crate::engine::analysis::area_to_point_ac(
                             study,
                             pi,
                             study.baseline,
@@ -1132,7 +1137,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                         limit: None,
                         limit_text: duration_rule_text(dc),
                         pass: None,
-                        area: o.area(crate::analysis::area_to_point_ac(study, pi, c)),
+                        area: o.area(crate::engine::analysis::area_to_point_ac(study, pi, c)),
                         baseline_area: None,
                         duration: None,
                     });

@@ -3,7 +3,7 @@
 //!
 //! A pond is described by a [`StageStorage`] (from a stage-area table,
 //! volumes by the conic-frustum rule, or from a stage-volume table), its
-//! outlets ([`crate::hydraulics::Outlet`], free outfall, parallel outlets add
+//! outlets ([`crate::methods::hydraulics::Outlet`], free outfall, parallel outlets add
 //! up) and an optional [`Embankment`] that spills as a broad-crested weir
 //! above its top. [`PondTable::build`] tabulates stage, storage, outflow and
 //! the storage-indication value `2S/dt + O` on a fine stage grid, and
@@ -19,7 +19,7 @@
 //! ft2, flow cfs, time step s. A `PondError` quotes values in the units it
 //! was given; its row numbers count from 1.
 
-use crate::hydraulics::{Outlet, total_flow_cfs};
+use crate::methods::hydraulics::{Outlet, total_flow_cfs};
 
 /// Largest number of rows a [`PondTable`] may have.
 pub const MAX_TABLE_ROWS: usize = 5_000_000;

@@ -175,7 +175,7 @@ impl MassCurve {
     /// Cumulative depth fraction at time fraction `x`, linear between rows,
     /// 0 before the start and 1 after the end.
     pub fn fraction_at(&self, x: f64) -> f64 {
-        crate::interp::linear(&self.points, x)
+        crate::util::interp::linear(&self.points, x)
     }
 
     /// The rows of the curve.

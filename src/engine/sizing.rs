@@ -20,11 +20,11 @@
 //! reported infeasible, naming the limits that fail at every size, when
 //! none meets them.
 
-use crate::analysis::{self, reaches};
+use crate::engine::analysis::{self, reaches};
+use crate::engine::network::{self, StormResult};
 use crate::error::Error;
-use crate::hydraulics::Outlet;
+use crate::methods::hydraulics::Outlet;
 use crate::model::{ElementKind, SizedDim, SizedField, Study};
-use crate::network::{self, StormResult};
 use crate::report::summary::{SizedOut, kind_and_name};
 use rayon::prelude::*;
 use std::path::Path;
@@ -300,13 +300,17 @@ pub fn with_unit(study: &Study, d: &SizedDim, v: f64) -> String {
 
 /// A sized value (internal units: ft or degrees) with its unit in `units`;
 /// a diameter, width or height also in inches or millimetres.
-pub fn sized_value_text(units: crate::units::UnitSystem, field: SizedField, v: f64) -> String {
-    use crate::units::sig;
+pub fn sized_value_text(
+    units: crate::util::units::UnitSystem,
+    field: SizedField,
+    v: f64,
+) -> String {
+    use crate::util::units::sig;
     if field == SizedField::Angle {
         return format!("{} deg", sig(v, 4));
     }
     let o = crate::report::summary::Out(units);
-    let lu = o.unit(crate::units::Quantity::Length);
+    let lu = o.unit(crate::util::units::Quantity::Length);
     let main = format!("{} {lu}", sig(o.length(v), 4));
     if !matches!(
         field,
@@ -315,8 +319,8 @@ pub fn sized_value_text(units: crate::units::UnitSystem, field: SizedField, v: f
         return main;
     }
     match units {
-        crate::units::UnitSystem::Us => format!("{main} ({} in)", sig(v * 12.0, 4)),
-        crate::units::UnitSystem::Si => {
+        crate::util::units::UnitSystem::Us => format!("{main} ({} in)", sig(v * 12.0, 4)),
+        crate::util::units::UnitSystem::Si => {
             format!("{main} ({} mm)", sig(o.length(v) * 1000.0, 4))
         }
     }
@@ -367,8 +371,8 @@ fn zero_limit_reason(
     storm: usize,
     condition: usize,
 ) -> Option<String> {
-    let fu = crate::units::Quantity::Flow.output_unit(study.units);
-    let au = crate::units::Quantity::Area.output_unit(study.units);
+    let fu = crate::util::units::Quantity::Flow.output_unit(study.units);
+    let au = crate::util::units::Quantity::Area.output_unit(study.units);
     let p = &study.points[point];
     let text = p.limit_text.get(storm).cloned().unwrap_or_default();
     Some(match p.limits.get(storm)? {
@@ -632,7 +636,7 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
             unit: if d.field == SizedField::Angle {
                 "deg"
             } else {
-                o.unit(crate::units::Quantity::Length)
+                o.unit(crate::util::units::Quantity::Length)
             },
             value: conv(v),
             min: conv(d.min),
@@ -722,7 +726,7 @@ pub fn value_text(study: &Study, d: &SizedDim) -> String {
 pub fn sized_scenario_text(study: &Study, out_dir: &Path, _scenario: &Path) -> String {
     let text = &study.provenance.scenario_text;
     let o = crate::report::summary::Out(study.units);
-    let lu = o.unit(crate::units::Quantity::Length);
+    let lu = o.unit(crate::util::units::Quantity::Length);
     let mut edits: Vec<(std::ops::Range<usize>, String)> = Vec::new();
     for d in &study.sizing {
         let ElementKind::Pond(p) = &study.elements[d.element].kind else {

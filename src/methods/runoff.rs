@@ -70,7 +70,7 @@ pub fn cn_from_retention_in(s_in: f64) -> f64 {
 /// # Example
 /// TR-55 (1986) Table 2-1 (transcribed) gives 2.89 in for P = 5 in, CN 80:
 /// ```
-/// use runnel::runoff::{retention_in, runoff_depth_in};
+/// use runnel::methods::runoff::{retention_in, runoff_depth_in};
 /// let q = runoff_depth_in(5.0, retention_in(80.0), 0.2);
 /// assert!((q - 2.89).abs() < 0.006);
 /// ```

@@ -5,7 +5,7 @@
 //! transcribed) and Table 16-5 (gamma shape m against the peak rate factor,
 //! transcribed); Tp = D/2 + L (Bedient, Huber & Vieux eq. 2-17).
 
-use crate::units::FT2_PER_AC;
+use crate::util::units::FT2_PER_AC;
 
 /// NEH 630 ch. 16 Table 16-1 (transcribed): t/Tp and q/qp.
 const TABLE_16_1: [(f64, f64); 33] = [
@@ -82,7 +82,7 @@ impl Shape {
                 if t_over_tp >= 5.0 {
                     0.0
                 } else {
-                    crate::interp::linear(&TABLE_16_1, t_over_tp)
+                    crate::util::interp::linear(&TABLE_16_1, t_over_tp)
                 }
             }
             Shape::Gamma { m } => {

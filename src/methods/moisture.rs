@@ -20,7 +20,7 @@
 
 use std::collections::VecDeque;
 
-use crate::runoff::{Lambda, runoff_depth_in};
+use crate::methods::runoff::{Lambda, runoff_depth_in};
 
 /// Length of the antecedent window: five days, in hours.
 const ANTECEDENT_WINDOW_H: f64 = 120.0;
@@ -492,7 +492,7 @@ pub fn continuous_excess_in(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::runoff::{excess_per_step_in, retention_in};
+    use crate::methods::runoff::{excess_per_step_in, retention_in};
     use proptest::prelude::*;
 
     fn always_july(_: usize) -> u32 {

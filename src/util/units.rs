@@ -312,7 +312,7 @@ pub fn split_number(text: &str) -> Result<(f64, &str), UnitError> {
 /// Converts a unit-bearing string to the internal unit of `quantity`.
 ///
 /// ```
-/// use runnel::units::{parse_quantity, Quantity, UnitSystem};
+/// use runnel::util::units::{parse_quantity, Quantity, UnitSystem};
 /// // 18 in is 1.5 ft; a bare number is in the scenario's system.
 /// assert_eq!(parse_quantity("18 in", Quantity::Length, UnitSystem::Us), Ok(1.5));
 /// assert!(parse_quantity("5 ft", Quantity::Area, UnitSystem::Us).is_err());

@@ -9,17 +9,17 @@
 pub mod context;
 pub mod raw;
 
-use crate::cover;
 use crate::error::{Error, InputError, SourceText};
-use crate::gauge;
-use crate::hydraulics::Outlet;
+use crate::input::gauge;
+use crate::methods::cover;
+use crate::methods::hydraulics::Outlet;
+use crate::methods::pond::StageStorage;
+use crate::methods::rainfall::{MassCurve, NrcsType};
+use crate::methods::runoff::{self, Lambda};
+use crate::methods::timing::{self, Section, Segment};
+use crate::methods::unit_hydrograph::{self, Shape};
 use crate::model::*;
-use crate::pond::StageStorage;
-use crate::rainfall::{MassCurve, NrcsType};
-use crate::runoff::{self, Lambda};
-use crate::timing::{self, Section, Segment};
-use crate::unit_hydrograph::{self, Shape};
-use crate::units::{self, Quantity, UnitSystem};
+use crate::util::units::{self, Quantity, UnitSystem};
 use crate::warning::Warning;
 use raw::*;
 use sha2::{Digest, Sha256};
@@ -81,7 +81,7 @@ pub fn load(path: &Path) -> Result<Study, Error> {
     study.warnings.extend(b.warnings);
     study
         .warnings
-        .extend(crate::records::input_warnings(&study));
+        .extend(crate::engine::records::input_warnings(&study));
     Ok(study)
 }
 
@@ -1468,7 +1468,7 @@ impl<'a> Builder<'a> {
             if let ElementKind::Catchment(c) = &e.kind {
                 let tp = unit_hydrograph::time_to_peak_h(step_h, timing::lag_h(c.tc_h));
                 let base_h = c.shape.time_base_over_tp() * tp;
-                if base_h > crate::network::TAIL_H {
+                if base_h > crate::engine::network::TAIL_H {
                     self.warnings.push(Warning::Note(format!(
                         "catchment \"{}\": its unit hydrograph lasts {base_h:.0} h, longer than the 7 days a storm runs after its rain; the end of its runoff falls outside the run",
                         e.name
@@ -1505,7 +1505,7 @@ impl<'a> Builder<'a> {
                     .unwrap_or(0.0)
                     .max(p.top_ft.unwrap_or(f64::NEG_INFINITY));
                 let vmax = p.storage.volume_ft3(top + 0.5);
-                if let Err(err) = crate::network::pond_table_to(p, step_h * 3600.0, vmax) {
+                if let Err(err) = crate::engine::network::pond_table_to(p, step_h * 3600.0, vmax) {
                     let span = raw
                         .pond
                         .get(i - raw.catchment.len())
@@ -1591,7 +1591,9 @@ impl<'a> Builder<'a> {
     /// file name (`10/yr` and `10-yr` both become `10-yr`) would write the
     /// same result files: an input error naming both.
     fn check_file_name_parts(&self, raw: &RawScenario) -> R<()> {
-        use crate::output::{pond_plot_name, record_plot_base, storm_csv_name, storm_plot_name};
+        use crate::cli::output::{
+            pond_plot_name, record_plot_base, storm_csv_name, storm_plot_name,
+        };
         let storm = raw.storm.first().map_or_else(
             || "STORM".to_string(),
             |s| s.get_ref().name.get_ref().clone(),
@@ -1663,7 +1665,7 @@ impl<'a> Builder<'a> {
             let mut seen: HashMap<String, &Spanned<String>> = HashMap::new();
             for (n, file) in names {
                 let name = n.get_ref().trim();
-                let part = crate::output::slug(name);
+                let part = crate::cli::output::slug(name);
                 if let Some(other) = seen.get(&part) {
                     let (l, _) = self.src.line_col(other.span().start);
                     return Err(self
@@ -1689,7 +1691,7 @@ impl<'a> Builder<'a> {
     /// and storm "a" at point "b-c" both give `storm-a-b-c.png`).
     fn check_result_files(&self, study: &Study) -> R<()> {
         let mut seen: HashMap<String, String> = HashMap::new();
-        for (file, from) in crate::output::result_files(study) {
+        for (file, from) in crate::cli::output::result_files(study) {
             if file.len() > 255 {
                 return Err(self
                     .src
@@ -2629,7 +2631,7 @@ impl<'a> Builder<'a> {
                 Quantity::Length,
                 &format!("{bctx}, depth"),
             )?;
-            let rows = crate::pond::basin_stage_area(bottom, length, width, side, depth)
+            let rows = crate::methods::pond::basin_stage_area(bottom, length, width, side, depth)
                 .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
             let s = StageStorage::from_stage_area(&rows)
                 .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
@@ -2671,7 +2673,10 @@ impl<'a> Builder<'a> {
             let name = match &o.get_ref().name {
                 Some(n) => {
                     let t = n.get_ref().trim().to_string();
-                    let nctx = format!("{ctx}, {}, name", crate::sizing::outlet_label(i, None));
+                    let nctx = format!(
+                        "{ctx}, {}, name",
+                        crate::engine::sizing::outlet_label(i, None)
+                    );
                     if t.is_empty() {
                         return Err(self
                             .err(&n.span(), &nctx, "the outlet name is empty")
@@ -2690,7 +2695,7 @@ impl<'a> Builder<'a> {
                 }
                 None => None,
             };
-            let label = crate::sizing::outlet_label(i, name.as_deref());
+            let label = crate::engine::sizing::outlet_label(i, name.as_deref());
             outlet_names.push(name);
             let (outlet, s) = self.outlet(o, &format!("{ctx}, {label}"), i)?;
             let w = self.outlet_warnings(o.get_ref(), &format!("{ctx}, {label}"));
@@ -3590,7 +3595,7 @@ impl<'a> Builder<'a> {
                 };
                 let span = rr.moisture.as_ref().map(|m| m.span()).unwrap_or(r.span());
                 return Err(self
-                    .err(&span, &format!("{ctx}, moisture"), crate::moisture::MoistureError::ContinuousUnavailable.to_string())
+                    .err(&span, &format!("{ctx}, moisture"), crate::methods::moisture::MoistureError::ContinuousUnavailable.to_string())
                     .expected("moisture = \"event\"")
                     .hint("no published soil-moisture-accounting formulation could be verified for this version; see the README, \"Long records\""));
             }
