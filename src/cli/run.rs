@@ -99,7 +99,18 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let md = report::markdown::render(&study, &s, &all_plots, &rec.markdown);
     stage.write("summary.md", md.as_bytes())?;
     if !study.sizing.is_empty() {
-        let text = crate::engine::sizing::sized_scenario_text(&study, stage.target(), scenario);
+        // Paths in the sized copy are written relative to the results
+        // folder; both folders are made absolute here, once.
+        let scenario_dir = match scenario.parent() {
+            Some(d) if !d.as_os_str().is_empty() => d,
+            _ => Path::new("."),
+        };
+        let absolute = |p: &Path| std::path::absolute(p).unwrap_or_else(|_| p.to_path_buf());
+        let text = crate::input::scenario::sized::sized_scenario_text(
+            &study,
+            &absolute(scenario_dir),
+            &absolute(stage.target()),
+        );
         stage.write("sized-scenario.toml", text.as_bytes())?;
     }
     let committed = stage.commit()?;

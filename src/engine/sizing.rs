@@ -27,7 +27,6 @@ use crate::methods::hydraulics::Outlet;
 use crate::model::{ElementKind, SizedDim, SizedField, Study};
 use crate::report::summary::{SizedOut, kind_and_name};
 use rayon::prelude::*;
-use std::path::Path;
 
 /// Results of sizing, for the report.
 #[derive(Debug, Clone, Default)]
@@ -685,7 +684,7 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
 }
 
 /// The value of a sized field of an outlet (ft or degrees).
-fn current_value(outlet: &Outlet, field: SizedField) -> Option<f64> {
+pub fn current_value(outlet: &Outlet, field: SizedField) -> Option<f64> {
     Some(match (outlet, field) {
         (
             Outlet::CircularOrifice { diameter_ft, .. } | Outlet::Riser { diameter_ft, .. },
@@ -719,120 +718,4 @@ pub fn value_text(study: &Study, d: &SizedDim) -> String {
     };
     v.map(|v| with_unit(study, d, v))
         .unwrap_or_else(|| "-".into())
-}
-
-/// The scenario text with every range replaced by its value and every file
-/// path rewritten to run from `out_dir`.
-pub fn sized_scenario_text(study: &Study, out_dir: &Path, _scenario: &Path) -> String {
-    let text = &study.provenance.scenario_text;
-    let o = crate::report::summary::Out(study.units);
-    let lu = o.unit(crate::util::units::Quantity::Length);
-    let mut edits: Vec<(std::ops::Range<usize>, String)> = Vec::new();
-    for d in &study.sizing {
-        let ElementKind::Pond(p) = &study.elements[d.element].kind else {
-            continue;
-        };
-        let Some(outlet) = p.outlets.get(d.outlet) else {
-            continue;
-        };
-        let Some(v) = current_value(outlet, d.field) else {
-            continue;
-        };
-        let rep = if d.field == SizedField::Angle {
-            format!("{v:.4}")
-        } else {
-            // Shortest text that reads back as the same number, so that the
-            // sized copy reproduces the run exactly.
-            format!("\"{} {lu}\"", o.length(v))
-        };
-        edits.push((d.span.clone(), rep));
-    }
-    let abs_out = if out_dir.is_absolute() {
-        out_dir.to_path_buf()
-    } else {
-        std::env::current_dir()
-            .map(|d| d.join(out_dir))
-            .unwrap_or_else(|_| out_dir.to_path_buf())
-    };
-    let base = std::fs::canonicalize(&abs_out).unwrap_or(abs_out);
-    for (span, path) in &study.provenance.path_spans {
-        let abs = std::fs::canonicalize(path).unwrap_or_else(|_| path.clone());
-        let rel = relative(&abs, &base).unwrap_or(abs);
-        edits.push((span.clone(), toml_string(&rel.to_string_lossy())));
-    }
-    edits.sort_by_key(|e| std::cmp::Reverse(e.0.start));
-    let mut out = text.clone();
-    for (span, rep) in edits {
-        if span.end <= out.len()
-            && out.is_char_boundary(span.start)
-            && out.is_char_boundary(span.end)
-        {
-            out.replace_range(span, &rep);
-        }
-    }
-    format!(
-        "# Written by runnel {} with every sized outlet dimension fixed at its chosen value.\n{out}",
-        env!("CARGO_PKG_VERSION")
-    )
-}
-
-/// `s` as a TOML basic string: `"` and `\\` escaped, control characters as
-/// `\\uXXXX` (or their short escapes), every other character as it is.
-pub fn toml_string(s: &str) -> String {
-    let mut out = String::with_capacity(s.len() + 2);
-    out.push('"');
-    for c in s.chars() {
-        match c {
-            '"' => out.push_str("\\\""),
-            '\\' => out.push_str("\\\\"),
-            '\n' => out.push_str("\\n"),
-            '\t' => out.push_str("\\t"),
-            '\r' => out.push_str("\\r"),
-            c if c.is_control() => out.push_str(&format!("\\u{:04X}", c as u32)),
-            c => out.push(c),
-        }
-    }
-    out.push('"');
-    out
-}
-
-/// `path` relative to `base` (both absolute).
-fn relative(path: &Path, base: &Path) -> Option<std::path::PathBuf> {
-    let p: Vec<_> = path.components().collect();
-    let b: Vec<_> = base.components().collect();
-    let common = p.iter().zip(&b).take_while(|(x, y)| x == y).count();
-    if common == 0 {
-        return None;
-    }
-    let mut out = std::path::PathBuf::new();
-    for _ in common..b.len() {
-        out.push("..");
-    }
-    for c in &p[common..] {
-        out.push(c);
-    }
-    Some(out)
-}
-
-#[cfg(test)]
-mod tests {
-    use super::toml_string;
-
-    #[test]
-    fn toml_strings_read_back_as_written() {
-        // TOML 1.0, "String": basic strings escape `"`, `\` and control
-        // characters; every other character is written as it is.
-        for s in [
-            "plain.csv",
-            "Ville\u{301}/pluie.csv",
-            "C:\\data\\rain.csv",
-            "say \"when\"",
-            "tab\there\u{7f}\u{1}",
-        ] {
-            let doc = format!("k = {}", toml_string(s));
-            let t: toml::Table = toml::from_str(&doc).unwrap_or_else(|e| panic!("{e}: {doc}"));
-            assert_eq!(t["k"].as_str(), Some(s), "{doc}");
-        }
-        assert_eq!(toml_string("e\u{301}"), "\"e\u{301}\"");
-    }
 }

@@ -8,6 +8,7 @@
 
 pub mod context;
 pub mod raw;
+pub mod sized;
 
 use crate::error::{Error, InputError, SourceText};
 use crate::input::gauge;
