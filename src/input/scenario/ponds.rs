@@ -1,0 +1,308 @@
+//! The `[[pond]]` section: stage-storage, top, and its outlets.
+
+use super::*;
+
+pub(super) fn unreachable_storage<T>() -> R<T> {
+    Err(InputError::new(Path::new(""), "internal: pond storage"))
+}
+
+impl Builder<'_> {
+    pub(super) fn pond(
+        &mut self,
+        rp: &RawPond,
+        span: &std::ops::Range<usize>,
+        ctx: &str,
+    ) -> R<(Pond, Vec<SizedDim>)> {
+        let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
+        let af = Quantity::SectionArea.bare_factor(self.units).unwrap_or(1.0);
+        let vf = Quantity::Volume.bare_factor(self.units).unwrap_or(1.0);
+        let given = [
+            rp.stage_area.is_some(),
+            rp.stage_volume.is_some(),
+            rp.basin.is_some(),
+        ]
+        .iter()
+        .filter(|x| **x)
+        .count();
+        if given != 1 {
+            return Err(self
+                .err(
+                    span,
+                    ctx,
+                    if given == 0 {
+                        "the pond has no storage"
+                    } else {
+                        "the pond's storage is given more than once"
+                    },
+                )
+                .expected("exactly one of `stage_area`, `stage_volume` or `basin`"));
+        }
+        let (storage, storage_kind, table_top) = if let Some(t) = &rp.stage_area {
+            let rows = self.table_rows(t, &format!("{ctx}, stage_area"), lf, af)?;
+            self.bounded_rows(
+                &rows,
+                &t.span(),
+                &format!("{ctx}, stage_area"),
+                [
+                    (Quantity::Length, "stage", None),
+                    (Quantity::SectionArea, "area", None),
+                ],
+            )?;
+            let s = StageStorage::from_stage_area(&rows).map_err(|e| {
+                self.err(&t.span(), &format!("{ctx}, stage_area"), e.to_string())
+                    .expected(
+                        "[stage, area] rows with stages increasing and areas >= 0, not decreasing",
+                    )
+            })?;
+            (
+                s,
+                "stage-area (conic frustum between rows)",
+                rows.last().map(|r| r.0),
+            )
+        } else if let Some(t) = &rp.stage_volume {
+            let rows = self.table_rows(t, &format!("{ctx}, stage_volume"), lf, vf)?;
+            self.bounded_rows(
+                &rows,
+                &t.span(),
+                &format!("{ctx}, stage_volume"),
+                [
+                    (Quantity::Length, "stage", None),
+                    (Quantity::Volume, "volume", None),
+                ],
+            )?;
+            let s = StageStorage::from_stage_volume(&rows).map_err(|e| self.err(&t.span(), &format!("{ctx}, stage_volume"), e.to_string()).expected("[stage, volume] rows with stages increasing and volumes >= 0, not decreasing"))?;
+            (s, "stage-volume", rows.last().map(|r| r.0))
+        } else if let Some(b) = &rp.basin {
+            let rb = b.get_ref();
+            let bctx = format!("{ctx}, basin");
+            let bottom = self.elevation(
+                self.req(&rb.bottom, &b.span(), &bctx, "bottom", "100.0 (elevation)")?,
+                &format!("{bctx}, bottom"),
+            )?;
+            let length = self.positive(
+                self.req(&rb.length, &b.span(), &bctx, "length", "\"80 ft\"")?,
+                Quantity::Length,
+                &format!("{bctx}, length"),
+            )?;
+            let width = self.positive(
+                self.req(&rb.width, &b.span(), &bctx, "width", "\"40 ft\"")?,
+                Quantity::Length,
+                &format!("{bctx}, width"),
+            )?;
+            let side_raw = self.req(
+                &rb.side,
+                &b.span(),
+                &bctx,
+                "side",
+                "3.0 (horizontal per vertical)",
+            )?;
+            let side = self.num(side_raw, &format!("{bctx}, side"))?;
+            if side < 0.0 {
+                return Err(self
+                    .err(
+                        &side_raw.span(),
+                        &format!("{bctx}, side"),
+                        "the side slope cannot be negative",
+                    )
+                    .expected("0 or more (horizontal per vertical)"));
+            }
+            let depth = self.positive(
+                self.req(&rb.depth, &b.span(), &bctx, "depth", "\"6 ft\"")?,
+                Quantity::Length,
+                &format!("{bctx}, depth"),
+            )?;
+            let rows = crate::methods::pond::basin_stage_area(bottom, length, width, side, depth)
+                .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
+            let s = StageStorage::from_stage_area(&rows)
+                .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
+            (
+                s,
+                "basin geometry (stage-area, conic frustum)",
+                Some(bottom + depth),
+            )
+        } else {
+            unreachable_storage()?
+        };
+        let bottom = storage.bottom_ft();
+        let top_ft = match &rp.top {
+            Some(t) => {
+                let v = self.elevation(t, &format!("{ctx}, top"))?;
+                if v <= bottom {
+                    return Err(self
+                        .err(
+                            &t.span(),
+                            &format!("{ctx}, top"),
+                            "the top of embankment is not above the pond bottom",
+                        )
+                        .expected(format!("an elevation above {}", bottom / lf)));
+                }
+                Some(v)
+            }
+            None if rp.basin.is_some() => table_top,
+            None => None,
+        };
+        let mut outlets = Vec::new();
+        let mut sized = Vec::new();
+        if rp.outlet.is_empty() {
+            return Err(self
+                .err(span, ctx, "the pond has no outlet")
+                .expected("at least one [[pond.outlet]]"));
+        }
+        let mut outlet_names: Vec<Option<String>> = Vec::new();
+        for (i, o) in rp.outlet.iter().enumerate() {
+            let name = match &o.get_ref().name {
+                Some(n) => {
+                    let t = n.get_ref().trim().to_string();
+                    let nctx = format!(
+                        "{ctx}, {}, name",
+                        crate::engine::sizing::outlet_label(i, None)
+                    );
+                    if t.is_empty() {
+                        return Err(self
+                            .err(&n.span(), &nctx, "the outlet name is empty")
+                            .expected("a name such as \"low-flow orifice\", or no `name` key"));
+                    }
+                    if let Some(k) = outlet_names.iter().position(|x| x.as_deref() == Some(&t)) {
+                        return Err(self
+                            .err(
+                                &n.span(),
+                                &nctx,
+                                format!("outlet {} of this pond is already named \"{t}\"", k + 1),
+                            )
+                            .expected("each outlet of a pond named once"));
+                    }
+                    Some(t)
+                }
+                None => None,
+            };
+            let label = crate::engine::sizing::outlet_label(i, name.as_deref());
+            outlet_names.push(name);
+            let (outlet, s) = self.outlet(o, &format!("{ctx}, {label}"), i)?;
+            let w = self.outlet_warnings(o.get_ref(), &format!("{ctx}, {label}"));
+            self.warnings.extend(w);
+            let low = outlet.lowest_ft();
+            if low < bottom - 1e-9 {
+                let sp = o
+                    .get_ref()
+                    .invert
+                    .as_ref()
+                    .or(o.get_ref().crest.as_ref())
+                    .map(|x| x.span())
+                    .unwrap_or(o.span());
+                return Err(self
+                    .err(
+                        &sp,
+                        &format!("{ctx}, {label}"),
+                        format!(
+                            "the outlet is below the pond bottom ({} < {})",
+                            low / lf,
+                            bottom / lf
+                        ),
+                    )
+                    .expected(
+                        "an invert or crest at or above the lowest stage of the storage table",
+                    ));
+            }
+            if let Some(top) = top_ft
+                && low >= top
+            {
+                self.warnings.push(Warning::OutletAboveTop {
+                    pond: rp.name.get_ref().clone(),
+                    outlet: label.clone(),
+                });
+            }
+            outlets.push(outlet);
+            sized.extend(s);
+        }
+        let start_ft = match &rp.start {
+            Some(s) => {
+                let v = self.elevation(s, &format!("{ctx}, start"))?;
+                if v < bottom - 1e-9 {
+                    return Err(self
+                        .err(
+                            &s.span(),
+                            &format!("{ctx}, start"),
+                            "the starting water surface is below the pond bottom",
+                        )
+                        .expected(format!("an elevation of at least {}", bottom / lf)));
+                }
+                if let Some(top) = top_ft
+                    && v > top + 1e-9
+                {
+                    return Err(self
+                        .err(
+                            &s.span(),
+                            &format!("{ctx}, start"),
+                            format!(
+                                "the starting water surface {} is above the top of embankment {}",
+                                units::short(v / lf, 6),
+                                units::short(top / lf, 6)
+                            ),
+                        )
+                        .expected(format!(
+                            "a starting water surface at or below the top ({})",
+                            units::short(top / lf, 6)
+                        ))
+                        .hint("check `start` and `top`: a pond cannot start overtopped"));
+                }
+                Some(v)
+            }
+            None => None,
+        };
+        let top_length_ft = match &rp.top_length {
+            Some(t) => self.positive(t, Quantity::Length, &format!("{ctx}, top_length"))?,
+            None => match top_ft {
+                Some(t) => storage.area_at_ft2(t).max(1.0).sqrt(),
+                None => 0.0,
+            },
+        };
+        let min_freeboard_ft = match &rp.min_freeboard {
+            Some(v) => {
+                if top_ft.is_none() {
+                    return Err(self
+                        .err(
+                            &v.span(),
+                            &format!("{ctx}, min_freeboard"),
+                            "freeboard needs a top of embankment",
+                        )
+                        .expected("`top = ...` on the pond"));
+                }
+                let f = self.qty(v, Quantity::Length, &format!("{ctx}, min_freeboard"))?;
+                if f < 0.0 {
+                    return Err(self
+                        .err(
+                            &v.span(),
+                            &format!("{ctx}, min_freeboard"),
+                            format!("a freeboard of {} is negative", show(v.get_ref())),
+                        )
+                        .expected("a freeboard of zero or more, such as \"1 ft\""));
+                }
+                Some(f)
+            }
+            None => None,
+        };
+        let max_drain_time_h = match &rp.max_drain_time {
+            Some(v) => Some(self.positive(v, Quantity::Time, &format!("{ctx}, max_drain_time"))?),
+            None => None,
+        };
+        let grid_step_ft = match self.units {
+            UnitSystem::Us => 0.01,
+            UnitSystem::Si => 0.003 / units::M_PER_FT,
+        };
+        Ok((
+            Pond {
+                storage,
+                storage_kind,
+                outlets,
+                outlet_names,
+                start_ft,
+                top_ft,
+                top_length_ft,
+                min_freeboard_ft,
+                max_drain_time_h,
+                grid_step_ft,
+            },
+            sized,
+        ))
+    }
+}

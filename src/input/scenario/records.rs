@@ -1,0 +1,161 @@
+//! The `[[record]]` section: long rainfall records for continuous simulation.
+
+use super::*;
+
+impl Builder<'_> {
+    pub(super) fn record(&mut self, r: &Spanned<RawRecord>) -> R<Record> {
+        let rr = r.get_ref();
+        let name = rr.name.get_ref().clone();
+        let ctx = format!("record \"{name}\"");
+        let g = self.req(&rr.gauge, &r.span(), &ctx, "gauge", "\"rain/hourly.csv\"")?;
+        let (series, path) = self.gauge(g, &rr.interval, &rr.missing, &ctx, MAX_STEPS)?;
+        let interval_h = series.interval_s as f64 / 3600.0;
+        let step_h = match &rr.step {
+            Some(s) => {
+                let v = self.positive(s, Quantity::Time, &format!("{ctx}, step"))?;
+                let n = series.depth.len() as f64 * interval_h / v;
+                if n > MAX_STEPS as f64 {
+                    return Err(self
+                        .err(&s.span(), &format!("{ctx}, step"), format!("the record would need {} steps, more than runnel's limit of {MAX_STEPS}", n as u64))
+                        .expected("a coarser step")
+                        .hint(format!("use a step of at least {}", format_step_up(series.depth.len() as f64 * interval_h / MAX_STEPS as f64))));
+                }
+                // The record must be a whole number of steps, or its last
+                // step would hold only part of an interval's rain.
+                if (n - n.round()).abs() > 1e-6 * n.max(1.0) {
+                    return Err(self
+                        .err(
+                            &s.span(),
+                            &format!("{ctx}, step"),
+                            format!(
+                                "the step of {} does not divide the record ({} intervals of {}): it would need {n:.3} steps",
+                                format_step_up(v),
+                                series.depth.len(),
+                                format_step_up(interval_h)
+                            ),
+                        )
+                        .expected("a step that divides the record, best the gauge interval or a divisor of it")
+                        .hint(format!("use `step = \"{}\"` (the gauge interval)", format_step_up(interval_h))));
+                }
+                v
+            }
+            None => interval_h,
+        };
+        let moisture = match rr.moisture.as_ref().map(|m| m.get_ref().as_str()) {
+            None | Some("event") => {
+                let dry_gap_h = match &rr.dry_gap {
+                    Some(d) => self.positive(d, Quantity::Time, &format!("{ctx}, dry_gap"))?,
+                    None => 6.0,
+                };
+                let antecedent = match &rr.antecedent {
+                    Some(a) if a.get_ref() == "amc" => true,
+                    Some(a) if a.get_ref() == "none" => false,
+                    Some(a) => {
+                        return Err(self
+                            .err(
+                                &a.span(),
+                                &format!("{ctx}, antecedent"),
+                                format!("unknown antecedent rule \"{}\"", a.get_ref()),
+                            )
+                            .expected("\"amc\" or \"none\""));
+                    }
+                    None => false,
+                };
+                let mut growing_months = [false; 12];
+                match &rr.growing_months {
+                    Some(m) => {
+                        for &x in m.get_ref() {
+                            if !(1..=12).contains(&x) {
+                                return Err(self
+                                    .err(
+                                        &m.span(),
+                                        &format!("{ctx}, growing_months"),
+                                        format!("{x} is not a month"),
+                                    )
+                                    .expected("month numbers 1..12"));
+                            }
+                            growing_months[(x - 1) as usize] = true;
+                        }
+                    }
+                    None => (3..9).for_each(|i| growing_months[i] = true),
+                }
+                MoistureMode::Event {
+                    dry_gap_h,
+                    antecedent,
+                    growing_months,
+                }
+            }
+            Some("continuous") => {
+                let p = self.req(
+                    &rr.pet,
+                    &r.span(),
+                    &ctx,
+                    "pet",
+                    "12 monthly values of depth per day",
+                )?;
+                if p.get_ref().len() != 12 {
+                    return Err(self
+                        .err(
+                            &p.span(),
+                            &format!("{ctx}, pet"),
+                            format!("{} values given", p.get_ref().len()),
+                        )
+                        .expected("12 monthly values, January first"));
+                }
+                let mut pet = [0.0; 12];
+                for (i, v) in p.get_ref().iter().enumerate() {
+                    let x = self.qty(
+                        &Spanned::new(p.span(), v.clone()),
+                        Quantity::DepthPerDay,
+                        &format!("{ctx}, pet"),
+                    )?;
+                    if x < 0.0 {
+                        return Err(self
+                            .err(
+                                &p.span(),
+                                &format!("{ctx}, pet"),
+                                format!("month {} is negative", i + 1),
+                            )
+                            .expected("depths of zero or more"));
+                    }
+                    pet[i] = x;
+                }
+                let _ = MoistureMode::Continuous {
+                    pet_in_per_day: pet,
+                };
+                let span = rr.moisture.as_ref().map(|m| m.span()).unwrap_or(r.span());
+                return Err(self
+                    .err(&span, &format!("{ctx}, moisture"), crate::methods::moisture::MoistureError::ContinuousUnavailable.to_string())
+                    .expected("moisture = \"event\"")
+                    .hint("no published soil-moisture-accounting formulation could be verified for this version; see the README, \"Long records\""));
+            }
+            Some(other) => {
+                let span = rr.moisture.as_ref().map(|m| m.span()).unwrap_or(r.span());
+                return Err(self
+                    .err(
+                        &span,
+                        &format!("{ctx}, moisture"),
+                        format!("unknown moisture accounting \"{other}\""),
+                    )
+                    .expected("\"event\" or \"continuous\""));
+            }
+        };
+        Ok(Record {
+            name,
+            path,
+            depth_in: {
+                // Converted in place: a long record's depths are large.
+                let f = self.depth_factor();
+                let mut d = series.depth;
+                if f != 1.0 {
+                    d.iter_mut().for_each(|x| *x *= f);
+                }
+                d
+            },
+            interval_h,
+            step_h,
+            start_s: series.start_s,
+            moisture,
+        })
+    }
+}
