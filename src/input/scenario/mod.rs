@@ -6,20 +6,24 @@
 // boxing every one of them would only add noise.
 #![allow(clippy::result_large_err)]
 
-pub mod context;
-pub mod raw;
-pub mod sized;
-mod values;
-mod plausibility;
-mod names;
-mod storms;
 mod catchments;
-mod ponds;
-mod outlets;
+pub mod context;
+mod elements;
 mod inflows;
+mod names;
+mod outlets;
+mod plausibility;
 mod points;
+mod ponds;
+pub mod raw;
 mod records;
+mod refs;
+pub mod sized;
+mod steps;
+mod storms;
+mod values;
 
+use self::{elements::RawElement, inflows::*, values::*};
 use crate::error::{Error, InputError, SourceText};
 use crate::input::gauge;
 use crate::methods::cover;
@@ -33,7 +37,6 @@ use crate::model::*;
 use crate::util::units::{self, Quantity, UnitSystem};
 use crate::warning::Warning;
 use raw::*;
-use self::{inflows::*, names::*, values::*};
 use sha2::{Digest, Sha256};
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
@@ -285,17 +288,6 @@ pub const SPILLWAY_C_US: (f64, f64) = (2.3, 3.4);
 /// Largest weir coefficient accepted at all (either system).
 pub const MAX_WEIR_COEFFICIENT: f64 = 20.0;
 
-/// One element's shared keys, collected before its kind is built.
-struct Pending {
-    name: String,
-    name_span: std::ops::Range<usize>,
-    conditions: Option<Spanned<NameList>>,
-    to: Option<Spanned<String>>,
-    lag: Option<Spanned<RawValue>>,
-    table_span: std::ops::Range<usize>,
-    ctx: String,
-}
-
 impl<'a> Builder<'a> {
     fn err(&self, span: &std::ops::Range<usize>, ctx: &str, msg: impl Into<String>) -> InputError {
         self.src.error_at(span.start, msg).context(ctx.to_string())
@@ -325,7 +317,9 @@ impl<'a> Builder<'a> {
         Ok(p)
     }
 
-    fn build(&mut self, raw: RawScenario) -> R<Study> {
+    /// The scenario-wide keys: the unit system (set on the builder), `p2`
+    /// (in) and the memory limit (bytes).
+    fn settings(&mut self, raw: &RawScenario) -> R<(Option<f64>, u64)> {
         if let Some(u) = &raw.units {
             self.units = match u.get_ref().to_ascii_lowercase().as_str() {
                 "us" => UnitSystem::Us,
@@ -364,657 +358,37 @@ impl<'a> Builder<'a> {
             })?,
             None => DEFAULT_MEMORY_LIMIT_BYTES,
         };
+        Ok((p2_in, memory_limit_bytes))
+    }
 
-        // Names: unique across every element and point (they are `to` targets).
-        let mut names: HashMap<String, (&'static str, std::ops::Range<usize>)> = HashMap::new();
-        let mut check_name = |this: &Self, n: &Spanned<String>, kind: &'static str| -> R<()> {
-            this.name_text(n, &format!("{kind}, name"))?;
-            let s = n.get_ref().trim();
-            if let Some((k, first)) = names.get(s) {
-                let (l, _) = this.src.line_col(first.start);
-                return Err(this
-                    .err(
-                        &n.span(),
-                        &format!("{kind} \"{s}\", name"),
-                        format!("the name \"{s}\" is already used by a {k} (line {l})"),
-                    )
-                    .expected("a name used once"));
-            }
-            names.insert(s.to_string(), (kind, n.span()));
-            Ok(())
-        };
-        for c in &raw.catchment {
-            check_name(self, &c.get_ref().name, "catchment")?;
-        }
-        for p in &raw.pond {
-            check_name(self, &p.get_ref().name, "pond")?;
-        }
-        for i in &raw.inflow {
-            check_name(self, &i.get_ref().name, "inflow")?;
-        }
-        for p in &raw.point {
-            check_name(self, &p.get_ref().name, "point")?;
-        }
-        let mut storm_names: HashMap<String, std::ops::Range<usize>> = HashMap::new();
-        for s in &raw.storm {
-            let n = &s.get_ref().name;
-            self.name_text(n, "storm, name")?;
-            if let Some(first) = storm_names.get(n.get_ref()) {
-                let (l, _) = self.src.line_col(first.start);
-                return Err(self
-                    .err(
-                        &n.span(),
-                        &format!("storm \"{}\", name", n.get_ref()),
-                        format!("the storm name is already used (line {l})"),
-                    )
-                    .expected("each storm named once"));
-            }
-            storm_names.insert(n.get_ref().clone(), n.span());
-        }
-        let mut record_names: HashMap<String, ()> = HashMap::new();
-        for r in &raw.record {
-            let n = &r.get_ref().name;
-            self.name_text(n, "record, name")?;
-            if record_names.insert(n.get_ref().clone(), ()).is_some() {
-                return Err(self
-                    .err(
-                        &n.span(),
-                        &format!("record \"{}\", name", n.get_ref()),
-                        "the record name is already used",
-                    )
-                    .expected("each record named once"));
-            }
-        }
-
+    /// The validated study, section by section: names, conditions, storms,
+    /// elements and their links, points, the step, records; then the checks
+    /// that need all of them.
+    fn build(&mut self, raw: RawScenario) -> R<Study> {
+        let (p2_in, memory_limit_bytes) = self.settings(&raw)?;
+        let raw_elements = RawElement::all(&raw);
+        self.check_names(&raw, &raw_elements)?;
         self.check_file_name_parts(&raw)?;
-
-        // Conditions, in order of first mention, baseline first.
-        // Conditions: the baseline first, then the `conditions` list, or
-        // (without a list) the names in order of first mention.
-        let baseline_name = raw
-            .baseline
-            .as_ref()
-            .map(|b| b.get_ref().clone())
-            .unwrap_or_else(|| "existing".to_string());
-        if let Some(b) = &raw.baseline {
-            self.name_text(b, "baseline")?;
-        }
-        let mut mentions: Vec<Mention> = Vec::new();
-        let mut mention = |list: &Option<Spanned<NameList>>, kind: &str, name: &Spanned<String>| {
-            if let Some(l) = list {
-                for c in &l.get_ref().0 {
-                    mentions.push(Mention {
-                        name: c.clone(),
-                        span: l.span(),
-                        ctx: format!("{kind} \"{}\", condition", name.get_ref()),
-                    });
-                }
-            }
-        };
-        for c in &raw.catchment {
-            mention(&c.get_ref().condition, "catchment", &c.get_ref().name);
-        }
-        for p in &raw.pond {
-            mention(&p.get_ref().condition, "pond", &p.get_ref().name);
-        }
-        for i in &raw.inflow {
-            mention(&i.get_ref().condition, "inflow", &i.get_ref().name);
-        }
-        for m in &mentions {
-            self.name_text(&Spanned::new(m.span.clone(), m.name.clone()), &m.ctx)?;
-        }
-        let conditions = match &raw.conditions {
-            Some(list) => {
-                self.listed_conditions(list, &baseline_name, raw.baseline.as_ref(), &mentions)?
-            }
-            None => {
-                self.condition_slips(&baseline_name, raw.baseline.as_ref(), &mentions)?;
-                let mut conditions = vec![baseline_name.clone()];
-                for m in &mentions {
-                    if !conditions.contains(&m.name) {
-                        conditions.push(m.name.clone());
-                    }
-                }
-                conditions
-            }
-        };
-
+        let conditions = self.conditions(&raw, &raw_elements)?;
         let storms = raw
             .storm
             .iter()
             .map(|s| self.storm(s))
             .collect::<R<Vec<_>>>()?;
-        let storm_index = |n: &str| storms.iter().position(|s: &Storm| s.name == n);
-
-        // Elements.
-        let mut pending = Vec::new();
-        let mut kinds = Vec::new();
-        for c in &raw.catchment {
-            let rc = c.get_ref();
-            let ctx = format!("catchment \"{}\"", rc.name.get_ref());
-            pending.push(Pending {
-                name: rc.name.get_ref().trim().to_string(),
-                name_span: rc.name.span(),
-                conditions: rc.condition.clone(),
-                to: rc.to.clone(),
-                lag: rc.lag.clone(),
-                table_span: c.span(),
-                ctx: ctx.clone(),
-            });
-            kinds.push(ElementKind::Catchment(self.catchment(
-                rc,
-                &c.span(),
-                &ctx,
-                p2_in,
-            )?));
-        }
-        let mut sizing_raw = Vec::new();
-        for p in &raw.pond {
-            let rp = p.get_ref();
-            let ctx = format!("pond \"{}\"", rp.name.get_ref());
-            pending.push(Pending {
-                name: rp.name.get_ref().trim().to_string(),
-                name_span: rp.name.span(),
-                conditions: rp.condition.clone(),
-                to: rp.to.clone(),
-                lag: None,
-                table_span: p.span(),
-                ctx: ctx.clone(),
-            });
-            let element_index = pending.len() - 1;
-            let (pond, sized) = self.pond(rp, &p.span(), &ctx)?;
-            for mut s in sized {
-                s.element = element_index;
-                sizing_raw.push(s);
-            }
-            kinds.push(ElementKind::Pond(pond));
-        }
-        for i in &raw.inflow {
-            let ri = i.get_ref();
-            let ctx = format!("inflow \"{}\"", ri.name.get_ref());
-            pending.push(Pending {
-                name: ri.name.get_ref().trim().to_string(),
-                name_span: ri.name.span(),
-                conditions: ri.condition.clone(),
-                to: ri.to.clone(),
-                lag: ri.lag.clone(),
-                table_span: i.span(),
-                ctx: ctx.clone(),
-            });
-            let storm = match &ri.storm {
-                Some(s) => Some(storm_index(s.get_ref()).ok_or_else(|| {
-                    let hint = cover::nearest(s.get_ref(), storms.iter().map(|s| s.name.as_str()));
-                    let e = self
-                        .err(
-                            &s.span(),
-                            &format!("{ctx}, storm"),
-                            format!("no storm is named \"{}\"", s.get_ref()),
-                        )
-                        .expected("the name of a [[storm]]");
-                    match hint {
-                        Some(h) => e.hint(format!("did you mean \"{h}\"?")),
-                        None => e,
-                    }
-                })?),
-                None => None,
-            };
-            kinds.push(ElementKind::Inflow(self.inflow(
-                ri,
-                &i.span(),
-                &ctx,
-                storm,
-            )?));
-        }
-
-        let point_names: Vec<String> = raw
-            .point
-            .iter()
-            .map(|p| p.get_ref().name.get_ref().trim().to_string())
-            .collect();
-        let element_names: Vec<String> = pending.iter().map(|p| p.name.clone()).collect();
-        let mut elements = Vec::new();
-        for (p, kind) in pending.into_iter().zip(kinds) {
-            let mut membership = vec![false; conditions.len()];
-            match &p.conditions {
-                Some(l) => {
-                    if l.get_ref().0.is_empty() {
-                        return Err(self
-                            .err(
-                                &l.span(),
-                                &format!("{}, condition", p.ctx),
-                                "the list of conditions is empty",
-                            )
-                            .expected("a condition name or a list of them"));
-                    }
-                    for c in &l.get_ref().0 {
-                        if let Some(i) = conditions.iter().position(|x| x == c) {
-                            membership[i] = true;
-                        }
-                    }
-                }
-                None => membership.iter_mut().for_each(|m| *m = true),
-            }
-            let to_raw = self.req(
-                &p.to,
-                &p.table_span,
-                &p.ctx,
-                "to",
-                "\"the name of a pond or point\"",
-            )?;
-            let tname = to_raw.get_ref().trim();
-            let to = if let Some(i) = point_names.iter().position(|n| n == tname) {
-                Target::Point(i)
-            } else if let Some(i) = element_names.iter().position(|n| n == tname) {
-                if !matches!(kind_of(&element_names, i, &raw), "pond") {
-                    return Err(self
-                        .err(
-                            &to_raw.span(),
-                            &format!("{}, to", p.ctx),
-                            format!(
-                                "\"{tname}\" is a {}; flow can only go to a pond or a point",
-                                kind_of(&element_names, i, &raw)
-                            ),
-                        )
-                        .expected("the name of a pond or point"));
-                }
-                if element_names.get(i) == Some(&p.name) {
-                    return Err(self
-                        .err(
-                            &to_raw.span(),
-                            &format!("{}, to", p.ctx),
-                            "an element cannot drain to itself",
-                        )
-                        .expected("the name of a pond or point downstream"));
-                }
-                Target::Element(i)
-            } else {
-                let targets: Vec<&str> = point_names
-                    .iter()
-                    .map(String::as_str)
-                    .chain(
-                        element_names
-                            .iter()
-                            .enumerate()
-                            .filter(|(k, _)| kind_of(&element_names, *k, &raw) == "pond")
-                            .map(|(_, n)| n.as_str()),
-                    )
-                    .collect();
-                let e = self
-                    .err(
-                        &to_raw.span(),
-                        &format!("{}, to", p.ctx),
-                        format!("nothing is named \"{tname}\""),
-                    )
-                    .expected("the name of a pond or point");
-                return Err(if point_names.is_empty() {
-                    e.hint(format!(
-                        "the scenario has no [[point]]; add one with name = \"{tname}\""
-                    ))
-                } else {
-                    match cover::nearest(tname, targets.iter().copied()) {
-                        Some(h) => e.hint(format!("did you mean \"{h}\"?")),
-                        None => e.hint(format!(
-                            "the ponds and points are {}",
-                            targets
-                                .iter()
-                                .map(|n| format!("\"{n}\""))
-                                .collect::<Vec<_>>()
-                                .join(", ")
-                        )),
-                    }
-                });
-            };
-            let lag_h = match &p.lag {
-                Some(l) => {
-                    let v = self.qty(l, Quantity::Time, &format!("{}, lag", p.ctx))?;
-                    if v < 0.0 {
-                        return Err(self
-                            .err(
-                                &l.span(),
-                                &format!("{}, lag", p.ctx),
-                                "a lag cannot be negative",
-                            )
-                            .expected("a time of zero or more"));
-                    }
-                    if v > MAX_LAG_H {
-                        return Err(self
-                            .err(
-                                &l.span(),
-                                &format!("{}, lag", p.ctx),
-                                format!(
-                                    "a lag of {} h is longer than runnel's limit of 31 days ({} h)",
-                                    units::short(v, 4),
-                                    units::short(MAX_LAG_H, 4)
-                                ),
-                            )
-                            .expected("a lag of at most 31 days (\"744 h\")")
-                            .hint("check the unit: a lag is usually minutes or hours"));
-                    }
-                    v
-                }
-                None => 0.0,
-            };
-            let _ = &p.name_span;
-            elements.push(Element {
-                name: p.name,
-                conditions: membership,
-                to,
-                lag_h,
-                kind,
-            });
-        }
-
-        // Every element's path must reach a point in each of its conditions.
-        for (i, e) in elements.iter().enumerate() {
-            for (c, cname) in conditions.iter().enumerate() {
-                if !e.conditions[c] {
-                    continue;
-                }
-                let mut seen = vec![false; elements.len()];
-                let mut at = i;
-                loop {
-                    if seen[at] {
-                        // `at` lies on the loop: name it and the loop from it.
-                        let span = &raw_to_span(&raw, at);
-                        return Err(self
-                            .err(
-                                span,
-                                &format!(
-                                    "{} \"{}\", to",
-                                    elements[at].kind_word(),
-                                    elements[at].name
-                                ),
-                                "the flow path loops back on itself (a cycle)",
-                            )
-                            .expected("every path to end at a point")
-                            .hint(cycle_text(&elements, at)));
-                    }
-                    seen[at] = true;
-                    match elements[at].to {
-                        Target::Point(_) => break,
-                        Target::Element(j) => {
-                            if !elements[j].conditions[c] {
-                                let span = &raw_to_span(&raw, at);
-                                return Err(self
-                                    .err(span, &format!("{} \"{}\", to", elements[at].kind_word(), elements[at].name), format!("in condition \"{cname}\" it drains to \"{}\", which is not part of that condition", elements[j].name))
-                                    .expected(format!("a target that belongs to condition \"{cname}\""))
-                                    .hint(format!("add \"{cname}\" to the `condition` list of \"{}\", or give this element a condition list without it", elements[j].name)));
-                            }
-                            at = j;
-                        }
-                    }
-                }
-            }
-        }
-
-        // Conditions that never reach a point are an error.
-        if elements.is_empty() {
-            return Err(self
-                .src
-                .error("the scenario has no [[catchment]], [[pond]] or [[inflow]]")
-                .expected("at least one catchment that drains to a [[point]]"));
-        }
-        // A scenario whose elements all belong to one condition other than
-        // the baseline (a pond to route, nothing to compare) runs without a
-        // baseline: limits that need it are reported "not checked".
-        let baseline_empty = conditions.len() == 2 && !elements.iter().any(|e| e.conditions[0]);
-        for (c, cname) in conditions.iter().enumerate() {
-            if baseline_empty && c == 0 {
-                continue;
-            }
-            if !elements.iter().any(|e| e.conditions[c]) {
-                let Some(span) = raw.baseline.as_ref().map(|b| b.span()) else {
-                    return Err(self
-                        .src
-                        .error(format!("no element belongs to the baseline condition \"{cname}\", so it never reaches a point"))
-                        .expected("elements with `condition = \"existing\"` (or no `condition`)")
-                        .hint("name the baseline with `baseline = \"...\"` at the top of the scenario"));
-                };
-                return Err(self
-                    .err(&span, "baseline", format!("condition \"{cname}\" has no catchment, pond or inflow, so it never reaches a point"))
-                    .expected("at least one element in each condition")
-                    .hint(if c == 0 { "name the baseline with `baseline = \"...\"`, or give elements `condition = \"existing\"`".to_string() } else { "check the spelling of the condition lists".to_string() }));
-            }
-        }
-        if raw.point.is_empty() && !elements.is_empty() {
-            return Err(self
-                .src
-                .error("the scenario has no [[point]]")
-                .expected("at least one [[point]] where conditions are compared"));
-        }
-
-        // Points and limits.
-        let mut points = Vec::new();
-        for p in &raw.point {
-            points.push(self.point(p, &conditions, &storms)?);
-        }
-        for (pi, p) in points.iter().enumerate() {
-            if baseline_empty {
-                let mut needs: Vec<String> = Vec::new();
-                for (l, t) in p.limits.iter().zip(&p.limit_text) {
-                    let missing = matches!(l, Limit::Relative { condition: 0, .. });
-                    let said = format!("limit \"{t}\"");
-                    if missing && !needs.contains(&said) {
-                        needs.push(said);
-                    }
-                }
-                if p.durations.is_some() && !raw.record.is_empty() {
-                    needs.push("flow-duration rule".to_string());
-                }
-                if !needs.is_empty() {
-                    self.warnings.push(Warning::NoBaseline {
-                        point: p.name.clone(),
-                        what: if needs.len() == 1 {
-                            format!("its {} needs", needs[0])
-                        } else {
-                            format!("its {} need", needs.join(" and its "))
-                        },
-                        baseline: conditions[0].clone(),
-                        condition: conditions[1].clone(),
-                    });
-                }
-            }
-            for (c, cname) in conditions.iter().enumerate() {
-                if baseline_empty && c == 0 {
-                    continue;
-                }
-                let reaches = elements
-                    .iter()
-                    .any(|e| e.conditions[c] && e.to == Target::Point(pi));
-                if !reaches {
-                    self.warnings.push(Warning::PointNotReached {
-                        point: p.name.clone(),
-                        condition: cname.clone(),
-                    });
-                }
-            }
-        }
-
-        // Step.
-        let min_tc = elements
-            .iter()
-            .filter_map(|e| match &e.kind {
-                ElementKind::Catchment(c) => Some(c.tc_h),
-                _ => None,
-            })
-            .fold(f64::INFINITY, f64::min);
-        let (step_h, step_given) = match &raw.step {
-            Some(s) => {
-                let v = self.qty(s, Quantity::Time, "step")?;
-                if v <= 0.0 {
-                    return Err(self
-                        .err(
-                            &s.span(),
-                            "step",
-                            format!("the step must be positive, got {}", show(s.get_ref())),
-                        )
-                        .expected("a time such as \"2 min\""));
-                }
-                (v, true)
-            }
-            None => (default_step_h(min_tc), false),
-        };
-        // Paths are free of cycles here (checked above).
-        let max_path_lag_h = (0..elements.len())
-            .map(|i| {
-                let mut lag = 0.0;
-                let mut at = i;
-                for _ in 0..elements.len() {
-                    lag += elements[at].lag_h;
-                    match elements[at].to {
-                        Target::Element(j) => at = j,
-                        Target::Point(_) => break,
-                    }
-                }
-                lag
-            })
-            .fold(0.0, f64::max);
-        for (si, s) in storms.iter().enumerate() {
-            // The run lasts until the rain and every inflow end, plus the
-            // longest sum of lags down to a point, plus the tail.
-            let inflow_end = elements
-                .iter()
-                .filter_map(|e| match &e.kind {
-                    ElementKind::Inflow(i) if i.storm.is_none() || i.storm == Some(si) => {
-                        Some(i.end_h())
-                    }
-                    _ => None,
-                })
-                .fold(0.0, f64::max);
-            let n =
-                ((s.rain_end_h().max(inflow_end) + max_path_lag_h + 7.0 * 24.0) / step_h).ceil();
-            if n > MAX_STEPS as f64 {
-                let least = format_step_up((s.rain_end_h() + 7.0 * 24.0) / MAX_STEPS as f64);
-                return Err(match &raw.step {
-                    Some(st) => self
-                        .err(
-                            &st.span(),
-                            "step",
-                            format!(
-                                "storm \"{}\" would need {n:.0} steps at a step of {}, more than runnel's limit of {MAX_STEPS}",
-                                s.name,
-                                format_step_up(step_h)
-                            ),
-                        )
-                        .expected("a step that gives at most 50 million steps per storm")
-                        .hint(format!(
-                            "use a step of at least {least}; without `step` runnel picks {}",
-                            format_step_up(default_step_h(min_tc))
-                        )),
-                    None => {
-                        let span = raw.storm.get(si).map(|x| x.span()).unwrap_or(0..0);
-                        let msg = format!(
-                            "the storm lasts {} h; with its 7-day tail it would need {n:.0} steps at the step of {}, more than runnel's limit of {MAX_STEPS}",
-                            units::sig(s.rain_end_h(), 4),
-                            format_step_up(step_h)
-                        );
-                        self.err(&span, &format!("storm \"{}\"", s.name), msg)
-                            .expected(
-                                "a storm (and its tail of 7 days) that fits in 50 million steps",
-                            )
-                            .hint(format!(
-                                "shorten the storm, or give a coarser `step` of at least {least}"
-                            ))
-                    }
-                });
-            }
-        }
-
-        // Warnings that depend on the step and storms.
-        for e in &elements {
-            if let ElementKind::Catchment(c) = &e.kind {
-                let tp = unit_hydrograph::time_to_peak_h(step_h, timing::lag_h(c.tc_h));
-                let base_h = c.shape.time_base_over_tp() * tp;
-                if base_h > crate::engine::network::TAIL_H {
-                    self.warnings.push(Warning::Note(format!(
-                        "catchment \"{}\": its unit hydrograph lasts {base_h:.0} h, longer than the 7 days a storm runs after its rain; the end of its runoff falls outside the run",
-                        e.name
-                    )));
-                }
-                if step_h > 0.25 * tp {
-                    self.warnings.push(Warning::StepCoarse {
-                        catchment: e.name.clone(),
-                        step_h,
-                        tp_h: tp,
-                    });
-                }
-                for s in &storms {
-                    if s.rain_end_h() < c.tc_h {
-                        self.warnings.push(Warning::StormShorterThanTc {
-                            storm: s.name.clone(),
-                            catchment: e.name.clone(),
-                            duration_h: s.rain_end_h(),
-                            tc_h: c.tc_h,
-                        });
-                    }
-                }
-            }
-        }
-
-        // Each pond's storage-indication relation must increase strictly at this step.
-        for (i, e) in elements.iter().enumerate() {
-            if let ElementKind::Pond(p) = &e.kind {
-                let top = p
-                    .storage
-                    .rows()
-                    .last()
-                    .map(|r| r.0)
-                    .unwrap_or(0.0)
-                    .max(p.top_ft.unwrap_or(f64::NEG_INFINITY));
-                let vmax = p.storage.volume_ft3(top + 0.5);
-                if let Err(err) = crate::engine::network::pond_table_to(p, step_h * 3600.0, vmax) {
-                    let span = raw
-                        .pond
-                        .get(i - raw.catchment.len())
-                        .map(|x| x.span())
-                        .unwrap_or(0..0);
-                    return Err(self
-                        .err(
-                            &span,
-                            &format!("pond \"{}\"", e.name),
-                            format!("the stage-storage-discharge table cannot be routed: {err}"),
-                        )
-                        .expected(
-                            "storage that grows with stage (2S/dt + O strictly increasing)",
-                        ));
-                }
-            }
-        }
-
+        let (kinds, sizing_raw) = self.element_kinds(&raw_elements, p2_in, &storms)?;
+        let elements = self.link(&raw, &raw_elements, kinds, &conditions)?;
+        self.check_paths(&raw_elements, &elements, &conditions)?;
+        let baseline_empty = self.check_conditions_reached(&raw, &elements, &conditions)?;
+        let points = self.points(&raw, &conditions, &storms, &elements, baseline_empty)?;
+        let (step_h, step_given) = self.step(&raw, &elements, &storms)?;
+        self.step_warnings(&elements, &storms, step_h);
+        self.check_routing(&raw_elements, &elements, step_h)?;
         let records = raw
             .record
             .iter()
             .map(|r| self.record(r))
             .collect::<R<Vec<_>>>()?;
-
-        // A unit hydrograph must fit in memory at every step it is used at
-        // (a very long Tc, e.g. from a near-zero slope, would not).
-        let finest_step_h = records.iter().map(|r| r.step_h).fold(step_h, f64::min);
-        for (i, e) in elements.iter().enumerate() {
-            if let ElementKind::Catchment(c) = &e.kind {
-                let tp_h = unit_hydrograph::time_to_peak_h(finest_step_h, timing::lag_h(c.tc_h));
-                let n = c.shape.time_base_over_tp() * tp_h / finest_step_h;
-                if n.is_nan() || n > MAX_STEPS as f64 {
-                    let rc = raw.catchment.get(i).map(|c| c.get_ref());
-                    let span = rc
-                        .and_then(|c| c.tc.as_ref().map(|t| t.span()))
-                        .or_else(|| raw.catchment.get(i).map(|c| c.span()))
-                        .unwrap_or(0..0);
-                    return Err(self
-                        .err(
-                            &span,
-                            &format!("catchment \"{}\"", e.name),
-                            format!(
-                                "the time of concentration works out to {:.3e} h, so its unit hydrograph would need {n:.3e} steps, more than runnel's limit of {MAX_STEPS}",
-                                c.tc_h
-                            ),
-                        )
-                        .expected("a time of concentration of hours, not years")
-                        .hint("check the flow path's lengths, slopes and Manning n, and `p2`"));
-                }
-            }
-        }
-
+        self.check_unit_hydrograph_sizes(&raw_elements, &elements, &records, step_h)?;
         if storms.is_empty() && records.is_empty() && !elements.is_empty() {
             return Err(self
                 .src
@@ -1043,57 +417,6 @@ impl<'a> Builder<'a> {
         self.check_result_files(&study)?;
         Ok(study)
     }
-
-}
-
-fn kind_of(names: &[String], i: usize, raw: &RawScenario) -> &'static str {
-    let nc = raw.catchment.len();
-    let np = raw.pond.len();
-    let _ = names;
-    if i < nc {
-        "catchment"
-    } else if i < nc + np {
-        "pond"
-    } else {
-        "inflow"
-    }
-}
-
-fn raw_to_span(raw: &RawScenario, i: usize) -> std::ops::Range<usize> {
-    let nc = raw.catchment.len();
-    let np = raw.pond.len();
-    let to = if i < nc {
-        raw.catchment
-            .get(i)
-            .and_then(|c| c.get_ref().to.as_ref().map(|t| t.span()))
-    } else if i < nc + np {
-        raw.pond
-            .get(i - nc)
-            .and_then(|c| c.get_ref().to.as_ref().map(|t| t.span()))
-    } else {
-        raw.inflow
-            .get(i - nc - np)
-            .and_then(|c| c.get_ref().to.as_ref().map(|t| t.span()))
-    };
-    to.unwrap_or(0..0)
-}
-
-fn cycle_text(elements: &[Element], start: usize) -> String {
-    let mut names = vec![elements[start].name.clone()];
-    let mut at = start;
-    for _ in 0..elements.len() {
-        match elements[at].to {
-            Target::Element(j) => {
-                names.push(elements[j].name.clone());
-                if j == start {
-                    break;
-                }
-                at = j;
-            }
-            Target::Point(_) => break,
-        }
-    }
-    format!("the loop: {}", names.join(" -> "))
 }
 
 /// The contract's step rule: the largest of 1, 2, 3, 5, 6 minutes that is at
@@ -1109,6 +432,7 @@ pub fn default_step_h(min_tc_h: f64) -> f64 {
 
 #[cfg(test)]
 mod tests {
+    use super::names::condition_slip;
     use super::*;
 
     #[test]

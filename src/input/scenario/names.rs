@@ -369,4 +369,113 @@ impl Builder<'_> {
         }
         Ok(())
     }
+
+    /// Names: each element and point named once (they are `to` targets),
+    /// each storm and each record named once, every name a usable text.
+    pub(super) fn check_names(&self, raw: &RawScenario, elements: &[RawElement]) -> R<()> {
+        // Names: unique across every element and point (they are `to` targets).
+        let mut names: HashMap<String, (&'static str, std::ops::Range<usize>)> = HashMap::new();
+        let mut check_name = |this: &Self, n: &Spanned<String>, kind: &'static str| -> R<()> {
+            this.name_text(n, &format!("{kind}, name"))?;
+            let s = n.get_ref().trim();
+            if let Some((k, first)) = names.get(s) {
+                let (l, _) = this.src.line_col(first.start);
+                return Err(this
+                    .err(
+                        &n.span(),
+                        &format!("{kind} \"{s}\", name"),
+                        format!("the name \"{s}\" is already used by a {k} (line {l})"),
+                    )
+                    .expected("a name used once"));
+            }
+            names.insert(s.to_string(), (kind, n.span()));
+            Ok(())
+        };
+        for e in elements {
+            check_name(self, e.name(), e.word())?;
+        }
+        for p in &raw.point {
+            check_name(self, &p.get_ref().name, "point")?;
+        }
+        let mut storm_names: HashMap<String, std::ops::Range<usize>> = HashMap::new();
+        for s in &raw.storm {
+            let n = &s.get_ref().name;
+            self.name_text(n, "storm, name")?;
+            if let Some(first) = storm_names.get(n.get_ref()) {
+                let (l, _) = self.src.line_col(first.start);
+                return Err(self
+                    .err(
+                        &n.span(),
+                        &format!("storm \"{}\", name", n.get_ref()),
+                        format!("the storm name is already used (line {l})"),
+                    )
+                    .expected("each storm named once"));
+            }
+            storm_names.insert(n.get_ref().clone(), n.span());
+        }
+        let mut record_names: HashMap<String, ()> = HashMap::new();
+        for r in &raw.record {
+            let n = &r.get_ref().name;
+            self.name_text(n, "record, name")?;
+            if record_names.insert(n.get_ref().clone(), ()).is_some() {
+                return Err(self
+                    .err(
+                        &n.span(),
+                        &format!("record \"{}\", name", n.get_ref()),
+                        "the record name is already used",
+                    )
+                    .expected("each record named once"));
+            }
+        }
+        Ok(())
+    }
+
+    /// The conditions: the baseline first, then the `conditions` list or
+    /// the names in order of first mention; slips are errors.
+    pub(super) fn conditions(&self, raw: &RawScenario, elements: &[RawElement]) -> R<Vec<String>> {
+        // Conditions, in order of first mention, baseline first.
+        // Conditions: the baseline first, then the `conditions` list, or
+        // (without a list) the names in order of first mention.
+        let baseline_name = raw
+            .baseline
+            .as_ref()
+            .map(|b| b.get_ref().clone())
+            .unwrap_or_else(|| "existing".to_string());
+        if let Some(b) = &raw.baseline {
+            self.name_text(b, "baseline")?;
+        }
+        let mut mentions: Vec<Mention> = Vec::new();
+        let mut mention = |list: &Option<Spanned<NameList>>, kind: &str, name: &Spanned<String>| {
+            if let Some(l) = list {
+                for c in &l.get_ref().0 {
+                    mentions.push(Mention {
+                        name: c.clone(),
+                        span: l.span(),
+                        ctx: format!("{kind} \"{}\", condition", name.get_ref()),
+                    });
+                }
+            }
+        };
+        for e in elements {
+            mention(e.condition(), e.word(), e.name());
+        }
+        for m in &mentions {
+            self.name_text(&Spanned::new(m.span.clone(), m.name.clone()), &m.ctx)?;
+        }
+        Ok(match &raw.conditions {
+            Some(list) => {
+                self.listed_conditions(list, &baseline_name, raw.baseline.as_ref(), &mentions)?
+            }
+            None => {
+                self.condition_slips(&baseline_name, raw.baseline.as_ref(), &mentions)?;
+                let mut conditions = vec![baseline_name.clone()];
+                for m in &mentions {
+                    if !conditions.contains(&m.name) {
+                        conditions.push(m.name.clone());
+                    }
+                }
+                conditions
+            }
+        })
+    }
 }

@@ -52,7 +52,13 @@ impl Builder<'_> {
 
     /// A slope that is legal but almost always a percentage written as a
     /// ratio: 1 or more for any segment, above 0.3 for sheet and shallow flow.
-    pub(super) fn slope_warning(&mut self, raw: &Spanned<RawValue>, slope: f64, kind: &str, ctx: &str) {
+    pub(super) fn slope_warning(
+        &mut self,
+        raw: &Spanned<RawValue>,
+        slope: f64,
+        kind: &str,
+        ctx: &str,
+    ) {
         let surface = matches!(kind, "sheet" | "shallow");
         if !(slope >= 1.0 || (surface && slope > SLOPE_USUAL_MAX)) {
             return;

@@ -3,7 +3,12 @@
 use super::*;
 
 impl Builder<'_> {
-    pub(super) fn point(&self, p: &Spanned<RawPoint>, conditions: &[String], storms: &[Storm]) -> R<Point> {
+    pub(super) fn point(
+        &self,
+        p: &Spanned<RawPoint>,
+        conditions: &[String],
+        storms: &[Storm],
+    ) -> R<Point> {
         let rp = p.get_ref();
         let name = rp.name.get_ref().trim().to_string();
         let ctx = format!("point \"{name}\"");
@@ -204,5 +209,64 @@ impl Builder<'_> {
             tolerance,
             text: format!("{} to {}", r.from.get_ref(), r.to.get_ref()),
         })
+    }
+
+    /// The points, with warnings for limits that need an empty baseline and
+    /// for conditions that never reach a point.
+    pub(super) fn points(
+        &mut self,
+        raw: &RawScenario,
+        conditions: &[String],
+        storms: &[Storm],
+        elements: &[Element],
+        baseline_empty: bool,
+    ) -> R<Vec<Point>> {
+        // Points and limits.
+        let mut points = Vec::new();
+        for p in &raw.point {
+            points.push(self.point(p, &conditions, &storms)?);
+        }
+        for (pi, p) in points.iter().enumerate() {
+            if baseline_empty {
+                let mut needs: Vec<String> = Vec::new();
+                for (l, t) in p.limits.iter().zip(&p.limit_text) {
+                    let missing = matches!(l, Limit::Relative { condition: 0, .. });
+                    let said = format!("limit \"{t}\"");
+                    if missing && !needs.contains(&said) {
+                        needs.push(said);
+                    }
+                }
+                if p.durations.is_some() && !raw.record.is_empty() {
+                    needs.push("flow-duration rule".to_string());
+                }
+                if !needs.is_empty() {
+                    self.warnings.push(Warning::NoBaseline {
+                        point: p.name.clone(),
+                        what: if needs.len() == 1 {
+                            format!("its {} needs", needs[0])
+                        } else {
+                            format!("its {} need", needs.join(" and its "))
+                        },
+                        baseline: conditions[0].clone(),
+                        condition: conditions[1].clone(),
+                    });
+                }
+            }
+            for (c, cname) in conditions.iter().enumerate() {
+                if baseline_empty && c == 0 {
+                    continue;
+                }
+                let reaches = elements
+                    .iter()
+                    .any(|e| e.conditions[c] && e.to == Target::Point(pi));
+                if !reaches {
+                    self.warnings.push(Warning::PointNotReached {
+                        point: p.name.clone(),
+                        condition: cname.clone(),
+                    });
+                }
+            }
+        }
+        Ok(points)
     }
 }

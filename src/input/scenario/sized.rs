@@ -72,7 +72,11 @@ pub fn sized_scenario_text(study: &Study, scenario_dir: &Path, out_dir: &Path) -
 /// shortest text that reads back as the same number: `"1.604 ft"`.
 fn length_text(units: UnitSystem, ft: f64) -> String {
     let q = Quantity::Length;
-    format!("\"{} {}\"", ft * q.output_factor(units), q.output_unit(units))
+    format!(
+        "\"{} {}\"",
+        ft * q.output_factor(units),
+        q.output_unit(units)
+    )
 }
 
 /// `s` as a TOML basic string: `"` and `\\` escaped, control characters as

@@ -165,7 +165,13 @@ impl Builder<'_> {
         self.qty(v, Quantity::Length, ctx)
     }
 
-    pub(super) fn table_rows(&self, t: &Spanned<Rows>, ctx: &str, fx: f64, fy: f64) -> R<Vec<(f64, f64)>> {
+    pub(super) fn table_rows(
+        &self,
+        t: &Spanned<Rows>,
+        ctx: &str,
+        fx: f64,
+        fy: f64,
+    ) -> R<Vec<(f64, f64)>> {
         Ok(self
             .pairs(t, ctx)?
             .into_iter()
