@@ -2,4 +2,5 @@
 
 pub mod calendar;
 pub mod interp;
+pub mod suggest;
 pub mod units;

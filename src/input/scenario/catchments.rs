@@ -2,6 +2,7 @@
 //! by flow-path segments, unit-hydrograph shape.
 
 use super::*;
+use crate::methods::cover;
 
 impl Builder<'_> {
     pub(super) fn catchment(
@@ -445,21 +446,14 @@ impl Builder<'_> {
                     section,
                 })
             }
-            other => {
-                let e = self
-                    .err(
-                        &kind.span(),
-                        &format!("{ctx}, kind"),
-                        format!("unknown flow kind \"{other}\""),
-                    )
-                    .expected("\"sheet\", \"shallow\" or \"channel\"");
-                Err(
-                    match cover::nearest(other, ["sheet", "shallow", "channel"]) {
-                        Some(h) => e.hint(format!("did you mean \"{h}\"?")),
-                        None => e,
-                    },
-                )
-            }
+            other => Err(self.unknown_word(
+                &kind.span(),
+                &format!("{ctx}, kind"),
+                format!("unknown flow kind \"{other}\""),
+                "\"sheet\", \"shallow\" or \"channel\"",
+                other,
+                ["sheet", "shallow", "channel"],
+            )),
         }
     }
 

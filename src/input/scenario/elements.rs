@@ -135,17 +135,13 @@ impl Builder<'_> {
         if let Some(i) = storms.iter().position(|x| x.name == *s.get_ref()) {
             return Ok(Some(i));
         }
-        let hint = cover::nearest(s.get_ref(), storms.iter().map(|s| s.name.as_str()));
-        let e = self
-            .err(
-                &s.span(),
-                &format!("{ctx}, storm"),
-                format!("no storm is named \"{}\"", s.get_ref()),
-            )
-            .expected("the name of a [[storm]]");
-        Err(match hint {
-            Some(h) => e.hint(format!("did you mean \"{h}\"?")),
-            None => e,
-        })
+        Err(self.unknown_word(
+            &s.span(),
+            &format!("{ctx}, storm"),
+            format!("no storm is named \"{}\"", s.get_ref()),
+            "the name of a [[storm]]",
+            s.get_ref(),
+            storms.iter().map(|s| s.name.as_str()),
+        ))
     }
 }

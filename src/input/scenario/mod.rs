@@ -26,7 +26,6 @@ mod values;
 use self::{elements::RawElement, inflows::*, values::*};
 use crate::error::{Error, InputError, SourceText};
 use crate::input::gauge;
-use crate::methods::cover;
 use crate::methods::hydraulics::Outlet;
 use crate::methods::pond::StageStorage;
 use crate::methods::rainfall::{MassCurve, NrcsType};
@@ -34,6 +33,7 @@ use crate::methods::runoff::{self, Lambda};
 use crate::methods::timing::{self, Section, Segment};
 use crate::methods::unit_hydrograph::{self, Shape};
 use crate::model::*;
+use crate::util::suggest;
 use crate::util::units::{self, Quantity, UnitSystem};
 use crate::warning::Warning;
 use raw::*;
@@ -195,7 +195,7 @@ fn toml_error(src: &SourceText, e: &toml::de::Error) -> InputError {
             .split_once("expected")
             .map(|(_, c)| c.split('`').skip(1).step_by(2).collect())
             .unwrap_or_default();
-        if let Some(best) = cover::nearest(word, candidates.iter().copied()) {
+        if let Some(best) = suggest::nearest(word, candidates.iter().copied()) {
             err = err.hint(format!("did you mean `{best}`?"));
         }
         err.message = format!("unknown key `{word}`");

@@ -24,7 +24,7 @@ pub fn condition_slip(a: &str, b: &str) -> bool {
     if la == lb {
         return true;
     }
-    let d = cover::edit_distance(&la, &lb);
+    let d = suggest::edit_distance(&la, &lb);
     if d > 2 {
         return false;
     }
@@ -135,7 +135,7 @@ impl Builder<'_> {
                     ),
                 )
                 .expected(format!("a baseline among {}", quoted(&names)));
-            return Err(match cover::nearest(baseline, names.iter().map(String::as_str)) {
+            return Err(match suggest::nearest(baseline, names.iter().map(String::as_str)) {
                 Some(h) => e.hint(format!("did you mean \"{h}\"? The baseline is set by `baseline = \"{h}\"`")),
                 None if baseline_raw.is_none() => e.hint(format!(
                     "without `baseline` the baseline is \"existing\"; name yours with `baseline = \"...\"`, or add \"{baseline}\" to the list"
@@ -156,8 +156,8 @@ impl Builder<'_> {
                         quoted(&names)
                     ));
                 return Err(
-                    match cover::nearest(&m.name, names.iter().map(String::as_str)) {
-                        Some(h) => e.hint(format!("did you mean \"{h}\"?")),
+                    match suggest::nearest(&m.name, names.iter().map(String::as_str)) {
+                        Some(h) => e.hint(suggest::did_you_mean(h)),
                         None => e.hint(format!(
                             "add \"{}\" to `conditions` if it is a new condition",
                             m.name
@@ -211,7 +211,7 @@ impl Builder<'_> {
                 let how = if slip.to_lowercase() == meant.to_lowercase() {
                     "differs only in case from".to_string()
                 } else {
-                    let d = cover::edit_distance(&slip.to_lowercase(), &meant.to_lowercase());
+                    let d = suggest::edit_distance(&slip.to_lowercase(), &meant.to_lowercase());
                     format!("is {d} letter{} away from", if d == 1 { "" } else { "s" })
                 };
                 let mut all: Vec<String> = names.iter().map(|n| n.to_string()).collect();

@@ -3,6 +3,65 @@
 
 use super::*;
 
+/// The kinds of outlet a pond may have.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(super) enum OutletKind {
+    Orifice,
+    RectangularOrifice,
+    Weir,
+    VNotch,
+    Spillway,
+    Riser,
+    Rating,
+}
+
+impl OutletKind {
+    /// Every word read as an outlet kind: each kind's keyword first, then
+    /// any other word for it. This table is the one list of outlet kinds:
+    /// parsing, error messages and suggestions all read it.
+    pub(super) const WORDS: [(&'static str, OutletKind); 8] = [
+        ("orifice", OutletKind::Orifice),
+        ("rectangular-orifice", OutletKind::RectangularOrifice),
+        ("weir", OutletKind::Weir),
+        ("v-notch", OutletKind::VNotch),
+        ("spillway", OutletKind::Spillway),
+        ("broad-crested-weir", OutletKind::Spillway),
+        ("riser", OutletKind::Riser),
+        ("rating", OutletKind::Rating),
+    ];
+
+    /// The kind a (lower-case) word names.
+    pub(super) fn parse(word: &str) -> Option<Self> {
+        Self::WORDS.iter().find(|w| w.0 == word).map(|w| w.1)
+    }
+
+    /// The kinds' keywords, as an expected list: `orifice | weir | ...`.
+    pub(super) fn expected() -> String {
+        let mut seen: Vec<OutletKind> = Vec::new();
+        let mut words: Vec<&str> = Vec::new();
+        for (w, k) in Self::WORDS {
+            if !seen.contains(&k) {
+                seen.push(k);
+                words.push(w);
+            }
+        }
+        words.join(" | ")
+    }
+
+    /// The keys an outlet of this kind takes besides `kind`.
+    pub(super) fn keys(self) -> &'static [&'static str] {
+        match self {
+            OutletKind::Orifice => &["invert", "diameter", "cd"],
+            OutletKind::RectangularOrifice => &["invert", "width", "height", "cd"],
+            OutletKind::Weir => &["crest", "length", "coefficient", "contractions"],
+            OutletKind::VNotch => &["crest", "angle", "cd"],
+            OutletKind::Spillway => &["crest", "length", "coefficient"],
+            OutletKind::Riser => &["crest", "diameter", "coefficient", "cd"],
+            OutletKind::Rating => &["table"],
+        }
+    }
+}
+
 impl Builder<'_> {
     pub(super) fn outlet(
         &self,
@@ -23,34 +82,17 @@ impl Builder<'_> {
             UnitSystem::Us => 1.0,
             UnitSystem::Si => 1.0 / units::M_PER_FT.sqrt(),
         };
-        let allowed: &[&str] = match kind.as_str() {
-            "orifice" => &["invert", "diameter", "cd"],
-            "rectangular-orifice" => &["invert", "width", "height", "cd"],
-            "weir" => &["crest", "length", "coefficient", "contractions"],
-            "v-notch" => &["crest", "angle", "cd"],
-            "spillway" | "broad-crested-weir" => &["crest", "length", "coefficient"],
-            "riser" => &["crest", "diameter", "coefficient", "cd"],
-            "rating" => &["table"],
-            other => {
-                let kinds = [
-                    "orifice",
-                    "rectangular-orifice",
-                    "weir",
-                    "v-notch",
-                    "spillway",
-                    "broad-crested-weir",
-                    "riser",
-                    "rating",
-                ];
-                let e = self
-                    .err(&kind_raw.span(), &format!("{ctx}, kind"), format!("unknown outlet kind \"{other}\""))
-                    .expected("orifice | rectangular-orifice | weir | v-notch | spillway | riser | rating");
-                return Err(match cover::nearest(other, kinds) {
-                    Some(h) => e.hint(format!("did you mean \"{h}\"?")),
-                    None => e,
-                });
-            }
+        let Some(outlet_kind) = OutletKind::parse(&kind) else {
+            return Err(self.unknown_word(
+                &kind_raw.span(),
+                &format!("{ctx}, kind"),
+                format!("unknown outlet kind \"{kind}\""),
+                OutletKind::expected(),
+                &kind,
+                OutletKind::WORDS.iter().map(|w| w.0),
+            ));
         };
+        let allowed = outlet_kind.keys();
         let present: [(&str, Option<std::ops::Range<usize>>); 11] = [
             ("invert", r.invert.as_ref().map(|x| x.span())),
             ("crest", r.crest.as_ref().map(|x| x.span())),
@@ -150,8 +192,8 @@ impl Builder<'_> {
                 None => Ok(default),
             }
         };
-        let outlet = match kind.as_str() {
-            "orifice" => Outlet::CircularOrifice {
+        let outlet = match outlet_kind {
+            OutletKind::Orifice => Outlet::CircularOrifice {
                 invert_ft: get(SizedField::Invert, &r.invert, Quantity::Length, "100.0")?,
                 diameter_ft: get(
                     SizedField::Diameter,
@@ -161,7 +203,7 @@ impl Builder<'_> {
                 )?,
                 cd: cd(0.61)?,
             },
-            "rectangular-orifice" => Outlet::RectangularOrifice {
+            OutletKind::RectangularOrifice => Outlet::RectangularOrifice {
                 invert_ft: get(SizedField::Invert, &r.invert, Quantity::Length, "100.0")?,
                 width_ft: get(SizedField::Width, &r.width, Quantity::Length, "\"1 ft\"")?,
                 height_ft: get(
@@ -172,7 +214,7 @@ impl Builder<'_> {
                 )?,
                 cd: cd(0.61)?,
             },
-            "weir" => {
+            OutletKind::Weir => {
                 let contractions = match &r.contractions {
                     Some(c) if (0..=2).contains(c.get_ref()) => *c.get_ref() as u8,
                     Some(c) => {
@@ -193,7 +235,7 @@ impl Builder<'_> {
                     contractions,
                 }
             }
-            "v-notch" => {
+            OutletKind::VNotch => {
                 let crest_ft = get(SizedField::Crest, &r.crest, Quantity::Length, "103.0")?;
                 let a = self.req(&r.angle, &o.span(), ctx, "angle", "90 (degrees)")?;
                 let (angle, range) = match a.get_ref() {
@@ -255,12 +297,12 @@ impl Builder<'_> {
                     cd: cd(0.58)?,
                 }
             }
-            "spillway" | "broad-crested-weir" => Outlet::BroadCrestedWeir {
+            OutletKind::Spillway => Outlet::BroadCrestedWeir {
                 crest_ft: get(SizedField::Crest, &r.crest, Quantity::Length, "105.0")?,
                 length_ft: get(SizedField::Length, &r.length, Quantity::Length, "\"20 ft\"")?,
                 coefficient: coefficient(2.6)?,
             },
-            "riser" => Outlet::Riser {
+            OutletKind::Riser => Outlet::Riser {
                 crest_ft: get(SizedField::Crest, &r.crest, Quantity::Length, "104.0")?,
                 diameter_ft: get(
                     SizedField::Diameter,
@@ -271,7 +313,7 @@ impl Builder<'_> {
                 weir_coefficient: coefficient(3.33)?,
                 cd: cd(0.61)?,
             },
-            _ => {
+            OutletKind::Rating => {
                 let t = self.req(&r.table, &o.span(), ctx, "table", "[[stage, flow], ...]")?;
                 let ff = Quantity::Flow.bare_factor(self.units).unwrap_or(1.0);
                 let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);

@@ -1,6 +1,7 @@
 //! Plausibility warnings: values that read but are unusual for their kind
 //! (a rain depth, a slope, a Manning n, an outlet coefficient or size).
 
+use super::outlets::OutletKind;
 use super::*;
 
 impl Builder<'_> {
@@ -136,10 +137,9 @@ impl Builder<'_> {
         let kind = r
             .kind
             .as_ref()
-            .map(|k| k.get_ref().to_ascii_lowercase())
-            .unwrap_or_default();
+            .and_then(|k| OutletKind::parse(&k.get_ref().to_ascii_lowercase()));
         // A bare diameter of 3 or more (ft or m) for an orifice or riser.
-        if matches!(kind.as_str(), "orifice" | "riser")
+        if matches!(kind, Some(OutletKind::Orifice | OutletKind::Riser))
             && let Some(d) = &r.diameter
         {
             let bare: Vec<f64> = match d.get_ref() {
@@ -162,11 +162,13 @@ impl Builder<'_> {
                     UnitSystem::Us => ("ft", "in"),
                     UnitSystem::Si => ("m", "mm"),
                 };
-                let usual = match (kind.as_str(), self.units) {
-                    ("orifice", UnitSystem::Us) => {
+                let usual = match (kind, self.units) {
+                    (Some(OutletKind::Orifice), UnitSystem::Us) => {
                         "pond orifices are a few inches to about 2 ft across"
                     }
-                    ("orifice", UnitSystem::Si) => "pond orifices are about 50 mm to 0.6 m across",
+                    (Some(OutletKind::Orifice), UnitSystem::Si) => {
+                        "pond orifices are about 50 mm to 0.6 m across"
+                    }
                     (_, UnitSystem::Us) => "risers are usually 2 to 6 ft across",
                     (_, UnitSystem::Si) => "risers are usually 0.6 to 1.8 m across",
                 };
@@ -182,10 +184,10 @@ impl Builder<'_> {
         // Weir, spillway and riser coefficients, in the scenario's system.
         if let Some(c) = &r.coefficient {
             let v = *c.get_ref();
-            let range_us = match kind.as_str() {
-                "weir" => Some(SHARP_WEIR_C_US),
-                "riser" => Some(RISER_C_US),
-                "spillway" | "broad-crested-weir" => Some(SPILLWAY_C_US),
+            let range_us = match kind {
+                Some(OutletKind::Weir) => Some(SHARP_WEIR_C_US),
+                Some(OutletKind::Riser) => Some(RISER_C_US),
+                Some(OutletKind::Spillway) => Some(SPILLWAY_C_US),
                 _ => None,
             };
             if let Some((lo, hi)) = range_us {
@@ -195,9 +197,9 @@ impl Builder<'_> {
                     UnitSystem::Si => ((lo * si, hi * si), (lo, hi), "SI", "US", si),
                 };
                 if v.is_finite() && !(range.0..=range.1).contains(&v) {
-                    let what = match kind.as_str() {
-                        "weir" => "sharp-crested weir coefficient",
-                        "riser" => "riser rim (weir) coefficient",
+                    let what = match kind {
+                        Some(OutletKind::Weir) => "sharp-crested weir coefficient",
+                        Some(OutletKind::Riser) => "riser rim (weir) coefficient",
                         _ => "broad-crested (spillway) coefficient",
                     };
                     let hint = if (other.0..=other.1).contains(&v) {

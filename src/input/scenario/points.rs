@@ -31,19 +31,14 @@ impl Builder<'_> {
         if let Some(map) = &rp.limits {
             for (storm, text) in map.get_ref() {
                 let Some(i) = storms.iter().position(|s| &s.name == storm) else {
-                    let e = self
-                        .err(
-                            &text.span(),
-                            &format!("{ctx}, limits"),
-                            format!("no storm is named \"{storm}\""),
-                        )
-                        .expected("the name of a [[storm]]");
-                    return Err(
-                        match cover::nearest(storm, storms.iter().map(|s| s.name.as_str())) {
-                            Some(h) => e.hint(format!("did you mean \"{h}\"?")),
-                            None => e,
-                        },
-                    );
+                    return Err(self.unknown_word(
+                        &text.span(),
+                        &format!("{ctx}, limits"),
+                        format!("no storm is named \"{storm}\""),
+                        "the name of a [[storm]]",
+                        storm,
+                        storms.iter().map(|s| s.name.as_str()),
+                    ));
                 };
                 limits[i] = self.limit(
                     text,
@@ -142,15 +137,11 @@ impl Builder<'_> {
         let mut e = bad(format!("cannot read \"{text}\" as a limit"));
         if !conditions.iter().any(|c| c == first) {
             e.message = format!("\"{first}\" is not a condition of this scenario");
-            if let Some(h) = cover::nearest(first, conditions.iter().map(String::as_str)) {
-                e = e.hint(format!("did you mean \"{h}\"?"));
-            }
+            e = with_suggestion(e, first, conditions.iter().map(String::as_str));
         } else {
             let s = rest[first.len()..].trim();
             e.message = format!("\"{s}\" is not a storm of this scenario");
-            if let Some(h) = cover::nearest(s, storms.iter().map(|s| s.name.as_str())) {
-                e = e.hint(format!("did you mean \"{h}\"?"));
-            }
+            e = with_suggestion(e, s, storms.iter().map(|s| s.name.as_str()));
         }
         Err(e)
     }

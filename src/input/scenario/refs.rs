@@ -128,8 +128,8 @@ impl Builder<'_> {
                 "the scenario has no [[point]]; add one with name = \"{tname}\""
             ))
         } else {
-            match cover::nearest(tname, targets.iter().copied()) {
-                Some(h) => err.hint(format!("did you mean \"{h}\"?")),
+            match suggest::nearest(tname, targets.iter().copied()) {
+                Some(h) => err.hint(suggest::did_you_mean(h)),
                 None => err.hint(format!("the ponds and points are {}", quoted_str(&targets))),
             }
         })

@@ -66,13 +66,14 @@ impl Builder<'_> {
                     "uniform",
                     "table",
                 ];
-                let e = self
-                    .err(&pat.span(), &format!("{ctx}, pattern"), format!("unknown pattern \"{other}\""))
-                    .expected("nrcs-type-i | nrcs-type-ia | nrcs-type-ii | nrcs-type-iii | uniform | table");
-                return Err(match cover::nearest(other, keys) {
-                    Some(h) => e.hint(format!("did you mean \"{h}\"?")),
-                    None => e,
-                });
+                return Err(self.unknown_word(
+                    &pat.span(),
+                    &format!("{ctx}, pattern"),
+                    format!("unknown pattern \"{other}\""),
+                    keys.join(" | "),
+                    other,
+                    keys,
+                ));
             }
         };
         let duration_h = match (&rs.duration, nrcs) {

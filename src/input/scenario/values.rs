@@ -281,4 +281,36 @@ impl Builder<'_> {
         }
         Ok((x, None))
     }
+
+    /// An unknown keyword or name: the error at `span` with its message and
+    /// what was expected, and a "did you mean" hint naming the closest of
+    /// `candidates` when one is close enough (see [`suggest::nearest`]).
+    pub(super) fn unknown_word<'c>(
+        &self,
+        span: &std::ops::Range<usize>,
+        ctx: &str,
+        message: impl Into<String>,
+        expected: impl Into<String>,
+        word: &str,
+        candidates: impl IntoIterator<Item = &'c str>,
+    ) -> InputError {
+        with_suggestion(
+            self.err(span, ctx, message).expected(expected),
+            word,
+            candidates,
+        )
+    }
+}
+
+/// `e` with a "did you mean" hint naming the closest of `candidates` to
+/// `word`, when one is close enough; `e` as it is otherwise.
+pub(super) fn with_suggestion<'c>(
+    e: InputError,
+    word: &str,
+    candidates: impl IntoIterator<Item = &'c str>,
+) -> InputError {
+    match suggest::nearest(word, candidates) {
+        Some(h) => e.hint(suggest::did_you_mean(h)),
+        None => e,
+    }
 }
