@@ -70,6 +70,116 @@ impl Builder<'_> {
         index: usize,
     ) -> R<(Outlet, Vec<SizedDim>)> {
         let r = o.get_ref();
+        let outlet_kind = self.outlet_kind(o, ctx)?;
+        let mut sized = Vec::new();
+        let mut get =
+            |field: SizedField, v: &Option<Spanned<RawValue>>, q: Quantity, what: &str| -> R<f64> {
+                let v = self.req(v, &o.span(), ctx, field.key(), what)?;
+                let (x, range) = self.dim(
+                    v,
+                    &format!("{ctx}, {}", field.key()),
+                    q,
+                    field.is_elevation(),
+                    !field.is_elevation(),
+                )?;
+                if let Some((min, max)) = range {
+                    sized.push(SizedDim {
+                        element: 0,
+                        outlet: index,
+                        field,
+                        min,
+                        max,
+                        span: v.span(),
+                    });
+                }
+                Ok(x)
+            };
+        let outlet = match outlet_kind {
+            OutletKind::Orifice => Outlet::CircularOrifice {
+                invert_ft: get(SizedField::Invert, &r.invert, Quantity::Length, "100.0")?,
+                diameter_ft: get(
+                    SizedField::Diameter,
+                    &r.diameter,
+                    Quantity::Length,
+                    "\"6 in\"",
+                )?,
+                cd: self.discharge_coefficient(r, ctx, 0.61)?,
+            },
+            OutletKind::RectangularOrifice => Outlet::RectangularOrifice {
+                invert_ft: get(SizedField::Invert, &r.invert, Quantity::Length, "100.0")?,
+                width_ft: get(SizedField::Width, &r.width, Quantity::Length, "\"1 ft\"")?,
+                height_ft: get(
+                    SizedField::Height,
+                    &r.height,
+                    Quantity::Length,
+                    "\"0.5 ft\"",
+                )?,
+                cd: self.discharge_coefficient(r, ctx, 0.61)?,
+            },
+            OutletKind::Weir => {
+                let contractions = match &r.contractions {
+                    Some(c) if (0..=2).contains(c.get_ref()) => *c.get_ref() as u8,
+                    Some(c) => {
+                        return Err(self
+                            .err(
+                                &c.span(),
+                                &format!("{ctx}, contractions"),
+                                format!("{} end contractions", c.get_ref()),
+                            )
+                            .expected("0, 1 or 2"));
+                    }
+                    None => 0,
+                };
+                Outlet::SharpCrestedWeir {
+                    crest_ft: get(SizedField::Crest, &r.crest, Quantity::Length, "103.2")?,
+                    length_ft: get(SizedField::Length, &r.length, Quantity::Length, "\"4 ft\"")?,
+                    coefficient: self.weir_coefficient(r, ctx, 3.33)?,
+                    contractions,
+                }
+            }
+            OutletKind::VNotch => {
+                let crest_ft = get(SizedField::Crest, &r.crest, Quantity::Length, "103.0")?;
+                let (angle, range, angle_span) = self.notch_angle(o, ctx)?;
+                if let Some((min, max)) = range {
+                    sized.push(SizedDim {
+                        element: 0,
+                        outlet: index,
+                        field: SizedField::Angle,
+                        min,
+                        max,
+                        span: angle_span,
+                    });
+                }
+                Outlet::VNotchWeir {
+                    crest_ft,
+                    angle_deg: angle,
+                    cd: self.discharge_coefficient(r, ctx, 0.58)?,
+                }
+            }
+            OutletKind::Spillway => Outlet::BroadCrestedWeir {
+                crest_ft: get(SizedField::Crest, &r.crest, Quantity::Length, "105.0")?,
+                length_ft: get(SizedField::Length, &r.length, Quantity::Length, "\"20 ft\"")?,
+                coefficient: self.weir_coefficient(r, ctx, 2.6)?,
+            },
+            OutletKind::Riser => Outlet::Riser {
+                crest_ft: get(SizedField::Crest, &r.crest, Quantity::Length, "104.0")?,
+                diameter_ft: get(
+                    SizedField::Diameter,
+                    &r.diameter,
+                    Quantity::Length,
+                    "\"4 ft\"",
+                )?,
+                weir_coefficient: self.weir_coefficient(r, ctx, 3.33)?,
+                cd: self.discharge_coefficient(r, ctx, 0.61)?,
+            },
+            OutletKind::Rating => self.rating(o, ctx)?,
+        };
+        Ok((outlet, sized))
+    }
+
+    /// The kind of an outlet, checked against the keys it is given.
+    fn outlet_kind(&self, o: &Spanned<RawOutlet>, ctx: &str) -> R<OutletKind> {
+        let r = o.get_ref();
         let kind_raw = self.req(
             &r.kind,
             &o.span(),
@@ -78,10 +188,6 @@ impl Builder<'_> {
             "\"orifice\", \"weir\", \"spillway\", ...",
         )?;
         let kind = kind_raw.get_ref().to_ascii_lowercase();
-        let cf = match self.units {
-            UnitSystem::Us => 1.0,
-            UnitSystem::Si => 1.0 / units::M_PER_FT.sqrt(),
-        };
         let Some(outlet_kind) = OutletKind::parse(&kind) else {
             return Err(self.unknown_word(
                 &kind_raw.span(),
@@ -122,248 +228,167 @@ impl Builder<'_> {
                     )));
             }
         }
-        let mut sized = Vec::new();
-        let mut get =
-            |field: SizedField, v: &Option<Spanned<RawValue>>, q: Quantity, what: &str| -> R<f64> {
-                let v = self.req(v, &o.span(), ctx, field.key(), what)?;
-                let (x, range) = self.dim(
-                    v,
-                    &format!("{ctx}, {}", field.key()),
-                    q,
-                    field.is_elevation(),
-                    !field.is_elevation(),
-                )?;
-                if let Some((min, max)) = range {
-                    sized.push(SizedDim {
-                        element: 0,
-                        outlet: index,
-                        field,
-                        min,
-                        max,
-                        span: v.span(),
-                    });
-                }
-                Ok(x)
-            };
-        let coefficient = |default: f64| -> R<f64> {
-            match &r.coefficient {
-                Some(c) => {
-                    let v = self.num(c, &format!("{ctx}, coefficient"))?;
-                    if v <= 0.0 {
-                        return Err(self
-                            .err(
-                                &c.span(),
-                                &format!("{ctx}, coefficient"),
-                                "the coefficient must be positive",
-                            )
-                            .expected("a positive weir coefficient"));
-                    }
-                    if v > MAX_WEIR_COEFFICIENT {
-                        return Err(self
-                            .err(
-                                &c.span(),
-                                &format!("{ctx}, coefficient"),
-                                format!(
-                                    "a weir coefficient of {v} is far beyond any published value"
-                                ),
-                            )
-                            .expected("a weir coefficient such as 3.33 (US) or 1.84 (SI)"));
-                    }
-                    Ok(v * cf)
-                }
-                None => Ok(default),
-            }
+        Ok(outlet_kind)
+    }
+
+    /// The weir coefficient (US units inside) or `default`.
+    fn weir_coefficient(&self, r: &RawOutlet, ctx: &str, default: f64) -> R<f64> {
+        let cf = match self.units {
+            UnitSystem::Us => 1.0,
+            UnitSystem::Si => 1.0 / units::M_PER_FT.sqrt(),
         };
-        let cd = |default: f64| -> R<f64> {
-            match &r.cd {
-                Some(c) => {
-                    let v = self.num(c, &format!("{ctx}, cd"))?;
-                    if v <= 0.0 || v > 1.0 {
-                        return Err(self
-                            .err(
-                                &c.span(),
-                                &format!("{ctx}, cd"),
-                                format!("cd = {v} is outside (0, 1]"),
-                            )
-                            .expected("a discharge coefficient such as 0.61"));
-                    }
-                    Ok(v)
+        match &r.coefficient {
+            Some(c) => {
+                let v = self.num(c, &format!("{ctx}, coefficient"))?;
+                if v <= 0.0 {
+                    return Err(self
+                        .err(
+                            &c.span(),
+                            &format!("{ctx}, coefficient"),
+                            "the coefficient must be positive",
+                        )
+                        .expected("a positive weir coefficient"));
                 }
-                None => Ok(default),
-            }
-        };
-        let outlet = match outlet_kind {
-            OutletKind::Orifice => Outlet::CircularOrifice {
-                invert_ft: get(SizedField::Invert, &r.invert, Quantity::Length, "100.0")?,
-                diameter_ft: get(
-                    SizedField::Diameter,
-                    &r.diameter,
-                    Quantity::Length,
-                    "\"6 in\"",
-                )?,
-                cd: cd(0.61)?,
-            },
-            OutletKind::RectangularOrifice => Outlet::RectangularOrifice {
-                invert_ft: get(SizedField::Invert, &r.invert, Quantity::Length, "100.0")?,
-                width_ft: get(SizedField::Width, &r.width, Quantity::Length, "\"1 ft\"")?,
-                height_ft: get(
-                    SizedField::Height,
-                    &r.height,
-                    Quantity::Length,
-                    "\"0.5 ft\"",
-                )?,
-                cd: cd(0.61)?,
-            },
-            OutletKind::Weir => {
-                let contractions = match &r.contractions {
-                    Some(c) if (0..=2).contains(c.get_ref()) => *c.get_ref() as u8,
-                    Some(c) => {
-                        return Err(self
-                            .err(
-                                &c.span(),
-                                &format!("{ctx}, contractions"),
-                                format!("{} end contractions", c.get_ref()),
-                            )
-                            .expected("0, 1 or 2"));
-                    }
-                    None => 0,
-                };
-                Outlet::SharpCrestedWeir {
-                    crest_ft: get(SizedField::Crest, &r.crest, Quantity::Length, "103.2")?,
-                    length_ft: get(SizedField::Length, &r.length, Quantity::Length, "\"4 ft\"")?,
-                    coefficient: coefficient(3.33)?,
-                    contractions,
+                if v > MAX_WEIR_COEFFICIENT {
+                    return Err(self
+                        .err(
+                            &c.span(),
+                            &format!("{ctx}, coefficient"),
+                            format!("a weir coefficient of {v} is far beyond any published value"),
+                        )
+                        .expected("a weir coefficient such as 3.33 (US) or 1.84 (SI)"));
                 }
+                Ok(v * cf)
             }
-            OutletKind::VNotch => {
-                let crest_ft = get(SizedField::Crest, &r.crest, Quantity::Length, "103.0")?;
-                let a = self.req(&r.angle, &o.span(), ctx, "angle", "90 (degrees)")?;
-                let (angle, range) = match a.get_ref() {
-                    RawValue::Num(x) => (*x, None),
-                    RawValue::Range(rr) => match (&rr.0, &rr.1) {
-                        (RawValue::Num(x), RawValue::Num(y)) => (*x, Some((*x, *y))),
-                        _ => {
-                            return Err(self
-                                .err(
-                                    &a.span(),
-                                    &format!("{ctx}, angle"),
-                                    "an angle is a bare number of degrees",
-                                )
-                                .expected("{ min = 20, max = 120 }"));
-                        }
-                    },
-                    RawValue::Text(t) => match t
-                        .trim()
-                        .trim_end_matches("deg")
-                        .trim_end_matches('°')
-                        .trim()
-                        .parse::<f64>()
-                    {
-                        Ok(x) => (x, None),
-                        Err(_) => {
-                            return Err(self
-                                .err(
-                                    &a.span(),
-                                    &format!("{ctx}, angle"),
-                                    format!("cannot read \"{t}\" as an angle"),
-                                )
-                                .expected("degrees, e.g. 90"));
-                        }
-                    },
-                };
-                let bad = |x: f64| !(x > 0.0 && x < 180.0);
-                if bad(angle) || range.is_some_and(|(x, y)| bad(x) || bad(y) || x > y) {
+            None => Ok(default),
+        }
+    }
+
+    /// The discharge coefficient `cd` or `default`.
+    fn discharge_coefficient(&self, r: &RawOutlet, ctx: &str, default: f64) -> R<f64> {
+        match &r.cd {
+            Some(c) => {
+                let v = self.num(c, &format!("{ctx}, cd"))?;
+                if v <= 0.0 || v > 1.0 {
+                    return Err(self
+                        .err(
+                            &c.span(),
+                            &format!("{ctx}, cd"),
+                            format!("cd = {v} is outside (0, 1]"),
+                        )
+                        .expected("a discharge coefficient such as 0.61"));
+                }
+                Ok(v)
+            }
+            None => Ok(default),
+        }
+    }
+
+    /// The notch angle (degrees), its range when it is sized, and its span.
+    #[allow(clippy::type_complexity)]
+    fn notch_angle(
+        &self,
+        o: &Spanned<RawOutlet>,
+        ctx: &str,
+    ) -> R<(f64, Option<(f64, f64)>, std::ops::Range<usize>)> {
+        let r = o.get_ref();
+        let a = self.req(&r.angle, &o.span(), ctx, "angle", "90 (degrees)")?;
+        let (angle, range) = match a.get_ref() {
+            RawValue::Num(x) => (*x, None),
+            RawValue::Range(rr) => match (&rr.0, &rr.1) {
+                (RawValue::Num(x), RawValue::Num(y)) => (*x, Some((*x, *y))),
+                _ => {
                     return Err(self
                         .err(
                             &a.span(),
                             &format!("{ctx}, angle"),
-                            "the notch angle must lie between 0 and 180 degrees (and min <= max)",
+                            "an angle is a bare number of degrees",
+                        )
+                        .expected("{ min = 20, max = 120 }"));
+                }
+            },
+            RawValue::Text(t) => match t
+                .trim()
+                .trim_end_matches("deg")
+                .trim_end_matches('°')
+                .trim()
+                .parse::<f64>()
+            {
+                Ok(x) => (x, None),
+                Err(_) => {
+                    return Err(self
+                        .err(
+                            &a.span(),
+                            &format!("{ctx}, angle"),
+                            format!("cannot read \"{t}\" as an angle"),
                         )
                         .expected("degrees, e.g. 90"));
                 }
-                if let Some((min, max)) = range {
-                    sized.push(SizedDim {
-                        element: 0,
-                        outlet: index,
-                        field: SizedField::Angle,
-                        min,
-                        max,
-                        span: a.span(),
-                    });
-                }
-                Outlet::VNotchWeir {
-                    crest_ft,
-                    angle_deg: angle,
-                    cd: cd(0.58)?,
-                }
-            }
-            OutletKind::Spillway => Outlet::BroadCrestedWeir {
-                crest_ft: get(SizedField::Crest, &r.crest, Quantity::Length, "105.0")?,
-                length_ft: get(SizedField::Length, &r.length, Quantity::Length, "\"20 ft\"")?,
-                coefficient: coefficient(2.6)?,
             },
-            OutletKind::Riser => Outlet::Riser {
-                crest_ft: get(SizedField::Crest, &r.crest, Quantity::Length, "104.0")?,
-                diameter_ft: get(
-                    SizedField::Diameter,
-                    &r.diameter,
-                    Quantity::Length,
-                    "\"4 ft\"",
-                )?,
-                weir_coefficient: coefficient(3.33)?,
-                cd: cd(0.61)?,
-            },
-            OutletKind::Rating => {
-                let t = self.req(&r.table, &o.span(), ctx, "table", "[[stage, flow], ...]")?;
-                let ff = Quantity::Flow.bare_factor(self.units).unwrap_or(1.0);
-                let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
-                let rows = self.table_rows(t, &format!("{ctx}, table"), lf, ff)?;
-                self.bounded_rows(
-                    &rows,
+        };
+        let bad = |x: f64| !(x > 0.0 && x < 180.0);
+        if bad(angle) || range.is_some_and(|(x, y)| bad(x) || bad(y) || x > y) {
+            return Err(self
+                .err(
+                    &a.span(),
+                    &format!("{ctx}, angle"),
+                    "the notch angle must lie between 0 and 180 degrees (and min <= max)",
+                )
+                .expected("degrees, e.g. 90"));
+        }
+        Ok((angle, range, a.span()))
+    }
+
+    /// A rating table: stage and flow pairs, stages rising, flows never falling.
+    fn rating(&self, o: &Spanned<RawOutlet>, ctx: &str) -> R<Outlet> {
+        let r = o.get_ref();
+        let t = self.req(&r.table, &o.span(), ctx, "table", "[[stage, flow], ...]")?;
+        let ff = Quantity::Flow.bare_factor(self.units).unwrap_or(1.0);
+        let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
+        let rows = self.table_rows(t, &format!("{ctx}, table"), lf, ff)?;
+        self.bounded_rows(
+            &rows,
+            &t.span(),
+            &format!("{ctx}, table"),
+            [
+                (Quantity::Length, "stage", None),
+                (Quantity::Flow, "flow", None),
+            ],
+        )?;
+        if rows.len() < 2 {
+            return Err(self
+                .err(
                     &t.span(),
                     &format!("{ctx}, table"),
-                    [
-                        (Quantity::Length, "stage", None),
-                        (Quantity::Flow, "flow", None),
-                    ],
-                )?;
-                if rows.len() < 2 {
-                    return Err(self
-                        .err(
-                            &t.span(),
-                            &format!("{ctx}, table"),
-                            "a rating needs at least two rows",
-                        )
-                        .expected("[[stage, flow], [stage, flow], ...]"));
-                }
-                for (i, w) in rows.windows(2).enumerate() {
-                    if w[1].0 <= w[0].0 {
-                        return Err(self
-                            .err(
-                                &t.span(),
-                                &format!("{ctx}, table"),
-                                format!("row {}: the stage does not increase", i + 2),
-                            )
-                            .expected("stages strictly increasing"));
-                    }
-                    if w[1].1 < w[0].1 {
-                        return Err(self
-                            .err(
-                                &t.span(),
-                                &format!("{ctx}, table"),
-                                format!("row {}: the flow decreases as the stage rises", i + 2),
-                            )
-                            .expected("flows that never decrease"));
-                    }
-                }
-                if rows.iter().any(|r| r.1 < 0.0) {
-                    return Err(self
-                        .err(&t.span(), &format!("{ctx}, table"), "a flow is negative")
-                        .expected("flows of zero or more"));
-                }
-                Outlet::Rating { table: rows }
+                    "a rating needs at least two rows",
+                )
+                .expected("[[stage, flow], [stage, flow], ...]"));
+        }
+        for (i, w) in rows.windows(2).enumerate() {
+            if w[1].0 <= w[0].0 {
+                return Err(self
+                    .err(
+                        &t.span(),
+                        &format!("{ctx}, table"),
+                        format!("row {}: the stage does not increase", i + 2),
+                    )
+                    .expected("stages strictly increasing"));
             }
-        };
-        Ok((outlet, sized))
+            if w[1].1 < w[0].1 {
+                return Err(self
+                    .err(
+                        &t.span(),
+                        &format!("{ctx}, table"),
+                        format!("row {}: the flow decreases as the stage rises", i + 2),
+                    )
+                    .expected("flows that never decrease"));
+            }
+        }
+        if rows.iter().any(|r| r.1 < 0.0) {
+            return Err(self
+                .err(&t.span(), &format!("{ctx}, table"), "a flow is negative")
+                .expected("flows of zero or more"));
+        }
+        Ok(Outlet::Rating { table: rows })
     }
 }
