@@ -14,115 +14,7 @@ impl Builder<'_> {
         ctx: &str,
     ) -> R<(Pond, Vec<SizedDim>)> {
         let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
-        let af = Quantity::SectionArea.bare_factor(self.units).unwrap_or(1.0);
-        let vf = Quantity::Volume.bare_factor(self.units).unwrap_or(1.0);
-        let given = [
-            rp.stage_area.is_some(),
-            rp.stage_volume.is_some(),
-            rp.basin.is_some(),
-        ]
-        .iter()
-        .filter(|x| **x)
-        .count();
-        if given != 1 {
-            return Err(self
-                .err(
-                    span,
-                    ctx,
-                    if given == 0 {
-                        "the pond has no storage"
-                    } else {
-                        "the pond's storage is given more than once"
-                    },
-                )
-                .expected("exactly one of `stage_area`, `stage_volume` or `basin`"));
-        }
-        let (storage, storage_kind, table_top) = if let Some(t) = &rp.stage_area {
-            let rows = self.table_rows(t, &format!("{ctx}, stage_area"), lf, af)?;
-            self.bounded_rows(
-                &rows,
-                &t.span(),
-                &format!("{ctx}, stage_area"),
-                [
-                    (Quantity::Length, "stage", None),
-                    (Quantity::SectionArea, "area", None),
-                ],
-            )?;
-            let s = StageStorage::from_stage_area(&rows).map_err(|e| {
-                self.err(&t.span(), &format!("{ctx}, stage_area"), e.to_string())
-                    .expected(
-                        "[stage, area] rows with stages increasing and areas >= 0, not decreasing",
-                    )
-            })?;
-            (
-                s,
-                "stage-area (conic frustum between rows)",
-                rows.last().map(|r| r.0),
-            )
-        } else if let Some(t) = &rp.stage_volume {
-            let rows = self.table_rows(t, &format!("{ctx}, stage_volume"), lf, vf)?;
-            self.bounded_rows(
-                &rows,
-                &t.span(),
-                &format!("{ctx}, stage_volume"),
-                [
-                    (Quantity::Length, "stage", None),
-                    (Quantity::Volume, "volume", None),
-                ],
-            )?;
-            let s = StageStorage::from_stage_volume(&rows).map_err(|e| self.err(&t.span(), &format!("{ctx}, stage_volume"), e.to_string()).expected("[stage, volume] rows with stages increasing and volumes >= 0, not decreasing"))?;
-            (s, "stage-volume", rows.last().map(|r| r.0))
-        } else if let Some(b) = &rp.basin {
-            let rb = b.get_ref();
-            let bctx = format!("{ctx}, basin");
-            let bottom = self.elevation(
-                self.req(&rb.bottom, &b.span(), &bctx, "bottom", "100.0 (elevation)")?,
-                &format!("{bctx}, bottom"),
-            )?;
-            let length = self.positive(
-                self.req(&rb.length, &b.span(), &bctx, "length", "\"80 ft\"")?,
-                Quantity::Length,
-                &format!("{bctx}, length"),
-            )?;
-            let width = self.positive(
-                self.req(&rb.width, &b.span(), &bctx, "width", "\"40 ft\"")?,
-                Quantity::Length,
-                &format!("{bctx}, width"),
-            )?;
-            let side_raw = self.req(
-                &rb.side,
-                &b.span(),
-                &bctx,
-                "side",
-                "3.0 (horizontal per vertical)",
-            )?;
-            let side = self.num(side_raw, &format!("{bctx}, side"))?;
-            if side < 0.0 {
-                return Err(self
-                    .err(
-                        &side_raw.span(),
-                        &format!("{bctx}, side"),
-                        "the side slope cannot be negative",
-                    )
-                    .expected("0 or more (horizontal per vertical)"));
-            }
-            let depth = self.positive(
-                self.req(&rb.depth, &b.span(), &bctx, "depth", "\"6 ft\"")?,
-                Quantity::Length,
-                &format!("{bctx}, depth"),
-            )?;
-            let rows = crate::methods::pond::basin_stage_area(bottom, length, width, side, depth)
-                .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
-            let s = StageStorage::from_stage_area(&rows)
-                .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
-            (
-                s,
-                "basin geometry (stage-area, conic frustum)",
-                Some(bottom + depth),
-            )
-        } else {
-            unreachable_storage()?
-        };
+        let (storage, storage_kind, table_top) = self.pond_storage(rp, span, ctx)?;
         let bottom = storage.bottom_ft();
         let top_ft = match &rp.top {
             Some(t) => {
@@ -214,7 +106,171 @@ impl Builder<'_> {
             outlets.push(outlet);
             sized.extend(s);
         }
-        let start_ft = match &rp.start {
+        let start_ft = self.pond_start(rp, ctx, bottom, top_ft)?;
+        let top_length_ft = match &rp.top_length {
+            Some(t) => self.positive(t, Quantity::Length, &format!("{ctx}, top_length"))?,
+            None => match top_ft {
+                Some(t) => storage.area_at_ft2(t).max(1.0).sqrt(),
+                None => 0.0,
+            },
+        };
+        let min_freeboard_ft = self.pond_freeboard(rp, ctx, top_ft)?;
+        let max_drain_time_h = match &rp.max_drain_time {
+            Some(v) => Some(self.positive(v, Quantity::Time, &format!("{ctx}, max_drain_time"))?),
+            None => None,
+        };
+        let grid_step_ft = match self.units {
+            UnitSystem::Us => 0.01,
+            UnitSystem::Si => 0.003 / units::M_PER_FT,
+        };
+        Ok((
+            Pond {
+                storage,
+                storage_kind,
+                outlets,
+                outlet_names,
+                start_ft,
+                top_ft,
+                top_length_ft,
+                min_freeboard_ft,
+                max_drain_time_h,
+                grid_step_ft,
+            },
+            sized,
+        ))
+    }
+
+    /// The storage of a pond (exactly one of a stage-area table, a
+    /// stage-volume table or a basin), its kind in words, and the top of
+    /// the table where a basin gives one.
+    fn pond_storage(
+        &self,
+        rp: &RawPond,
+        span: &std::ops::Range<usize>,
+        ctx: &str,
+    ) -> R<(StageStorage, &'static str, Option<f64>)> {
+        let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
+        let af = Quantity::SectionArea.bare_factor(self.units).unwrap_or(1.0);
+        let vf = Quantity::Volume.bare_factor(self.units).unwrap_or(1.0);
+        let given = [
+            rp.stage_area.is_some(),
+            rp.stage_volume.is_some(),
+            rp.basin.is_some(),
+        ]
+        .iter()
+        .filter(|x| **x)
+        .count();
+        if given != 1 {
+            return Err(self
+                .err(
+                    span,
+                    ctx,
+                    if given == 0 {
+                        "the pond has no storage"
+                    } else {
+                        "the pond's storage is given more than once"
+                    },
+                )
+                .expected("exactly one of `stage_area`, `stage_volume` or `basin`"));
+        }
+        Ok(if let Some(t) = &rp.stage_area {
+            let rows = self.table_rows(t, &format!("{ctx}, stage_area"), lf, af)?;
+            self.bounded_rows(
+                &rows,
+                &t.span(),
+                &format!("{ctx}, stage_area"),
+                [
+                    (Quantity::Length, "stage", None),
+                    (Quantity::SectionArea, "area", None),
+                ],
+            )?;
+            let s = StageStorage::from_stage_area(&rows).map_err(|e| {
+                self.err(&t.span(), &format!("{ctx}, stage_area"), e.to_string())
+                    .expected(
+                        "[stage, area] rows with stages increasing and areas >= 0, not decreasing",
+                    )
+            })?;
+            (
+                s,
+                "stage-area (conic frustum between rows)",
+                rows.last().map(|r| r.0),
+            )
+        } else if let Some(t) = &rp.stage_volume {
+            let rows = self.table_rows(t, &format!("{ctx}, stage_volume"), lf, vf)?;
+            self.bounded_rows(
+                &rows,
+                &t.span(),
+                &format!("{ctx}, stage_volume"),
+                [
+                    (Quantity::Length, "stage", None),
+                    (Quantity::Volume, "volume", None),
+                ],
+            )?;
+            let s = StageStorage::from_stage_volume(&rows).map_err(|e| self.err(&t.span(), &format!("{ctx}, stage_volume"), e.to_string()).expected("[stage, volume] rows with stages increasing and volumes >= 0, not decreasing"))?;
+            (s, "stage-volume", rows.last().map(|r| r.0))
+        } else if let Some(b) = &rp.basin {
+            let rb = b.get_ref();
+            let bctx = format!("{ctx}, basin");
+            let bottom = self.elevation(
+                self.req(&rb.bottom, &b.span(), &bctx, "bottom", "100.0 (elevation)")?,
+                &format!("{bctx}, bottom"),
+            )?;
+            let length = self.positive(
+                self.req(&rb.length, &b.span(), &bctx, "length", "\"80 ft\"")?,
+                Quantity::Length,
+                &format!("{bctx}, length"),
+            )?;
+            let width = self.positive(
+                self.req(&rb.width, &b.span(), &bctx, "width", "\"40 ft\"")?,
+                Quantity::Length,
+                &format!("{bctx}, width"),
+            )?;
+            let side_raw = self.req(
+                &rb.side,
+                &b.span(),
+                &bctx,
+                "side",
+                "3.0 (horizontal per vertical)",
+            )?;
+            let side = self.num(side_raw, &format!("{bctx}, side"))?;
+            if side < 0.0 {
+                return Err(self
+                    .err(
+                        &side_raw.span(),
+                        &format!("{bctx}, side"),
+                        "the side slope cannot be negative",
+                    )
+                    .expected("0 or more (horizontal per vertical)"));
+            }
+            let depth = self.positive(
+                self.req(&rb.depth, &b.span(), &bctx, "depth", "\"6 ft\"")?,
+                Quantity::Length,
+                &format!("{bctx}, depth"),
+            )?;
+            let rows = crate::methods::pond::basin_stage_area(bottom, length, width, side, depth)
+                .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
+            let s = StageStorage::from_stage_area(&rows)
+                .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
+            (
+                s,
+                "basin geometry (stage-area, conic frustum)",
+                Some(bottom + depth),
+            )
+        } else {
+            unreachable_storage()?
+        })
+    }
+
+    /// The starting water surface (ft), between the bottom and the top.
+    fn pond_start(
+        &self,
+        rp: &RawPond,
+        ctx: &str,
+        bottom: f64,
+        top_ft: Option<f64>,
+    ) -> R<Option<f64>> {
+        let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
+        Ok(match &rp.start {
             Some(s) => {
                 let v = self.elevation(s, &format!("{ctx}, start"))?;
                 if v < bottom - 1e-9 {
@@ -248,15 +304,12 @@ impl Builder<'_> {
                 Some(v)
             }
             None => None,
-        };
-        let top_length_ft = match &rp.top_length {
-            Some(t) => self.positive(t, Quantity::Length, &format!("{ctx}, top_length"))?,
-            None => match top_ft {
-                Some(t) => storage.area_at_ft2(t).max(1.0).sqrt(),
-                None => 0.0,
-            },
-        };
-        let min_freeboard_ft = match &rp.min_freeboard {
+        })
+    }
+
+    /// The least freeboard asked for (ft); it needs a top.
+    fn pond_freeboard(&self, rp: &RawPond, ctx: &str, top_ft: Option<f64>) -> R<Option<f64>> {
+        Ok(match &rp.min_freeboard {
             Some(v) => {
                 if top_ft.is_none() {
                     return Err(self
@@ -280,29 +333,6 @@ impl Builder<'_> {
                 Some(f)
             }
             None => None,
-        };
-        let max_drain_time_h = match &rp.max_drain_time {
-            Some(v) => Some(self.positive(v, Quantity::Time, &format!("{ctx}, max_drain_time"))?),
-            None => None,
-        };
-        let grid_step_ft = match self.units {
-            UnitSystem::Us => 0.01,
-            UnitSystem::Si => 0.003 / units::M_PER_FT,
-        };
-        Ok((
-            Pond {
-                storage,
-                storage_kind,
-                outlets,
-                outlet_names,
-                start_ft,
-                top_ft,
-                top_length_ft,
-                min_freeboard_ft,
-                max_drain_time_h,
-                grid_step_ft,
-            },
-            sized,
-        ))
+        })
     }
 }
