@@ -12,92 +12,7 @@ impl Builder<'_> {
         ctx: &str,
         p2_in: Option<f64>,
     ) -> R<Catchment> {
-        let mut covers = Vec::new();
-        for (i, cv) in rc.cover.iter().enumerate() {
-            let c = cv.get_ref();
-            let cctx = format!("{ctx}, cover {}", i + 1);
-            let area = self.positive(
-                self.req(&c.area, &cv.span(), &cctx, "area", "\"3.0 ac\"")?,
-                Quantity::Area,
-                &format!("{cctx}, area"),
-            )?;
-            let (cn, label, pervious) = match (&c.cn, &c.land) {
-                (Some(_), Some(l)) => {
-                    return Err(self
-                        .err(
-                            &l.span(),
-                            &format!("{cctx}, land"),
-                            "a cover takes either `cn` or `land` + `soil`, not both",
-                        )
-                        .expected("one of them"));
-                }
-                (Some(cn), None) => {
-                    let v = self.cn(cn, &format!("{cctx}, cn"))?;
-                    (
-                        v,
-                        c.note.clone().unwrap_or_else(|| "CN given".into()),
-                        v < 98.0,
-                    )
-                }
-                (None, Some(l)) => {
-                    let soil_raw = self.req(
-                        &c.soil,
-                        &cv.span(),
-                        &cctx,
-                        "soil",
-                        "\"A\", \"B\", \"C\" or \"D\"",
-                    )?;
-                    let soil = cover::Soil::parse(soil_raw.get_ref()).ok_or_else(|| {
-                        self.err(
-                            &soil_raw.span(),
-                            &format!("{cctx}, soil"),
-                            format!("unknown hydrologic soil group \"{}\"", soil_raw.get_ref()),
-                        )
-                        .expected("A, B, C or D")
-                    })?;
-                    let cn = cover::lookup(l.get_ref(), soil).map_err(|e| {
-                        self.err(&l.span(), &format!("{cctx}, land"), e.to_string())
-                            .expected("a land-cover key listed in the README (\"Land covers\")")
-                    })?;
-                    let pervious = cover::COVERS
-                        .iter()
-                        .find(|e| e.key == l.get_ref())
-                        .map(|e| e.pervious)
-                        .unwrap_or(true);
-                    (
-                        cn,
-                        format!(
-                            "{} ({})",
-                            l.get_ref(),
-                            soil_raw.get_ref().to_ascii_uppercase()
-                        ),
-                        pervious,
-                    )
-                }
-                (None, None) => {
-                    return Err(self
-                        .err(
-                            &cv.span(),
-                            &cctx,
-                            "a cover needs `cn`, or `land` and `soil`",
-                        )
-                        .expected("cn = 98, or land = \"open-space-good\" with soil = \"C\""));
-                }
-            };
-            if pervious && cn > 98.0 {
-                self.warnings.push(Warning::CnHighPervious {
-                    catchment: rc.name.get_ref().clone(),
-                    cover: label.clone(),
-                    cn,
-                });
-            }
-            covers.push(CoverRow {
-                label,
-                cn,
-                area_ac: area,
-                pervious,
-            });
-        }
+        let covers = self.catchment_covers(rc, ctx)?;
         let cover_total: f64 = covers.iter().map(|c| c.area_ac).sum();
         let area_ac = match &rc.area {
             Some(a) => {
@@ -159,81 +74,7 @@ impl Builder<'_> {
                     .expected("0.2 (TR-55) or 0.05 (Hawkins et al. 2002)"));
             }
         };
-        let mut segments = Vec::new();
-        for (i, f) in rc.flow.iter().enumerate() {
-            segments.push(self.segment(
-                f,
-                &format!("{ctx}, flow segment {}", i + 1),
-                p2_in,
-                rc.name.get_ref(),
-                i + 1,
-            )?);
-        }
-        let tc_h = match (&rc.tc, segments.is_empty()) {
-            (Some(t), true) => self.positive(t, Quantity::Time, &format!("{ctx}, tc"))?,
-            (Some(t), false) => {
-                return Err(self
-                    .err(
-                        &t.span(),
-                        &format!("{ctx}, tc"),
-                        "give either `tc` or a flow path of [[catchment.flow]], not both",
-                    )
-                    .expected("one of them"));
-            }
-            (None, false) => timing::time_of_concentration_h(&segments, p2_in.unwrap_or(1.0)),
-            (None, true) => {
-                return Err(self
-                    .err(
-                        span,
-                        ctx,
-                        "missing `tc` (or a flow path of [[catchment.flow]])",
-                    )
-                    .expected("`tc = \"12 min\"` or [[catchment.flow]] segments"));
-            }
-        };
-        if !(tc_h > 0.0 && tc_h.is_finite()) {
-            return Err(self
-                .err(
-                    span,
-                    ctx,
-                    format!("the time of concentration works out to {tc_h} h"),
-                )
-                .expected("a positive, finite Tc"));
-        }
-        if tc_h > 24.0 {
-            let (at, hint) = match &rc.tc {
-                Some(t) => {
-                    let hint = match t.get_ref() {
-                        RawValue::Text(txt) => match units::split_number(txt) {
-                            Ok((x, u)) if matches!(u.to_ascii_lowercase().as_str(), "h" | "hr" | "hrs" | "hour" | "hours") => {
-                                format!("did you mean \"{} min\"?", units::short(x, 4))
-                            }
-                            Ok((x, u)) if matches!(u.to_ascii_lowercase().as_str(), "d" | "day" | "days") => {
-                                format!("did you mean \"{} h\"?", units::short(x, 4))
-                            }
-                            _ => "check the value and its unit".to_string(),
-                        },
-                        _ => "check the value and its unit".to_string(),
-                    };
-                    (format!("{ctx}, tc"), hint)
-                }
-                None => (
-                    ctx.to_string(),
-                    "check each flow segment's length, slope and Manning n (`runnel check` lists every segment's travel time) and `p2`".to_string(),
-                ),
-            };
-            self.warnings.push(Warning::TcLong {
-                at,
-                value: format!("{} h", units::short(tc_h, 4)),
-                hint,
-            });
-        }
-        if tc_h < 0.1 {
-            self.warnings.push(Warning::TcShort {
-                catchment: rc.name.get_ref().clone(),
-                tc_h,
-            });
-        }
+        let (segments, tc_h) = self.catchment_tc(rc, span, ctx, p2_in)?;
         let prf = match &rc.prf {
             Some(p) => self.num(p, &format!("{ctx}, prf"))?,
             None => unit_hydrograph::STANDARD_PRF,
@@ -332,44 +173,11 @@ impl Builder<'_> {
                     rf.section.as_ref().map(|s| s.span()),
                     "sheet",
                 )?;
-                let n_raw = self.req(
-                    &rf.n,
-                    &f.span(),
-                    ctx,
-                    "n",
-                    "0.15 or a surface name such as \"grass-short-prairie\"",
-                )?;
-                let n = match n_raw.get_ref() {
-                    NumOrName::Num(x) => *x,
-                    NumOrName::Name(s) => cover::sheet_flow_n(s).map_err(|e| {
-                        self.err(&n_raw.span(), &format!("{ctx}, n"), e.to_string())
-                            .expected("a Manning n, or a sheet-flow surface listed in the README")
-                    })?,
-                };
-                if !(n > 0.0 && n.is_finite()) {
-                    return Err(self
-                        .err(
-                            &n_raw.span(),
-                            &format!("{ctx}, n"),
-                            format!("Manning n must be positive, got {n}"),
-                        )
-                        .expected("a positive roughness such as 0.15"));
-                }
+                let n = self.sheet_n(f, ctx)?;
                 if p2_in.is_none() {
                     return Err(self.err(&kind.span(), ctx, "sheet flow needs the 2-year 24-hour rainfall `p2` at the top of the scenario").expected("`p2 = \"3.3 in\"` at the top level").hint("TR-55 eq. 3-3 uses P2"));
                 }
-                if length_ft > timing::SHEET_FLOW_GUIDANCE_FT + 1e-9 {
-                    let f_out = Quantity::Length.output_factor(self.units);
-                    self.warnings.push(Warning::SheetFlowLong {
-                        catchment: catchment.to_string(),
-                        segment: index,
-                        length: format!(
-                            "{:.0} {}",
-                            length_ft * f_out,
-                            Quantity::Length.output_unit(self.units)
-                        ),
-                    });
-                }
+                self.sheet_length_warning(length_ft, catchment, index);
                 Ok(Segment::Sheet {
                     n,
                     length_ft,
@@ -520,6 +328,230 @@ impl Builder<'_> {
                 let span = r.shape.as_ref().map(|x| x.span()).unwrap_or(s.span());
                 Err(self.err(&span, &format!("{ctx}, shape"), format!("unknown section shape \"{other}\"")).expected("\"trapezoid\", \"rectangle\", \"pipe\", or flow_area + perimeter with no shape"))
             }
+        }
+    }
+
+    /// The cover rows of a catchment, each with its curve number and area.
+    fn catchment_covers(&mut self, rc: &RawCatchment, ctx: &str) -> R<Vec<CoverRow>> {
+        let mut covers = Vec::new();
+        for (i, cv) in rc.cover.iter().enumerate() {
+            let c = cv.get_ref();
+            let cctx = format!("{ctx}, cover {}", i + 1);
+            let area = self.positive(
+                self.req(&c.area, &cv.span(), &cctx, "area", "\"3.0 ac\"")?,
+                Quantity::Area,
+                &format!("{cctx}, area"),
+            )?;
+            let (cn, label, pervious) = match (&c.cn, &c.land) {
+                (Some(_), Some(l)) => {
+                    return Err(self
+                        .err(
+                            &l.span(),
+                            &format!("{cctx}, land"),
+                            "a cover takes either `cn` or `land` + `soil`, not both",
+                        )
+                        .expected("one of them"));
+                }
+                (Some(cn), None) => {
+                    let v = self.cn(cn, &format!("{cctx}, cn"))?;
+                    (
+                        v,
+                        c.note.clone().unwrap_or_else(|| "CN given".into()),
+                        v < 98.0,
+                    )
+                }
+                (None, Some(l)) => {
+                    let soil_raw = self.req(
+                        &c.soil,
+                        &cv.span(),
+                        &cctx,
+                        "soil",
+                        "\"A\", \"B\", \"C\" or \"D\"",
+                    )?;
+                    let soil = cover::Soil::parse(soil_raw.get_ref()).ok_or_else(|| {
+                        self.err(
+                            &soil_raw.span(),
+                            &format!("{cctx}, soil"),
+                            format!("unknown hydrologic soil group \"{}\"", soil_raw.get_ref()),
+                        )
+                        .expected("A, B, C or D")
+                    })?;
+                    let cn = cover::lookup(l.get_ref(), soil).map_err(|e| {
+                        self.err(&l.span(), &format!("{cctx}, land"), e.to_string())
+                            .expected("a land-cover key listed in the README (\"Land covers\")")
+                    })?;
+                    let pervious = cover::COVERS
+                        .iter()
+                        .find(|e| e.key == l.get_ref())
+                        .map(|e| e.pervious)
+                        .unwrap_or(true);
+                    (
+                        cn,
+                        format!(
+                            "{} ({})",
+                            l.get_ref(),
+                            soil_raw.get_ref().to_ascii_uppercase()
+                        ),
+                        pervious,
+                    )
+                }
+                (None, None) => {
+                    return Err(self
+                        .err(
+                            &cv.span(),
+                            &cctx,
+                            "a cover needs `cn`, or `land` and `soil`",
+                        )
+                        .expected("cn = 98, or land = \"open-space-good\" with soil = \"C\""));
+                }
+            };
+            if pervious && cn > 98.0 {
+                self.warnings.push(Warning::CnHighPervious {
+                    catchment: rc.name.get_ref().clone(),
+                    cover: label.clone(),
+                    cn,
+                });
+            }
+            covers.push(CoverRow {
+                label,
+                cn,
+                area_ac: area,
+                pervious,
+            });
+        }
+        Ok(covers)
+    }
+
+    /// The flow path and the time of concentration (h): given, or summed
+    /// over the flow path;
+    /// warnings when it is unusually long or short.
+    fn catchment_tc(
+        &mut self,
+        rc: &RawCatchment,
+        span: &std::ops::Range<usize>,
+        ctx: &str,
+        p2_in: Option<f64>,
+    ) -> R<(Vec<Segment>, f64)> {
+        let mut segments = Vec::new();
+        for (i, f) in rc.flow.iter().enumerate() {
+            segments.push(self.segment(
+                f,
+                &format!("{ctx}, flow segment {}", i + 1),
+                p2_in,
+                rc.name.get_ref(),
+                i + 1,
+            )?);
+        }
+        let tc_h = match (&rc.tc, segments.is_empty()) {
+            (Some(t), true) => self.positive(t, Quantity::Time, &format!("{ctx}, tc"))?,
+            (Some(t), false) => {
+                return Err(self
+                    .err(
+                        &t.span(),
+                        &format!("{ctx}, tc"),
+                        "give either `tc` or a flow path of [[catchment.flow]], not both",
+                    )
+                    .expected("one of them"));
+            }
+            (None, false) => timing::time_of_concentration_h(&segments, p2_in.unwrap_or(1.0)),
+            (None, true) => {
+                return Err(self
+                    .err(
+                        span,
+                        ctx,
+                        "missing `tc` (or a flow path of [[catchment.flow]])",
+                    )
+                    .expected("`tc = \"12 min\"` or [[catchment.flow]] segments"));
+            }
+        };
+        if !(tc_h > 0.0 && tc_h.is_finite()) {
+            return Err(self
+                .err(
+                    span,
+                    ctx,
+                    format!("the time of concentration works out to {tc_h} h"),
+                )
+                .expected("a positive, finite Tc"));
+        }
+        if tc_h > 24.0 {
+            let (at, hint) = match &rc.tc {
+                Some(t) => {
+                    let hint = match t.get_ref() {
+                        RawValue::Text(txt) => match units::split_number(txt) {
+                            Ok((x, u)) if matches!(u.to_ascii_lowercase().as_str(), "h" | "hr" | "hrs" | "hour" | "hours") => {
+                                format!("did you mean \"{} min\"?", units::short(x, 4))
+                            }
+                            Ok((x, u)) if matches!(u.to_ascii_lowercase().as_str(), "d" | "day" | "days") => {
+                                format!("did you mean \"{} h\"?", units::short(x, 4))
+                            }
+                            _ => "check the value and its unit".to_string(),
+                        },
+                        _ => "check the value and its unit".to_string(),
+                    };
+                    (format!("{ctx}, tc"), hint)
+                }
+                None => (
+                    ctx.to_string(),
+                    "check each flow segment's length, slope and Manning n (`runnel check` lists every segment's travel time) and `p2`".to_string(),
+                ),
+            };
+            self.warnings.push(Warning::TcLong {
+                at,
+                value: format!("{} h", units::short(tc_h, 4)),
+                hint,
+            });
+        }
+        if tc_h < 0.1 {
+            self.warnings.push(Warning::TcShort {
+                catchment: rc.name.get_ref().clone(),
+                tc_h,
+            });
+        }
+        Ok((segments, tc_h))
+    }
+
+    /// The Manning n of sheet flow: a number or a surface name.
+    fn sheet_n(&self, f: &Spanned<RawFlow>, ctx: &str) -> R<f64> {
+        let rf = f.get_ref();
+        let n_raw = self.req(
+            &rf.n,
+            &f.span(),
+            ctx,
+            "n",
+            "0.15 or a surface name such as \"grass-short-prairie\"",
+        )?;
+        let n = match n_raw.get_ref() {
+            NumOrName::Num(x) => *x,
+            NumOrName::Name(s) => cover::sheet_flow_n(s).map_err(|e| {
+                self.err(&n_raw.span(), &format!("{ctx}, n"), e.to_string())
+                    .expected("a Manning n, or a sheet-flow surface listed in the README")
+            })?,
+        };
+        if !(n > 0.0 && n.is_finite()) {
+            return Err(self
+                .err(
+                    &n_raw.span(),
+                    &format!("{ctx}, n"),
+                    format!("Manning n must be positive, got {n}"),
+                )
+                .expected("a positive roughness such as 0.15"));
+        }
+        Ok(n)
+    }
+
+    /// A note when a sheet-flow length exceeds the TR-55 guidance.
+    fn sheet_length_warning(&mut self, length_ft: f64, catchment: &str, index: usize) {
+        if length_ft > timing::SHEET_FLOW_GUIDANCE_FT + 1e-9 {
+            let f_out = Quantity::Length.output_factor(self.units);
+            self.warnings.push(Warning::SheetFlowLong {
+                catchment: catchment.to_string(),
+                segment: index,
+                length: format!(
+                    "{:.0} {}",
+                    length_ft * f_out,
+                    Quantity::Length.output_unit(self.units)
+                ),
+            });
         }
     }
 }
