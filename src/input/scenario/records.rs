@@ -10,37 +10,7 @@ impl Builder<'_> {
         let g = self.req(&rr.gauge, &r.span(), &ctx, "gauge", "\"rain/hourly.csv\"")?;
         let (series, path) = self.gauge(g, &rr.interval, &rr.missing, &ctx, MAX_STEPS)?;
         let interval_h = series.interval_s as f64 / 3600.0;
-        let step_h = match &rr.step {
-            Some(s) => {
-                let v = self.positive(s, Quantity::Time, &format!("{ctx}, step"))?;
-                let n = series.depth.len() as f64 * interval_h / v;
-                if n > MAX_STEPS as f64 {
-                    return Err(self
-                        .err(&s.span(), &format!("{ctx}, step"), format!("the record would need {} steps, more than runnel's limit of {MAX_STEPS}", n as u64))
-                        .expected("a coarser step")
-                        .hint(format!("use a step of at least {}", format_step_up(series.depth.len() as f64 * interval_h / MAX_STEPS as f64))));
-                }
-                // The record must be a whole number of steps, or its last
-                // step would hold only part of an interval's rain.
-                if (n - n.round()).abs() > 1e-6 * n.max(1.0) {
-                    return Err(self
-                        .err(
-                            &s.span(),
-                            &format!("{ctx}, step"),
-                            format!(
-                                "the step of {} does not divide the record ({} intervals of {}): it would need {n:.3} steps",
-                                format_step_up(v),
-                                series.depth.len(),
-                                format_step_up(interval_h)
-                            ),
-                        )
-                        .expected("a step that divides the record, best the gauge interval or a divisor of it")
-                        .hint(format!("use `step = \"{}\"` (the gauge interval)", format_step_up(interval_h))));
-                }
-                v
-            }
-            None => interval_h,
-        };
+        let step_h = self.record_step(rr, &ctx, series.depth.len(), interval_h)?;
         let moisture = match rr.moisture.as_ref().map(|m| m.get_ref().as_str()) {
             None | Some("event") => {
                 let dry_gap_h = match &rr.dry_gap {
@@ -156,6 +126,42 @@ impl Builder<'_> {
             step_h,
             start_s: series.start_s,
             moisture,
+        })
+    }
+
+    /// The step of a record (h): the gauge interval, or a step that divides
+    /// the record and fits in [`MAX_STEPS`].
+    fn record_step(&self, rr: &RawRecord, ctx: &str, intervals: usize, interval_h: f64) -> R<f64> {
+        Ok(match &rr.step {
+            Some(s) => {
+                let v = self.positive(s, Quantity::Time, &format!("{ctx}, step"))?;
+                let n = intervals as f64 * interval_h / v;
+                if n > MAX_STEPS as f64 {
+                    return Err(self
+                        .err(&s.span(), &format!("{ctx}, step"), format!("the record would need {} steps, more than runnel's limit of {MAX_STEPS}", n as u64))
+                        .expected("a coarser step")
+                        .hint(format!("use a step of at least {}", format_step_up(intervals as f64 * interval_h / MAX_STEPS as f64))));
+                }
+                // The record must be a whole number of steps, or its last
+                // step would hold only part of an interval's rain.
+                if (n - n.round()).abs() > 1e-6 * n.max(1.0) {
+                    return Err(self
+                        .err(
+                            &s.span(),
+                            &format!("{ctx}, step"),
+                            format!(
+                                "the step of {} does not divide the record ({} intervals of {}): it would need {n:.3} steps",
+                                format_step_up(v),
+                                intervals,
+                                format_step_up(interval_h)
+                            ),
+                        )
+                        .expected("a step that divides the record, best the gauge interval or a divisor of it")
+                        .hint(format!("use `step = \"{}\"` (the gauge interval)", format_step_up(interval_h))));
+                }
+                v
+            }
+            None => interval_h,
         })
     }
 }
