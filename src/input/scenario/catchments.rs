@@ -141,34 +141,16 @@ impl Builder<'_> {
         {
             self.manning_warning(*n, kind.get_ref(), ctx);
         }
-        // A key given that this kind of segment does not use.
-        let unused =
-            |this: &Self, key: &str, sp: Option<std::ops::Range<usize>>, k: &str| -> R<()> {
-                if let Some(sp) = sp {
-                    return Err(this
-                        .err(
-                            &sp,
-                            &format!("{ctx}, {key}"),
-                            format!("`{key}` is not used by {k} flow"),
-                        )
-                        .expected(match k {
-                            "sheet" => "kind, n, length, slope",
-                            "shallow" => "kind, surface, length, slope",
-                            _ => "kind, n, length, slope, section",
-                        }));
-                }
-                Ok(())
-            };
         match kind.get_ref().as_str() {
             "sheet" => {
-                unused(
-                    self,
+                self.unused_flow_key(
+                    ctx,
                     "surface",
                     rf.surface.as_ref().map(|s| s.span()),
                     "sheet",
                 )?;
-                unused(
-                    self,
+                self.unused_flow_key(
+                    ctx,
                     "section",
                     rf.section.as_ref().map(|s| s.span()),
                     "sheet",
@@ -185,9 +167,9 @@ impl Builder<'_> {
                 })
             }
             "shallow" => {
-                unused(self, "n", rf.n.as_ref().map(|s| s.span()), "shallow")?;
-                unused(
-                    self,
+                self.unused_flow_key(ctx, "n", rf.n.as_ref().map(|s| s.span()), "shallow")?;
+                self.unused_flow_key(
+                    ctx,
                     "section",
                     rf.section.as_ref().map(|s| s.span()),
                     "shallow",
@@ -211,8 +193,8 @@ impl Builder<'_> {
                 })
             }
             "channel" => {
-                unused(
-                    self,
+                self.unused_flow_key(
+                    ctx,
                     "surface",
                     rf.surface.as_ref().map(|s| s.span()),
                     "channel",
@@ -553,5 +535,29 @@ impl Builder<'_> {
                 ),
             });
         }
+    }
+
+    /// A key given that this kind of flow segment does not use.
+    fn unused_flow_key(
+        &self,
+        ctx: &str,
+        key: &str,
+        sp: Option<std::ops::Range<usize>>,
+        kind: &str,
+    ) -> R<()> {
+        if let Some(sp) = sp {
+            return Err(self
+                .err(
+                    &sp,
+                    &format!("{ctx}, {key}"),
+                    format!("`{key}` is not used by {kind} flow"),
+                )
+                .expected(match kind {
+                    "sheet" => "kind, n, length, slope",
+                    "shallow" => "kind, surface, length, slope",
+                    _ => "kind, n, length, slope, section",
+                }));
+        }
+        Ok(())
     }
 }
