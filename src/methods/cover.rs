@@ -1354,23 +1354,4 @@ mod tests {
         );
         assert!(message.contains("did you mean `unpaved`"), "{message}");
     }
-
-    #[test]
-    fn edit_distance_counts_single_character_edits() {
-        assert_eq!(edit_distance("", ""), 0);
-        assert_eq!(edit_distance("abc", ""), 3);
-        assert_eq!(edit_distance("", "ab"), 2);
-        assert_eq!(edit_distance("kitten", "sitting"), 3);
-        assert_eq!(edit_distance("flaw", "lawn"), 2);
-        assert_eq!(edit_distance("münchen", "munchen"), 1);
-    }
-
-    #[test]
-    fn nearest_prefers_the_smallest_distance_and_ignores_case() {
-        let names = ["Pond A", "Pond B", "outfall"];
-        assert_eq!(nearest("pond a", names), Some("Pond A"));
-        assert_eq!(nearest("outfal", names), Some("outfall"));
-        assert_eq!(nearest("zzzzzz", names), None);
-        assert_eq!(nearest("", names), None);
-    }
 }

@@ -81,13 +81,23 @@ mod tests {
     use super::*;
 
     #[test]
-    fn edit_distance_counts_characters() {
-        // Levenshtein (1966): insertions, deletions and substitutions
-        // cost 1 each; common practice, no published source for the cases.
-        assert_eq!(edit_distance("weir", "wier"), 2);
-        assert_eq!(edit_distance("riser", "risers"), 1);
-        assert_eq!(edit_distance("", "abc"), 3);
-        assert_eq!(edit_distance("e\u{301}", "e"), 1);
+    fn edit_distance_counts_single_character_edits() {
+        // Levenshtein distance; common practice, no published source.
+        assert_eq!(edit_distance("", ""), 0);
+        assert_eq!(edit_distance("abc", ""), 3);
+        assert_eq!(edit_distance("", "ab"), 2);
+        assert_eq!(edit_distance("kitten", "sitting"), 3);
+        assert_eq!(edit_distance("flaw", "lawn"), 2);
+        assert_eq!(edit_distance("münchen", "munchen"), 1);
+    }
+
+    #[test]
+    fn nearest_prefers_the_smallest_distance_and_ignores_case() {
+        let names = ["Pond A", "Pond B", "outfall"];
+        assert_eq!(nearest("pond a", names), Some("Pond A"));
+        assert_eq!(nearest("outfal", names), Some("outfall"));
+        assert_eq!(nearest("zzzzzz", names), None);
+        assert_eq!(nearest("", names), None);
     }
 
     #[test]

@@ -215,7 +215,7 @@ impl Builder<'_> {
         // Points and limits.
         let mut points = Vec::new();
         for p in &raw.point {
-            points.push(self.point(p, &conditions, &storms)?);
+            points.push(self.point(p, conditions, storms)?);
         }
         for (pi, p) in points.iter().enumerate() {
             if baseline_empty {

@@ -209,7 +209,7 @@ impl Builder<'_> {
                                 "the flow path loops back on itself (a cycle)",
                             )
                             .expected("every path to end at a point")
-                            .hint(cycle_text(&elements, at)));
+                            .hint(cycle_text(elements, at)));
                     }
                     seen[at] = true;
                     match elements[at].to {
