@@ -20,6 +20,7 @@
 //! was given; its row numbers count from 1.
 
 use crate::methods::hydraulics::{Outlet, total_flow_cfs};
+use crate::methods::stats::max_first;
 
 /// Largest number of rows a [`PondTable`] may have.
 pub const MAX_TABLE_ROWS: usize = 5_000_000;
@@ -1097,15 +1098,31 @@ pub struct PondSummary {
     pub lowest_orifice_submerged: Option<bool>,
 }
 
-/// Index and value of the first largest element (index 0 and `-inf` when empty).
-fn first_max(v: &[f64]) -> (usize, f64) {
-    let mut best = (0, f64::NEG_INFINITY);
-    for (i, &x) in v.iter().enumerate() {
-        if x > best.1 {
-            best = (i, x);
-        }
+/// What [`max_first`] stands for when a series has no value that is not NaN.
+const NO_PEAK: (f64, usize) = (f64::NEG_INFINITY, 0);
+
+/// The drain rule of the scenario-format contract: the index of the first
+/// value at or after the peak at which the storage above the starting
+/// storage falls below 1 % of its peak rise. `peak` is `(storage ft3,
+/// index)` of the peak; `storage` ft3; `start_storage_ft3` the starting
+/// storage. The peak's own index when the storage never rises above the
+/// start; None when it does not drain within the series.
+pub fn drain_index(
+    storage_ft3: &[f64],
+    start_storage_ft3: f64,
+    peak: (f64, usize),
+) -> Option<usize> {
+    let (peak_storage, from) = peak;
+    let rise = peak_storage - start_storage_ft3;
+    if rise <= 0.0 {
+        return Some(from);
     }
-    best
+    let threshold = 0.01 * rise;
+    storage_ft3
+        .get(from..)?
+        .iter()
+        .position(|&s| s - start_storage_ft3 < threshold)
+        .map(|k| from + k)
 }
 
 /// Trapezoidal volume (ft3) of a flow series (cfs) at step `dt_s` (s).
@@ -1216,20 +1233,20 @@ fn summarize_core(
         .iter()
         .map(|&q| finite_or_zero(q))
         .fold(0.0, f64::max);
-    let (k_out, peak_out) = if n == 0 {
-        (0, start_o)
+    let (peak_out, k_out) = if n == 0 {
+        (start_o, 0)
     } else {
-        first_max(outflow)
+        max_first(outflow).unwrap_or(NO_PEAK)
     };
-    let (k_stage, peak_stage) = if n == 0 {
-        (0, start_h)
+    let (peak_stage, k_stage) = if n == 0 {
+        (start_h, 0)
     } else {
-        first_max(stage)
+        max_first(stage).unwrap_or(NO_PEAK)
     };
     let peak_storage = if n == 0 {
         start_s
     } else {
-        first_max(storage).1
+        max_first(storage).unwrap_or(NO_PEAK).0
     };
 
     let inflow_volume = trapezoid_volume_ft3(inflow.iter().map(|&q| finite_or_zero(q)), dt_s);
@@ -1241,15 +1258,11 @@ fn summarize_core(
     };
 
     let excess_peak = peak_storage - start_storage;
+    // storage rises with stage, so the peak stage is also the peak storage
     let drain_time_h = if excess_peak <= 0.0 {
         Some(0.0)
     } else {
-        // storage rises with stage, so the peak stage is also the peak storage
-        let threshold = 0.01 * excess_peak;
-        storage[k_stage..]
-            .iter()
-            .position(|&s| s - start_storage < threshold)
-            .map(to_h)
+        drain_index(storage, start_storage, (peak_storage, k_stage)).map(|k| to_h(k - k_stage))
     };
 
     let lowest_outlet_ft = facts.lowest_outlet_ft;
