@@ -161,7 +161,9 @@ pub struct PondResult {
     pub start_ft: f64,
 }
 
-/// Peak value and its index.
+/// Peak flow and its index, `(value, index)`: [`crate::methods::stats::max_first`]
+/// (the one peak-of-a-series helper), with `(0.0, 0)` for a series that never
+/// rises above zero.
 pub fn peak(values: &[f64]) -> (f64, usize) {
     match crate::methods::stats::max_first(values) {
         Some((v, i)) if v > 0.0 => (v, i),
@@ -359,8 +361,7 @@ pub fn simulate_storm_on(
             if let Some(p) = &e.pond {
                 end = end.max(tail(&p.inflow_cfs));
                 let storage = &p.storage_ft3;
-                let peak =
-                    crate::methods::stats::max_first(storage).unwrap_or((f64::NEG_INFINITY, 0));
+                let peak = crate::methods::stats::max_first(storage).unwrap_or(pond::NO_PEAK);
                 let drained =
                     pond::drain_index(storage, storage.first().copied().unwrap_or(0.0), peak);
                 end = end.max(drained.unwrap_or(len - 1));

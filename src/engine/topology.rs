@@ -222,3 +222,225 @@ impl Topology {
         self.path_lag_h.iter().copied().fold(0.0, f64::max)
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// An invented site: two conditions; "shared" belongs to both; in the
+    /// proposed condition "lots" drains through two ponds in series, and
+    /// "side" reaches a second point with a lag.
+    const SITE: &str = r#"
+title = "Topology test site"
+units = "us"
+step = "2 min"
+
+[[storm]]
+name = "10-yr"
+pattern = "nrcs-type-ii"
+depth = "4.0 in"
+
+[[catchment]]
+name = "shared"
+area = "3 ac"
+cn = 70
+tc = "10 min"
+to = "creek"
+
+[[catchment]]
+name = "meadow"
+condition = "existing"
+area = "9 ac"
+cn = 65
+tc = "20 min"
+to = "creek"
+
+[[catchment]]
+name = "lots"
+condition = "proposed"
+area = "6 ac"
+cn = 88
+tc = "10 min"
+to = "upper pond"
+lag = "3 min"
+
+[[catchment]]
+name = "side"
+condition = "proposed"
+area = "2 ac"
+cn = 80
+tc = "10 min"
+to = "ditch"
+lag = "6 min"
+
+[[pond]]
+name = "upper pond"
+condition = "proposed"
+to = "lower pond"
+stage_area = [[50.0, 4000.0], [52.0, 6000.0], [54.0, 8500.0]]
+[[pond.outlet]]
+kind = "orifice"
+invert = 50.0
+diameter = "10 in"
+
+[[pond]]
+name = "lower pond"
+condition = "proposed"
+to = "creek"
+stage_area = [[40.0, 5000.0], [43.0, 9000.0]]
+[[pond.outlet]]
+kind = "orifice"
+invert = 40.0
+diameter = "12 in"
+
+[[point]]
+name = "creek"
+
+[[point]]
+name = "ditch"
+limit = "none"
+"#;
+
+    fn site() -> Study {
+        let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+        let path = dir.path().join("site.toml");
+        std::fs::write(&path, SITE).unwrap_or_else(|e| panic!("{e}"));
+        crate::input::scenario::load(&path).unwrap_or_else(|e| panic!("{e}"))
+    }
+
+    fn index(study: &Study, name: &str) -> usize {
+        study
+            .elements
+            .iter()
+            .position(|e| e.name == name)
+            .unwrap_or_else(|| panic!("no element {name}"))
+    }
+
+    fn condition(study: &Study, name: &str) -> usize {
+        study
+            .conditions
+            .iter()
+            .position(|c| c == name)
+            .unwrap_or_else(|| panic!("no condition {name}"))
+    }
+
+    fn point(study: &Study, name: &str) -> usize {
+        study
+            .points
+            .iter()
+            .position(|p| p.name == name)
+            .unwrap_or_else(|| panic!("no point {name}"))
+    }
+
+    #[test]
+    fn order_puts_every_element_of_a_condition_after_what_drains_into_it() {
+        // runnel's network rule (scenario-format contract: upstream first), no published source
+        let s = site();
+        let t = Topology::new(&s);
+        let (ex, pr) = (condition(&s, "existing"), condition(&s, "proposed"));
+        let names = |c: usize| -> Vec<&str> {
+            t.order(c)
+                .iter()
+                .map(|&i| s.elements[i].name.as_str())
+                .collect()
+        };
+        let mut existing = names(ex);
+        existing.sort_unstable();
+        assert_eq!(existing, ["meadow", "shared"]);
+        let proposed = names(pr);
+        assert_eq!(proposed.len(), 5);
+        let at = |n: &str| proposed.iter().position(|x| *x == n);
+        assert!(at("lots") < at("upper pond"));
+        assert!(at("upper pond") < at("lower pond"));
+        assert!(at("shared").is_some() && at("side").is_some() && at("meadow").is_none());
+        // the element in both conditions is in both orders
+        assert!(t.order(ex).contains(&index(&s, "shared")));
+        assert!(t.order(pr).contains(&index(&s, "shared")));
+        // a condition the study does not have has no elements
+        assert!(t.order(s.conditions.len()).is_empty());
+        // the free function gives the same order
+        assert_eq!(crate::engine::network::order(&s.elements, pr), t.order(pr));
+    }
+
+    #[test]
+    fn areas_add_up_per_condition_at_every_element_and_point() {
+        // sums of the invented areas above (6 + 3 = 9 ac to the creek when proposed)
+        let s = site();
+        let t = Topology::new(&s);
+        let (ex, pr) = (condition(&s, "existing"), condition(&s, "proposed"));
+        let (creek, ditch) = (point(&s, "creek"), point(&s, "ditch"));
+        assert_eq!(t.area_to_point_ac(creek, ex), 12.0);
+        assert_eq!(t.area_to_point_ac(ditch, ex), 0.0);
+        assert_eq!(t.area_to_point_ac(creek, pr), 9.0);
+        assert_eq!(t.area_to_point_ac(ditch, pr), 2.0);
+        let (up, low) = (index(&s, "upper pond"), index(&s, "lower pond"));
+        assert_eq!(t.area_to_element_ac(up, pr), 6.0);
+        assert_eq!(t.area_to_element_ac(low, pr), 6.0);
+        // the ponds are not in the existing condition: nothing drains through them there
+        assert_eq!(t.area_to_element_ac(low, ex), 0.0);
+        // a catchment's own area
+        assert_eq!(t.area_to_element_ac(index(&s, "shared"), ex), 3.0);
+        assert_eq!(t.area_to_element_ac(index(&s, "shared"), pr), 3.0);
+        // the free functions agree with the table
+        for c in [ex, pr] {
+            for p in [creek, ditch] {
+                assert_eq!(
+                    area_to_point_ac(&s.elements, p, c),
+                    t.area_to_point_ac(p, c)
+                );
+            }
+            for j in 0..s.elements.len() {
+                assert_eq!(
+                    area_to_element_ac(&s.elements, j, c),
+                    t.area_to_element_ac(j, c)
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn reach_follows_the_targets_through_ponds_in_series() {
+        // runnel's network rule (each element drains along one path to one point), no published source
+        let s = site();
+        let t = Topology::new(&s);
+        let (creek, ditch) = (point(&s, "creek"), point(&s, "ditch"));
+        let (lots, up, low, side) = (
+            index(&s, "lots"),
+            index(&s, "upper pond"),
+            index(&s, "lower pond"),
+            index(&s, "side"),
+        );
+        assert_eq!(t.target(lots), Target::Element(up));
+        assert_eq!(t.target(up), Target::Element(low));
+        assert_eq!(t.target(low), Target::Point(creek));
+        assert_eq!(t.point_of(lots), Some(creek));
+        assert!(t.reaches(lots, creek) && !t.reaches(lots, ditch));
+        assert!(t.reaches(side, ditch) && !t.reaches(side, creek));
+        assert!(t.reaches_through(lots, up) && t.reaches_through(lots, low));
+        assert!(t.reaches_through(up, up));
+        assert!(!t.reaches_through(low, up));
+        assert!(!t.reaches_through(side, low));
+        for i in 0..s.elements.len() {
+            for j in 0..s.elements.len() {
+                assert_eq!(passes_through(&s.elements, i, j), t.reaches_through(i, j));
+            }
+        }
+    }
+
+    #[test]
+    fn path_lags_add_every_lag_down_to_the_point() {
+        // invented lags above: 3 min from "lots" (the ponds have none), 6 min from "side"
+        let s = site();
+        let t = Topology::new(&s);
+        let (lots, side) = (index(&s, "lots"), index(&s, "side"));
+        assert!((t.path_lag_h(lots) - 3.0 / 60.0).abs() < 1e-12);
+        assert!((t.path_lag_h(side) - 6.0 / 60.0).abs() < 1e-12);
+        assert_eq!(t.path_lag_h(index(&s, "upper pond")), 0.0);
+        assert_eq!(t.path_lag_h(index(&s, "shared")), 0.0);
+        assert_eq!(t.max_path_lag_h(), t.path_lag_h(side));
+        assert_eq!(max_path_lag_h(&s.elements), t.max_path_lag_h());
+        for i in 0..s.elements.len() {
+            assert_eq!(path_lag_h(&s.elements, i), t.path_lag_h(i));
+        }
+    }
+}
