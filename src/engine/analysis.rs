@@ -3,10 +3,11 @@
 //! graphical-method cross-check of every catchment.
 
 use crate::engine::network::{self, StormResult};
+use crate::engine::topology::Topology;
 use crate::methods::graphical_peak::{self, StormType};
 use crate::methods::rainfall::NrcsType;
 use crate::methods::runoff;
-use crate::model::{ElementKind, Limit, Pond, Study, Target};
+use crate::model::{ElementKind, Limit, Pond, Study};
 use crate::warning::Warning;
 use rayon::prelude::*;
 
@@ -101,37 +102,33 @@ impl Analysis {
 /// # Errors
 /// The first storm that cannot be simulated ([`network::SimulationError`]).
 pub fn run_storms_parallel(study: &Study) -> Result<Vec<StormResult>, network::SimulationError> {
+    run_storms(study, &Topology::new(study))
+}
+
+/// [`run_storms_parallel`] on the study's [`Topology`].
+///
+/// # Errors
+/// The first storm that cannot be simulated ([`network::SimulationError`]).
+pub fn run_storms(
+    study: &Study,
+    topology: &Topology,
+) -> Result<Vec<StormResult>, network::SimulationError> {
     let all = study.simulated_conditions();
     (0..study.storms.len())
         .into_par_iter()
-        .map(|s| network::simulate_storm(study, s, &all))
+        .map(|s| network::simulate_storm_on(study, topology, s, &all))
         .collect()
 }
 
-/// Area draining to a point in a condition, ac.
+/// Area draining to a point in a condition, ac (see
+/// [`Topology::area_to_point_ac`]; build a [`Topology`] once to ask for several).
 pub fn area_to_point_ac(study: &Study, point: usize, condition: usize) -> f64 {
-    study
-        .elements
-        .iter()
-        .enumerate()
-        .filter(|(_, e)| e.conditions[condition])
-        .filter_map(|(i, e)| match &e.kind {
-            ElementKind::Catchment(c) if reaches(study, i, point) => Some(c.area_ac),
-            _ => None,
-        })
-        .sum()
+    crate::engine::topology::area_to_point_ac(&study.elements, point, condition)
 }
 
-/// Whether element `i` drains (eventually) to point `p`.
+/// Whether element `i` drains (eventually) to point `p` (see [`Topology::reaches`]).
 pub fn reaches(study: &Study, i: usize, p: usize) -> bool {
-    let mut at = i;
-    for _ in 0..=study.elements.len() {
-        match study.elements[at].to {
-            Target::Point(q) => return q == p,
-            Target::Element(j) => at = j,
-        }
-    }
-    false
+    crate::engine::topology::point_of(&study.elements, i) == Some(p)
 }
 
 /// Peak at a point, cfs.
@@ -153,6 +150,33 @@ pub fn limit_cfs(
     storm: usize,
     condition: usize,
 ) -> Option<f64> {
+    limit_with_area(study, storms, point, storm, || {
+        crate::engine::topology::area_to_point_ac(&study.elements, point, condition)
+    })
+}
+
+/// [`limit_cfs`] on the study's [`Topology`].
+pub fn limit_cfs_on(
+    study: &Study,
+    topology: &Topology,
+    storms: &[StormResult],
+    point: usize,
+    storm: usize,
+    condition: usize,
+) -> Option<f64> {
+    limit_with_area(study, storms, point, storm, || {
+        topology.area_to_point_ac(point, condition)
+    })
+}
+
+/// [`limit_cfs`] with the area draining to the point (ac) from `area_ac`.
+fn limit_with_area(
+    study: &Study,
+    storms: &[StormResult],
+    point: usize,
+    storm: usize,
+    area_ac: impl FnOnce() -> f64,
+) -> Option<f64> {
     let limit = study.points[point].limits.get(storm)?;
     if study.needs_missing_baseline(limit) {
         return None;
@@ -160,9 +184,7 @@ pub fn limit_cfs(
     match limit {
         Limit::None => None,
         Limit::Absolute { flow_cfs } => Some(*flow_cfs),
-        Limit::PerArea { cfs_per_ac } => {
-            Some(cfs_per_ac * area_to_point_ac(study, point, condition))
-        }
+        Limit::PerArea { cfs_per_ac } => Some(cfs_per_ac * area_ac()),
         Limit::Relative {
             fraction,
             condition: lc,
@@ -172,7 +194,7 @@ pub fn limit_cfs(
 }
 
 /// Limit checks at every point for every storm and non-baseline condition.
-pub fn compare(study: &Study, storms: &[StormResult]) -> Vec<Comparison> {
+pub fn compare(study: &Study, topology: &Topology, storms: &[StormResult]) -> Vec<Comparison> {
     let mut out = Vec::new();
     for s in storms {
         for p in 0..study.points.len() {
@@ -181,9 +203,9 @@ pub fn compare(study: &Study, storms: &[StormResult]) -> Vec<Comparison> {
                 if c.condition == study.baseline {
                     continue;
                 }
-                let area_ac = area_to_point_ac(study, p, c.condition);
+                let area_ac = topology.area_to_point_ac(p, c.condition);
                 let baseline_area_ac =
-                    (!study.baseline_empty).then(|| area_to_point_ac(study, p, study.baseline));
+                    (!study.baseline_empty).then(|| topology.area_to_point_ac(p, study.baseline));
                 let peak = point_peak(storms, s.storm, c.condition, p);
                 let unchecked = study.points[p]
                     .limits
@@ -204,7 +226,8 @@ pub fn compare(study: &Study, storms: &[StormResult]) -> Vec<Comparison> {
                     });
                     continue;
                 }
-                let Some(limit) = limit_cfs(study, storms, p, s.storm, c.condition) else {
+                let Some(limit) = limit_cfs_on(study, topology, storms, p, s.storm, c.condition)
+                else {
                     continue;
                 };
                 out.push(Comparison {
@@ -333,8 +356,9 @@ pub fn graphical_checks(study: &Study, storms: &[StormResult]) -> Vec<GraphicalC
 /// A storm that cannot be simulated: a pond that cannot be routed, a
 /// result that is not a finite number, a run too long.
 pub fn analyse(study: &Study) -> Result<Analysis, crate::error::Error> {
-    let storms = run_storms_parallel(study)?;
-    Ok(finish(study, storms))
+    let topology = Topology::new(study);
+    let storms = run_storms(study, &topology)?;
+    Ok(finish_on(study, &topology, storms))
 }
 
 /// Mass-balance errors above this fraction of the inflow volume are warned about.
@@ -342,7 +366,12 @@ pub const MASS_BALANCE_WARN: f64 = 0.001;
 
 /// The checks and warnings for a set of storm results.
 pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
-    let comparisons = compare(study, &storms);
+    finish_on(study, &Topology::new(study), storms)
+}
+
+/// [`finish`] on the study's [`Topology`].
+pub fn finish_on(study: &Study, topology: &Topology, storms: Vec<StormResult>) -> Analysis {
+    let comparisons = compare(study, topology, &storms);
     let pond_checks = pond_checks(study, &storms);
     let graphical = graphical_checks(study, &storms);
     let mut warnings = Vec::new();
@@ -393,7 +422,7 @@ pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
             }
         }
     }
-    warnings.extend(area_balance(study));
+    warnings.extend(area_balance(study, topology));
     // Orifices never submerged in any storm.
     for i in 0..study.elements.len() {
         let Some(p) = pond_of(study, i) else { continue };
@@ -442,33 +471,16 @@ pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
     }
 }
 
-/// Whether element `i`'s flow passes through element `j` on its way down.
+/// Whether element `i`'s flow passes through element `j` on its way down
+/// (see [`Topology::reaches_through`]).
 pub fn reaches_through(study: &Study, i: usize, j: usize) -> bool {
-    let mut at = i;
-    for _ in 0..=study.elements.len() {
-        if at == j {
-            return true;
-        }
-        match study.elements[at].to {
-            Target::Point(_) => return false,
-            Target::Element(k) => at = k,
-        }
-    }
-    false
+    crate::engine::topology::passes_through(&study.elements, i, j)
 }
 
-/// Area draining through element `j` in a condition, ac (its own area for a catchment).
+/// Area draining through element `j` in a condition, ac (its own area for
+/// a catchment; see [`Topology::area_to_element_ac`]).
 pub fn area_to_element_ac(study: &Study, j: usize, condition: usize) -> f64 {
-    study
-        .elements
-        .iter()
-        .enumerate()
-        .filter(|(_, e)| e.conditions[condition])
-        .filter_map(|(i, e)| match &e.kind {
-            ElementKind::Catchment(c) if reaches_through(study, i, j) => Some(c.area_ac),
-            _ => None,
-        })
-        .sum()
+    crate::engine::topology::area_to_element_ac(&study.elements, j, condition)
 }
 
 /// Relative difference of areas above which a point's areas are flagged:
@@ -478,7 +490,7 @@ pub const AREA_BALANCE_TOLERANCE: f64 = 0.05;
 
 /// A warning for every point and condition whose draining area differs from
 /// the baseline's by more than [`AREA_BALANCE_TOLERANCE`].
-pub fn area_balance(study: &Study) -> Vec<Warning> {
+pub fn area_balance(study: &Study, topology: &Topology) -> Vec<Warning> {
     let mut out = Vec::new();
     if study.baseline_empty {
         return out;
@@ -487,12 +499,12 @@ pub fn area_balance(study: &Study) -> Vec<Warning> {
     let af = crate::util::units::Quantity::Area.output_factor(study.units);
     let show = |ac: f64| format!("{} {au}", crate::util::units::sig(ac * af, 4));
     for (p, pt) in study.points.iter().enumerate() {
-        let base = area_to_point_ac(study, p, study.baseline);
+        let base = topology.area_to_point_ac(p, study.baseline);
         for c in study.simulated_conditions() {
             if c == study.baseline {
                 continue;
             }
-            let a = area_to_point_ac(study, p, c);
+            let a = topology.area_to_point_ac(p, c);
             let differs = if base > 0.0 {
                 ((a - base) / base).abs() > AREA_BALANCE_TOLERANCE
             } else {

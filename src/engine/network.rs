@@ -7,6 +7,7 @@
 //! by its `lag`, is added to what reaches its `to`. Every condition of a
 //! storm shares one time base: values at `t = k * step`, k = 0..=n.
 
+use crate::engine::topology::Topology;
 use crate::methods::pond::{self, PondSummary, PondTable, Routed};
 use crate::methods::runoff;
 use crate::methods::timing;
@@ -160,7 +161,9 @@ pub struct PondResult {
     pub start_ft: f64,
 }
 
-/// Peak value and its index.
+/// Peak flow and its index, `(value, index)`: [`crate::methods::stats::max_first`]
+/// (the one peak-of-a-series helper), with `(0.0, 0)` for a series that never
+/// rises above zero.
 pub fn peak(values: &[f64]) -> (f64, usize) {
     match crate::methods::stats::max_first(values) {
         Some((v, i)) if v > 0.0 => (v, i),
@@ -198,29 +201,10 @@ pub fn start_stage_ft(p: &Pond) -> f64 {
     })
 }
 
-/// Elements of a condition in upstream-first order.
+/// Elements of a condition in upstream-first order (see
+/// [`Topology::order`]; build a [`Topology`] once to ask for several).
 pub fn order(elements: &[Element], condition: usize) -> Vec<usize> {
-    let members: Vec<usize> = (0..elements.len())
-        .filter(|&i| elements[i].conditions[condition])
-        .collect();
-    let mut indeg = vec![0usize; elements.len()];
-    for &i in &members {
-        if let Target::Element(j) = elements[i].to {
-            indeg[j] += 1;
-        }
-    }
-    let mut ready: Vec<usize> = members.iter().copied().filter(|&i| indeg[i] == 0).collect();
-    let mut out = Vec::with_capacity(members.len());
-    while let Some(i) = ready.pop() {
-        out.push(i);
-        if let Target::Element(j) = elements[i].to {
-            indeg[j] -= 1;
-            if indeg[j] == 0 {
-                ready.push(j);
-            }
-        }
-    }
-    out
+    crate::engine::topology::upstream_first(elements, condition)
 }
 
 /// Adds `src` shifted later by `lag_h` into `dst` (linear interpolation
@@ -258,18 +242,10 @@ pub fn catchment_uh(c: &crate::model::Catchment, step_h: f64) -> Vec<f64> {
     unit_hydrograph::ordinates_cfs_per_in(c.shape, c.area_ac, tp, step_h)
 }
 
-/// Sum of the `lag`s (h) from element `i` down to its point, its own included.
+/// Sum of the `lag`s (h) from element `i` down to its point, its own
+/// included (see [`Topology::path_lag_h`]).
 pub fn path_lag_h(study: &Study, i: usize) -> f64 {
-    let mut at = i;
-    let mut lag = 0.0;
-    for _ in 0..=study.elements.len() {
-        lag += study.elements[at].lag_h.max(0.0);
-        match study.elements[at].to {
-            Target::Point(_) => break,
-            Target::Element(j) => at = j,
-        }
-    }
-    lag
+    crate::engine::topology::path_lag_h(&study.elements, i)
 }
 
 /// Number of steps simulated before trimming for a storm: the last rain or
@@ -279,6 +255,27 @@ pub fn path_lag_h(study: &Study, i: usize) -> f64 {
 /// # Errors
 /// [`SimulationError::TooLong`] past [`MAX_RUN_STEPS`] steps.
 pub fn horizon_steps(study: &Study, storm: usize) -> Result<usize, SimulationError> {
+    horizon_after_lags(
+        study,
+        storm,
+        crate::engine::topology::max_path_lag_h(&study.elements),
+    )
+}
+
+/// [`horizon_steps`] on the study's [`Topology`].
+///
+/// # Errors
+/// [`SimulationError::TooLong`] past [`MAX_RUN_STEPS`] steps.
+pub fn horizon_steps_on(
+    study: &Study,
+    topology: &Topology,
+    storm: usize,
+) -> Result<usize, SimulationError> {
+    horizon_after_lags(study, storm, topology.max_path_lag_h())
+}
+
+/// [`horizon_steps`] with the longest sum of lags down the network, h.
+fn horizon_after_lags(study: &Study, storm: usize, max_lag: f64) -> Result<usize, SimulationError> {
     let s = &study.storms[storm];
     let inflow_end = study
         .elements
@@ -289,9 +286,6 @@ pub fn horizon_steps(study: &Study, storm: usize) -> Result<usize, SimulationErr
             }
             _ => None,
         })
-        .fold(0.0, f64::max);
-    let max_lag = (0..study.elements.len())
-        .map(|i| path_lag_h(study, i))
         .fold(0.0, f64::max);
     let end = s.rain_end_h().max(inflow_end) + max_lag + TAIL_H;
     let steps = (end / study.step_h).ceil().max(1.0);
@@ -319,13 +313,26 @@ pub fn simulate_storm(
     storm: usize,
     conditions: &[usize],
 ) -> Result<StormResult, SimulationError> {
+    simulate_storm_on(study, &Topology::new(study), storm, conditions)
+}
+
+/// [`simulate_storm`] on the study's [`Topology`], built once for every storm.
+///
+/// # Errors
+/// As [`simulate_storm`].
+pub fn simulate_storm_on(
+    study: &Study,
+    topology: &Topology,
+    storm: usize,
+    conditions: &[usize],
+) -> Result<StormResult, SimulationError> {
     let step_h = study.step_h;
-    let n = horizon_steps(study, storm)?;
+    let n = horizon_steps_on(study, topology, storm)?;
     let len = n + 1;
     let rain = study.storms[storm].rain_at_step(step_h, n);
     let mut results: Vec<ConditionResult> = conditions
         .iter()
-        .map(|&c| simulate_condition(study, storm, c, &rain, len))
+        .map(|&c| simulate_condition(study, topology, storm, c, &rain, len))
         .collect::<Result<_, _>>()?;
     for r in &results {
         check_finite(study, storm, r)?;
@@ -353,10 +360,10 @@ pub fn simulate_storm(
             end = end.max(tail(&e.outflow_cfs));
             if let Some(p) = &e.pond {
                 end = end.max(tail(&p.inflow_cfs));
-                let drained = drain_index(
-                    &p.storage_ft3,
-                    p.storage_ft3.first().copied().unwrap_or(0.0),
-                );
+                let storage = &p.storage_ft3;
+                let peak = crate::methods::stats::max_first(storage).unwrap_or(pond::NO_PEAK);
+                let drained =
+                    pond::drain_index(storage, storage.first().copied().unwrap_or(0.0), peak);
                 end = end.max(drained.unwrap_or(len - 1));
             }
         }
@@ -479,27 +486,11 @@ fn check_finite(study: &Study, storm: usize, r: &ConditionResult) -> Result<(), 
     Ok(())
 }
 
-/// First index after the peak where storage above the start falls below 1 % of its peak.
-fn drain_index(storage: &[f64], start: f64) -> Option<usize> {
-    let (pk, pi) =
-        storage.iter().enumerate().fold(
-            (f64::NEG_INFINITY, 0),
-            |b, (i, &v)| if v > b.0 { (v, i) } else { b },
-        );
-    let rise = pk - start;
-    if rise <= 0.0 {
-        return Some(0);
-    }
-    storage
-        .iter()
-        .enumerate()
-        .skip(pi)
-        .find(|(_, v)| **v - start < 0.01 * rise)
-        .map(|(i, _)| i)
-}
-
+/// One condition of a storm: every element in upstream-first order, each
+/// one's outflow lagged into what it drains to.
 fn simulate_condition(
     study: &Study,
+    topology: &Topology,
     storm: usize,
     c: usize,
     rain: &[f64],
@@ -510,24 +501,80 @@ fn simulate_condition(
     let mut inputs: Vec<Vec<f64>> = vec![Vec::new(); ne];
     let mut elements: Vec<Option<ElementResult>> = vec![None; ne];
     let mut points = vec![vec![0.0; len]; study.points.len()];
-    for i in order(&study.elements, c) {
+    let run = StormRun {
+        study,
+        storm,
+        condition: c,
+        rain,
+        len,
+    };
+    for &i in topology.order(c) {
         let e = &study.elements[i];
-        let result = match &e.kind {
+        let result = run.element_step(i, std::mem::take(&mut inputs[i]))?;
+        match topology.target(i) {
+            Target::Point(pi) => add_lagged(&mut points[pi], &result.outflow_cfs, e.lag_h, step_h),
+            Target::Element(j) => {
+                if inputs[j].is_empty() {
+                    inputs[j] = vec![0.0; len];
+                }
+                add_lagged(&mut inputs[j], &result.outflow_cfs, e.lag_h, step_h);
+            }
+        }
+        elements[i] = Some(result);
+    }
+    Ok(ConditionResult {
+        condition: c,
+        elements,
+        points,
+    })
+}
+
+/// One storm through one condition: what every element step needs.
+#[derive(Debug, Clone, Copy)]
+pub struct StormRun<'a> {
+    /// The study.
+    pub study: &'a Study,
+    /// Storm index.
+    pub storm: usize,
+    /// Condition index.
+    pub condition: usize,
+    /// Rain per step, in.
+    pub rain: &'a [f64],
+    /// Values in each series (steps + 1).
+    pub len: usize,
+}
+
+impl StormRun<'_> {
+    /// What element `i` produces in a design storm from what reaches it
+    /// (`inflow_cfs`, empty when nothing does). The one place where each
+    /// element kind is simulated for a storm: a new kind adds its arm here.
+    ///
+    /// # Errors
+    /// A pond whose inflow is not finite or that cannot be routed.
+    pub fn element_step(
+        &self,
+        i: usize,
+        inflow_cfs: Vec<f64>,
+    ) -> Result<ElementResult, SimulationError> {
+        let (study, len, step_h) = (self.study, self.len, self.study.step_h);
+        let e = &study.elements[i];
+        Ok(match &e.kind {
             ElementKind::Catchment(cat) => {
-                let excess = runoff::excess_per_step_in(rain, cat.retention_in, cat.lambda.ratio());
+                let excess =
+                    runoff::excess_per_step_in(self.rain, cat.retention_in, cat.lambda.ratio());
                 let uh = catchment_uh(cat, step_h);
                 let q = unit_hydrograph::convolve(&excess, &uh, len);
                 ElementResult {
                     outflow_cfs: q,
                     runoff: Some(RunoffResult {
-                        rain_in: rain.iter().sum(),
+                        rain_in: self.rain.iter().sum(),
                         runoff_in: excess.iter().sum(),
                     }),
                     pond: None,
                 }
             }
             ElementKind::Inflow(inf) => {
-                let active = inf.storm.is_none() || inf.storm == Some(storm);
+                let active = inf.storm.is_none() || inf.storm == Some(self.storm);
                 let q = (0..len)
                     .map(|k| {
                         if active {
@@ -544,46 +591,32 @@ fn simulate_condition(
                 }
             }
             ElementKind::Pond(p) => {
-                let inflow = std::mem::take(&mut inputs[i]);
-                let inflow = if inflow.is_empty() {
+                let inflow = if inflow_cfs.is_empty() {
                     vec![0.0; len]
                 } else {
-                    inflow
+                    inflow_cfs
                 };
+                let run = || format!("storm \"{}\"", study.storms[self.storm].name);
+                let condition = || study.conditions[self.condition].clone();
                 if let Some(value) = first_non_finite(&inflow) {
                     return Err(SimulationError::NotFinite {
                         kind: "pond",
                         element: e.name.clone(),
-                        run: format!("storm \"{}\"", study.storms[storm].name),
-                        condition: study.conditions[c].clone(),
+                        run: run(),
+                        condition: condition(),
                         what: "inflow",
                         value,
                     });
                 }
                 route_pond(p, inflow, step_h).map_err(|source| SimulationError::PondTable {
                     pond: e.name.clone(),
-                    run: format!("storm \"{}\"", study.storms[storm].name),
-                    condition: study.conditions[c].clone(),
+                    run: run(),
+                    condition: condition(),
                     source,
                 })?
             }
-        };
-        match e.to {
-            Target::Point(pi) => add_lagged(&mut points[pi], &result.outflow_cfs, e.lag_h, step_h),
-            Target::Element(j) => {
-                if inputs[j].is_empty() {
-                    inputs[j] = vec![0.0; len];
-                }
-                add_lagged(&mut inputs[j], &result.outflow_cfs, e.lag_h, step_h);
-            }
-        }
-        elements[i] = Some(result);
+        })
     }
-    Ok(ConditionResult {
-        condition: c,
-        elements,
-        points,
-    })
 }
 
 /// Builds the pond's routing table for an inflow and routes it.

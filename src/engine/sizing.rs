@@ -20,8 +20,9 @@
 //! reported infeasible, naming the limits that fail at every size, when
 //! none meets them.
 
-use crate::engine::analysis::{self, reaches};
+use crate::engine::analysis;
 use crate::engine::network::{self, StormResult};
+use crate::engine::topology::Topology;
 use crate::error::Error;
 use crate::methods::hydraulics::Outlet;
 use crate::model::{ElementKind, SizedDim, SizedField, Study};
@@ -325,41 +326,60 @@ pub fn sized_value_text(
     }
 }
 
-/// Simulates the conditions that hold a sized pond, reusing the rest.
-fn simulate(
-    study: &Study,
-    cache: &[StormResult],
-    conditions: &[usize],
-) -> Result<Vec<StormResult>, network::SimulationError> {
-    (0..study.storms.len())
-        .into_par_iter()
-        .map(|s| {
-            let mut fresh = network::simulate_storm(study, s, conditions)?;
-            let mut merged = cache[s].clone();
-            for c in fresh.conditions.drain(..) {
-                if let Some(slot) = merged
+/// What every trial of a sizing reuses: the network, the storms of the
+/// study as first simulated, and the conditions that hold a sized pond.
+struct Trials<'a> {
+    topology: &'a Topology,
+    cache: Vec<StormResult>,
+    conditions: Vec<usize>,
+}
+
+impl Trials<'_> {
+    /// Simulates the conditions that hold a sized pond, reusing the rest.
+    fn simulate(&self, study: &Study) -> Result<Vec<StormResult>, network::SimulationError> {
+        (0..study.storms.len())
+            .into_par_iter()
+            .map(|s| {
+                let mut fresh =
+                    network::simulate_storm_on(study, self.topology, s, &self.conditions)?;
+                let mut merged = self.cache[s].clone();
+                for c in fresh.conditions.drain(..) {
+                    if let Some(slot) = merged
+                        .conditions
+                        .iter_mut()
+                        .find(|x| x.condition == c.condition)
+                    {
+                        *slot = c;
+                    }
+                }
+                // Keep one time base: pad every series to the longest.
+                let len = merged
                     .conditions
-                    .iter_mut()
-                    .find(|x| x.condition == c.condition)
-                {
-                    *slot = c;
+                    .iter()
+                    .flat_map(|c| c.points.iter().map(Vec::len))
+                    .max()
+                    .unwrap_or(0);
+                for c in &mut merged.conditions {
+                    for p in &mut c.points {
+                        p.resize(len, 0.0);
+                    }
                 }
-            }
-            // Keep one time base: pad every series to the longest.
-            let len = merged
-                .conditions
-                .iter()
-                .flat_map(|c| c.points.iter().map(Vec::len))
-                .max()
-                .unwrap_or(0);
-            for c in &mut merged.conditions {
-                for p in &mut c.points {
-                    p.resize(len, 0.0);
-                }
-            }
-            Ok(merged)
-        })
-        .collect()
+                Ok(merged)
+            })
+            .collect()
+    }
+
+    /// Whether every check of `pond` passes at the study's current values,
+    /// and the checks. A trial value whose storms cannot be simulated meets
+    /// nothing (the final values are simulated again by the analysis, which
+    /// reports why).
+    fn feasible(&self, study: &Study, pond: usize) -> (bool, Vec<Check>) {
+        let Ok(storms) = self.simulate(study) else {
+            return (false, Vec::new());
+        };
+        let ch = checks(study, self.topology, &storms, pond);
+        (ch.iter().all(Check::pass), ch)
+    }
 }
 
 /// Why a point's limit is zero, in words, e.g. "the existing condition
@@ -396,7 +416,7 @@ fn zero_limit_reason(
 }
 
 /// Every check a pond's sizing must keep, evaluated on storm results.
-fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
+fn checks(study: &Study, topology: &Topology, storms: &[StormResult], pond: usize) -> Vec<Check> {
     let mut out = Vec::new();
     let ElementKind::Pond(p) = &study.elements[pond].kind else {
         return out;
@@ -407,10 +427,12 @@ fn checks(study: &Study, storms: &[StormResult], pond: usize) -> Vec<Check> {
                 continue;
             }
             for pi in 0..study.points.len() {
-                if !reaches(study, pond, pi) || c.condition == study.baseline {
+                if !topology.reaches(pond, pi) || c.condition == study.baseline {
                     continue;
                 }
-                if let Some(limit) = analysis::limit_cfs(study, storms, pi, s.storm, c.condition) {
+                if let Some(limit) =
+                    analysis::limit_cfs_on(study, topology, storms, pi, s.storm, c.condition)
+                {
                     out.push(Check {
                         storm: s.storm,
                         what: format!(
@@ -488,8 +510,36 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
     if study.sizing.is_empty() {
         return Ok(Sizing::default());
     }
+    let dims = lowest_first(study);
+    let conditions: Vec<usize> = (0..study.conditions.len())
+        .filter(|&c| dims.iter().any(|d| study.elements[d.element].conditions[c]))
+        .collect();
+    for d in &dims {
+        set(study, d, value_at(d, 0.0));
+    }
+    let topology = Topology::new(study);
+    let all = study.simulated_conditions();
+    let cache: Vec<StormResult> = (0..study.storms.len())
+        .into_par_iter()
+        .map(|s| network::simulate_storm_on(study, &topology, s, &all))
+        .collect::<Result<_, _>>()?;
+    let trials = Trials {
+        topology: &topology,
+        cache,
+        conditions,
+    };
+    let mut values = sweep(study, &trials, &dims);
+    let infeasible = mend_failing_ponds(study, &trials, &dims, &mut values);
+    let outputs = sized_outputs(study, &trials, &dims, &values, &infeasible);
+    // Dimensions are now fixed values; keep the list for the sized copy.
+    study.sizing = dims;
+    Ok(Sizing { outputs })
+}
+
+/// The sized dimensions, lowest outlet first (by its lowest elevation at
+/// the range's low end).
+fn lowest_first(study: &Study) -> Vec<SizedDim> {
     let mut dims = study.sizing.clone();
-    // Lowest outlet first (by its lowest elevation at the range's low end).
     dims.sort_by(|a, b| {
         let low = |d: &SizedDim| match &study.elements[d.element].kind {
             ElementKind::Pond(p) => {
@@ -507,32 +557,23 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
         };
         low(a).total_cmp(&low(b))
     });
-    let conditions: Vec<usize> = (0..study.conditions.len())
-        .filter(|&c| dims.iter().any(|d| study.elements[d.element].conditions[c]))
-        .collect();
-    for d in &dims {
-        set(study, d, value_at(d, 0.0));
-    }
-    let all = study.simulated_conditions();
-    let cache: Vec<StormResult> = (0..study.storms.len())
-        .into_par_iter()
-        .map(|s| network::simulate_storm(study, s, &all))
-        .collect::<Result<_, _>>()?;
-    // A trial value whose storms cannot be simulated meets nothing (the
-    // final values are simulated again by the analysis, which reports why).
-    let feasible = |study: &Study, pond: usize| -> (bool, Vec<Check>) {
-        let Ok(storms) = simulate(study, &cache, &conditions) else {
-            return (false, Vec::new());
-        };
-        let ch = checks(study, &storms, pond);
-        (ch.iter().all(Check::pass), ch)
-    };
+    dims
+}
+
+/// Sweeps the dimensions in turn, each sized with the others held, until
+/// no value moves by more than 0.1 % (at most 6 sweeps); returns the values.
+fn sweep(study: &mut Study, trials: &Trials<'_>, dims: &[SizedDim]) -> Vec<f64> {
     let mut values: Vec<f64> = dims.iter().map(|d| value_at(d, 0.0)).collect();
     for _sweep in 0..6 {
         let mut moved = false;
         for (k, d) in dims.iter().enumerate() {
             let before = values[k];
-            let found = size_one(study, d, &|s: &Study| feasible(s, d.element).1, false);
+            let found = size_one(
+                study,
+                d,
+                &|s: &Study| trials.feasible(s, d.element).1,
+                false,
+            );
             values[k] = found.value;
             set(study, d, found.value);
             if (found.value - before).abs() > 0.001 * before.abs().max(1e-9) {
@@ -543,12 +584,21 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
             break;
         }
     }
-    // Every limit of a pond must hold at the final values. Where one does
-    // not, each of the pond's dimensions in turn (highest outlet first) is
-    // searched again, the others held, for the largest opening that meets
-    // every limit; a pond whose limits no single dimension can meet keeps
-    // the sweep's values and its dimensions are reported infeasible, with
-    // the limits that fail at every size tried.
+    values
+}
+
+/// Every limit of a pond must hold at the final values. Where one does
+/// not, each of the pond's dimensions in turn (highest outlet first) is
+/// searched again, the others held, for the largest opening that meets
+/// every limit; a pond whose limits no single dimension can meet keeps the
+/// sweep's values and its dimensions are reported infeasible, with the
+/// limits that fail at every size tried. Returns the reason per dimension.
+fn mend_failing_ponds(
+    study: &mut Study,
+    trials: &Trials<'_>,
+    dims: &[SizedDim],
+    values: &mut [f64],
+) -> Vec<Option<String>> {
     let mut infeasible: Vec<Option<String>> = vec![None; dims.len()];
     let ponds: Vec<usize> = {
         let mut v: Vec<usize> = dims.iter().map(|d| d.element).collect();
@@ -557,7 +607,7 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
         v
     };
     for pond in ponds {
-        if feasible(study, pond).0 {
+        if trials.feasible(study, pond).0 {
             continue;
         }
         let mine: Vec<usize> = (0..dims.len())
@@ -567,7 +617,7 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
         let mut fixed = false;
         for &k in mine.iter().rev() {
             let d = &dims[k];
-            let found = size_one(study, d, &|s: &Study| feasible(s, pond).1, true);
+            let found = size_one(study, d, &|s: &Study| trials.feasible(s, pond).1, true);
             if found.all_pass {
                 values[k] = found.value;
                 set(study, d, found.value);
@@ -583,40 +633,60 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
             }
         }
     }
-    // Report: governing check = the one that fails first beyond the value.
+    infeasible
+}
+
+/// The check that governs dimension `d` at value `v`: the one that fails
+/// first just beyond the value (or, at the range's maximum or when none
+/// fails beyond it, the one with the least margin).
+fn governing_check(
+    study: &mut Study,
+    trials: &Trials<'_>,
+    d: &SizedDim,
+    v: f64,
+    at_max: bool,
+) -> Option<Check> {
+    let (_, at_value) = trials.feasible(study, d.element);
+    let least_margin = |checks: &[Check]| {
+        checks
+            .iter()
+            .min_by(|a, b| a.margin().total_cmp(&b.margin()))
+            .cloned()
+    };
+    if at_max {
+        return least_margin(&at_value);
+    }
+    let more = if d.field.is_elevation() {
+        (v - 10.0 * tolerance(d, v)).max(d.min)
+    } else {
+        (v * 1.02).min(d.max)
+    };
+    set(study, d, more);
+    let (_, beyond) = trials.feasible(study, d.element);
+    set(study, d, v);
+    beyond
+        .iter()
+        .enumerate()
+        .filter(|(_, c)| !c.pass())
+        .min_by(|a, b| a.1.margin().total_cmp(&b.1.margin()))
+        .and_then(|(i, _)| at_value.get(i).cloned())
+        .or_else(|| least_margin(&at_value))
+}
+
+/// One output row per dimension, and a warning for each infeasible one.
+fn sized_outputs(
+    study: &mut Study,
+    trials: &Trials<'_>,
+    dims: &[SizedDim],
+    values: &[f64],
+    infeasible: &[Option<String>],
+) -> Vec<SizedOut> {
     let mut outputs = Vec::new();
     let o = crate::report::summary::Out(study.units);
     for (k, d) in dims.iter().enumerate() {
         let v = values[k];
         let at_max = (v - value_at(d, 1.0)).abs() <= tolerance(d, v);
-        let (_, at_value) = feasible(study, d.element);
-        let governing = if !at_max {
-            let more = if d.field.is_elevation() {
-                (v - 10.0 * tolerance(d, v)).max(d.min)
-            } else {
-                (v * 1.02).min(d.max)
-            };
-            set(study, d, more);
-            let (_, beyond) = feasible(study, d.element);
-            set(study, d, v);
-            beyond
-                .iter()
-                .enumerate()
-                .filter(|(_, c)| !c.pass())
-                .min_by(|a, b| a.1.margin().total_cmp(&b.1.margin()))
-                .and_then(|(i, _)| at_value.get(i).cloned())
-                .or_else(|| {
-                    at_value
-                        .iter()
-                        .min_by(|a, b| a.margin().total_cmp(&b.margin()))
-                        .cloned()
-                })
-        } else {
-            at_value
-                .iter()
-                .min_by(|a, b| a.margin().total_cmp(&b.margin()))
-                .cloned()
-        };
+        let governing = governing_check(study, trials, d, v, at_max);
         let conv = |x: f64| {
             if d.field == SizedField::Angle {
                 x
@@ -678,9 +748,7 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
                 });
         }
     }
-    // Dimensions are now fixed values; keep the list for the sized copy.
-    study.sizing = dims;
-    Ok(Sizing { outputs })
+    outputs
 }
 
 /// The value of a sized field of an outlet (ft or degrees).

@@ -144,17 +144,6 @@ pub(super) fn padded_range(values: impl IntoIterator<Item = f64>) -> Result<(f64
     }
 }
 
-/// Index and value of the largest finite value (first one on ties).
-pub(super) fn peak(values: &[f64]) -> Option<(usize, f64)> {
-    let mut best: Option<(usize, f64)> = None;
-    for (i, &v) in values.iter().enumerate() {
-        if v.is_finite() && best.is_none_or(|(_, b)| v > b) {
-            best = Some((i, v));
-        }
-    }
-    best
-}
-
 /// Unbroken runs of finite points; a NaN or infinite value ends a run.
 pub(super) fn runs(points: impl IntoIterator<Item = (f64, f64)>) -> Vec<Vec<(f64, f64)>> {
     let mut out = Vec::new();

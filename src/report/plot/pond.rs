@@ -6,6 +6,7 @@ use plotters::prelude::*;
 use super::axes::*;
 use super::draw::*;
 use super::style::*;
+use crate::methods::stats::max_first;
 
 /// Inflow and outflow of a pond (left axis) and its water-surface elevation (right axis), with
 /// a labelled dashed line at each reference elevation and the peaks marked.
@@ -120,7 +121,7 @@ pub(super) fn draw_pond(p: &PondPlot) -> Result<Canvas, PlotError> {
         }
         let mut notes = Vec::new();
         if p.peak_stage.is_finite() {
-            let t = peak(&p.stage).map_or(0.0, |(k, _)| k as f64 * dt);
+            let t = max_first(&p.stage).map_or(0.0, |(_, k)| k as f64 * dt);
             notes.push(Note {
                 anchor: stage_area.map_coordinate(&(t, p.peak_stage)),
                 text: format!(
@@ -137,7 +138,7 @@ pub(super) fn draw_pond(p: &PondPlot) -> Result<Canvas, PlotError> {
             ("peak inflow", &p.inflow, inflow_c, Shape::Circle),
             ("peak outflow", &p.outflow, outflow_c, Shape::Triangle),
         ] {
-            if let Some((k, v)) = peak(values).filter(|&(_, v)| v > 0.0) {
+            if let Some((v, k)) = max_first(values).filter(|&(v, _)| v > 0.0) {
                 let t = k as f64 * dt;
                 notes.push(Note {
                     anchor: area.map_coordinate(&(t, v)),

@@ -9,6 +9,7 @@ use plotters::prelude::*;
 use super::axes::*;
 use super::draw::*;
 use super::style::*;
+use crate::methods::stats::max_first;
 
 /// Flow-duration curves: flow (log axis) against the percent of time it is equalled or
 /// exceeded (log axis). Zero flows cannot appear on a log axis and are left out (the subtitle
@@ -470,7 +471,8 @@ pub(super) fn draw_overview(p: &OverviewPlot) -> Result<Canvas, PlotError> {
                 crowd.trace(run.iter().map(|pt| area.map_coordinate(pt)));
                 draw_path(area, run, c.stroke_width(width), Dash::Solid)?;
             }
-            let highest = peak(values.get(..pts.len()).unwrap_or(values)).filter(|&(_, v)| v > 0.0);
+            let highest =
+                max_first(values.get(..pts.len()).unwrap_or(values)).filter(|&(v, _)| v > 0.0);
             let tag = if highest.is_some() {
                 (*label).to_string()
             } else {
@@ -483,7 +485,7 @@ pub(super) fn draw_overview(p: &OverviewPlot) -> Result<Canvas, PlotError> {
             ];
             crowd.fill(tag_box[0], tag_box[1]);
             let mut notes = Vec::new();
-            if let Some((k, v)) = highest {
+            if let Some((v, k)) = highest {
                 let x = pts.get(k).map_or(x0, |pt| pt.0);
                 notes.push(Note {
                     anchor: area.map_coordinate(&(x, v)),

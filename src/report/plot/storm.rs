@@ -6,6 +6,7 @@ use plotters::prelude::*;
 use super::axes::*;
 use super::draw::*;
 use super::style::*;
+use crate::methods::stats::max_first;
 
 /// Hydrographs of every condition at a point, with the storm's rain hanging from the top on an
 /// inverted right axis and each condition's peak labelled with its flow and time.
@@ -50,10 +51,11 @@ pub(super) fn draw_storm_point(p: &StormPointPlot) -> Result<Canvas, PlotError> 
         },
         Swatch::Bar(RAIN_FILL, RAIN_EDGE),
     )];
-    let peaks: Vec<Option<(usize, f64)>> = p.hydrographs.iter().map(|s| peak(&s.values)).collect();
+    let peaks: Vec<Option<(f64, usize)>> =
+        p.hydrographs.iter().map(|s| max_first(&s.values)).collect();
     for (i, (s, pk)) in p.hydrographs.iter().zip(&peaks).enumerate() {
         let label = match pk {
-            Some((_, v)) if *v > 0.0 => s.label.clone(),
+            Some((v, _)) if *v > 0.0 => s.label.clone(),
             _ => format!("{} (no flow)", s.label),
         };
         legend.push((label, Swatch::Line(colour_of(i), 3, dash_of(i))));
@@ -132,7 +134,7 @@ pub(super) fn draw_storm_point(p: &StormPointPlot) -> Result<Canvas, PlotError> 
                 crowd.trace(run.iter().map(|pt| area.map_coordinate(pt)));
                 draw_path(area, run, colour_of(i).stroke_width(3), dash_of(i))?;
             }
-            if let Some((k, v)) = pk.filter(|&(_, v)| v > 0.0) {
+            if let Some((v, k)) = pk.filter(|&(v, _)| v > 0.0) {
                 let t = k as f64 * dt;
                 let text = format!(
                     "{}: {} {} at {} h",

@@ -420,13 +420,6 @@ fn value_axis_puts_the_headroom_factor_over_the_highest_value() {
 }
 
 #[test]
-fn peak_skips_nan_and_takes_the_first_of_equal_highs() {
-    assert_eq!(peak(&[1.0, f64::NAN, 3.0, 3.0, 2.0]), Some((2, 3.0)));
-    assert_eq!(peak(&[f64::NAN]), None);
-    assert_eq!(peak(&[]), None);
-}
-
-#[test]
 fn lines_break_at_values_that_are_not_finite() {
     let r = runs(timed(
         &[1.0, 2.0, f64::NAN, 3.0, f64::INFINITY, f64::NAN, 4.0, 5.0],
