@@ -2,11 +2,15 @@
 //! through the same network, with flow statistics per element and
 //! flow-duration control at points.
 //!
+//! The results are typed and in internal units (cfs, ft3, in, ft, seconds
+//! and interval indices); `report::records` converts them to output units,
+//! JSON, Markdown and plot data. Progress goes through [`Progress`], so the
+//! command layer owns the progress bar.
+//!
 //! Memory stays bounded: each element's series is reduced to its statistics
 //! as soon as it has been added to what it drains to; only the points'
 //! series are kept (they are compared across conditions).
 
-use crate::cli::output::{self, Staging};
 use crate::engine::network;
 use crate::engine::network::SimulationError;
 use crate::error::Error;
@@ -14,140 +18,263 @@ use crate::methods::moisture;
 use crate::methods::pond;
 use crate::methods::stats;
 use crate::methods::unit_hydrograph;
-use crate::model::{ElementKind, MoistureMode, Record, Study, Target};
-use crate::report::plot;
-use crate::report::summary::{ComparisonOut, DurationOut, Out, PondCheckOut};
+use crate::model::{
+    Catchment, DurationControl, ElementKind, MoistureMode, Pond, Record, Study, Target,
+};
 use crate::util::calendar;
-use crate::util::units::{Quantity, sig};
 use crate::warning::Warning;
-use serde::Serialize;
-use std::fmt::Write;
 
 /// Return periods of the frequency table, years.
 pub const RETURN_PERIODS: [f64; 7] = [1.5, 2.0, 5.0, 10.0, 25.0, 50.0, 100.0];
 /// Exceedance fractions of the flow-duration table.
 pub const EXCEEDANCES: [f64; 9] = [0.0001, 0.001, 0.01, 0.05, 0.1, 0.2, 0.3, 0.5, 0.9];
+/// Number of flow levels of a duration control (evenly spaced in log).
+pub const DURATION_LEVELS: usize = 100;
 
-/// One year of the annual maximum series.
-#[derive(Debug, Clone, Serialize)]
-pub struct AnnualPeak {
-    /// Calendar year.
-    pub year: i32,
-    /// Peak flow.
-    pub peak_flow: f64,
+/// What a record entry is about.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SubjectKind {
+    /// A catchment.
+    Catchment,
+    /// An inflow hydrograph (adds nothing over a record).
+    Inflow,
+    /// A pond (its outflow).
+    Pond,
+    /// A design point.
+    Point,
 }
 
-/// A frequency flow.
-#[derive(Debug, Clone, Serialize)]
-pub struct FreqOut {
+impl SubjectKind {
+    /// The word the reports use.
+    pub fn label(self) -> &'static str {
+        match self {
+            SubjectKind::Catchment => "catchment",
+            SubjectKind::Inflow => "inflow",
+            SubjectKind::Pond => "pond",
+            SubjectKind::Point => "point",
+        }
+    }
+}
+
+/// One calendar year's maximum of a record series.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct YearMax {
+    /// Calendar year.
+    pub year: i32,
+    /// The year's maximum (the unit is in the field holding it).
+    pub value: f64,
+}
+
+/// A flow of the fitted frequency distribution.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct FrequencyFlow {
     /// Return period, years.
-    pub return_period: f64,
-    /// Flow.
-    pub flow: f64,
+    pub return_period_yr: f64,
+    /// Flow, cfs.
+    pub flow_cfs: f64,
 }
 
-/// A flow-duration point.
-#[derive(Debug, Clone, Serialize)]
-pub struct DurOut {
-    /// Fraction of time equalled or exceeded.
-    pub exceedance: f64,
-    /// Flow.
-    pub flow: f64,
+/// What a pond adds to its record entry.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PondRecord {
+    /// Stage (ft) equalled or exceeded at each of [`EXCEEDANCES`].
+    pub stage_duration_ft: Vec<f64>,
+    /// Annual maximum stage, ft.
+    pub annual_max_stage_ft: Vec<YearMax>,
+    /// Mass-balance error of the routing (fraction of the inflow volume).
+    pub mass_balance_error: f64,
 }
 
-/// A stage-duration point (ponds).
-#[derive(Debug, Clone, Serialize)]
-pub struct StageDurOut {
-    /// Fraction of time equalled or exceeded.
-    pub exceedance: f64,
-    /// Stage.
-    pub stage: f64,
-}
-
-/// An annual maximum stage (ponds).
-#[derive(Debug, Clone, Serialize)]
-pub struct AnnualStage {
-    /// Calendar year.
-    pub year: i32,
-    /// Peak stage.
-    pub peak_stage: f64,
-}
-
-/// One `records` entry of `summary.json`.
-#[derive(Debug, Clone, Serialize)]
-pub struct RecordOut {
-    /// Record.
+/// One element or point over one record and condition, internal units.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ElementRecord {
+    /// Record name.
     pub record: String,
-    /// Condition.
-    pub condition: String,
-    /// Element or point.
+    /// Condition index.
+    pub condition: usize,
+    /// Element or point name.
     pub element: String,
-    /// catchment | pond | inflow | point.
-    pub kind: &'static str,
-    /// Start of the first interval.
-    pub start: String,
-    /// End of the last interval.
-    pub end: String,
-    /// Intervals between them.
+    /// What it is.
+    pub kind: SubjectKind,
+    /// Start of the first interval, seconds since 1970-01-01 (UTC).
+    pub start_s: i64,
+    /// Length of one interval, s.
+    pub step_s: i64,
+    /// Intervals from the start to the end of the record.
     pub steps: usize,
-    /// Rain over the record.
-    pub rain_depth: f64,
-    /// Runoff depth over the contributing area.
-    pub runoff_depth: f64,
-    /// Runoff or outflow volume.
-    pub volume: f64,
-    /// Peak flow.
-    pub peak_flow: f64,
-    /// When.
-    pub peak_time: String,
-    /// Annual maximum series (complete years).
-    pub annual_peaks: Vec<AnnualPeak>,
+    /// Rain over the record, in.
+    pub rain_in: f64,
+    /// Runoff depth over the contributing area, in.
+    pub runoff_in: f64,
+    /// Runoff or outflow volume, ft3.
+    pub volume_ft3: f64,
+    /// Peak flow, cfs.
+    pub peak_cfs: f64,
+    /// Index of the peak in the series (0 = the record's start).
+    pub peak_index: usize,
+    /// Annual maximum flows (complete years), cfs.
+    pub annual_peaks_cfs: Vec<YearMax>,
     /// Years left out for less than 90 % coverage.
     pub incomplete_years: Vec<i32>,
     /// Years with zero peak, left out of the fit.
     pub zero_years: Vec<i32>,
-    /// LP3 frequency flows.
-    pub frequency: Vec<FreqOut>,
-    /// LP3 fit: mean, standard deviation and skew of log10 peaks.
-    pub lp3: Option<[f64; 3]>,
-    /// Flow-duration curve.
-    pub flow_duration: Vec<DurOut>,
+    /// LP3 frequency flows at [`RETURN_PERIODS`] (empty without a fit).
+    pub frequency: Vec<FrequencyFlow>,
+    /// LP3 fit of log10 annual peaks in cfs.
+    pub lp3: Option<stats::Lp3Fit>,
+    /// Flow (cfs) equalled or exceeded at each of [`EXCEEDANCES`].
+    pub flow_duration_cfs: Vec<f64>,
     /// Number of rain events (catchments, event mode).
-    #[serde(skip_serializing_if = "Option::is_none")]
     pub events: Option<usize>,
-    /// Stage duration (ponds).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub stage_duration: Option<Vec<StageDurOut>>,
-    /// Annual maximum stage (ponds).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub annual_max_stage: Option<Vec<AnnualStage>>,
-    /// Mass-balance error of the routing (ponds).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub mass_balance_error: Option<f64>,
+    /// Stage statistics and mass balance (ponds).
+    pub pond: Option<PondRecord>,
 }
 
-/// What the records produced.
+/// A point's series over one record and condition, reduced for its plots.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PointSeries {
+    /// Record name.
+    pub record: String,
+    /// Condition index.
+    pub condition: usize,
+    /// Point index.
+    pub point: usize,
+    /// Flow (cfs) equalled or exceeded at each of [`plot_exceedances`].
+    pub duration_curve_cfs: Vec<f64>,
+    /// Daily maximum flows, cfs, from the record's start.
+    pub daily_max_cfs: Vec<f64>,
+}
+
+/// The result of a flow-duration control that could be checked.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct DurationCheck {
+    /// Lowest flow of the rule's range, cfs.
+    pub from_cfs: f64,
+    /// Highest flow of the rule's range, cfs.
+    pub to_cfs: f64,
+    /// Number of flow levels compared.
+    pub levels: usize,
+    /// Relative tolerance on the baseline's time.
+    pub tolerance: f64,
+    /// The level where the condition's time most exceeds the baseline's, cfs.
+    pub worst_flow_cfs: f64,
+    /// The baseline's time above that level, h.
+    pub baseline_time_h: f64,
+    /// The condition's time above that level, h.
+    pub time_h: f64,
+    /// The time allowed above it, h.
+    pub allowed_time_h: f64,
+    /// The condition's time over the baseline's, less one, at that level
+    /// (`None` when the baseline never reaches it and the condition does).
+    pub worst_relative_excess: Option<f64>,
+    /// Whether the condition's times stay within the rule at every level.
+    pub pass: bool,
+}
+
+/// A flow-duration control of a point over a record for one condition.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DurationComparison {
+    /// Point index.
+    pub point: usize,
+    /// Record name.
+    pub record: String,
+    /// Condition index.
+    pub condition: usize,
+    /// Area draining to the point in the condition, ac.
+    pub area_ac: f64,
+    /// Area draining to the point in the baseline, ac (`None` without one).
+    pub baseline_area_ac: Option<f64>,
+    /// The check (`None`: not checked, the baseline is empty).
+    pub check: Option<DurationCheck>,
+}
+
+/// Whether a pond with a top overtopped over a record.
+#[derive(Debug, Clone, PartialEq)]
+pub struct OvertoppingCheck {
+    /// Pond name.
+    pub pond: String,
+    /// Record name.
+    pub record: String,
+    /// Condition name.
+    pub condition: String,
+    /// Highest stage, ft.
+    pub peak_stage_ft: f64,
+    /// Top of the pond, ft.
+    pub top_ft: f64,
+    /// Whether the stage stayed at or below the top.
+    pub pass: bool,
+}
+
+/// A warning of the long records, with its quantities in internal units
+/// (`report::records` turns each into a [`Warning`]).
+#[derive(Debug, Clone, PartialEq)]
+pub enum RecordWarning {
+    /// A warning without quantities to convert.
+    Plain(Warning),
+    /// A pond rose above its top.
+    Overtopped {
+        /// Pond.
+        pond: String,
+        /// Record.
+        record: String,
+        /// Condition.
+        condition: String,
+        /// When the highest stage came, seconds since 1970-01-01 (UTC).
+        when_s: i64,
+        /// Highest stage, ft.
+        stage_ft: f64,
+        /// Top, ft.
+        top_ft: f64,
+    },
+    /// Water still in a pond, or not yet at a point, when the record ends.
+    WaterLeft {
+        /// Record.
+        record: String,
+        /// Condition.
+        condition: String,
+        /// `pond "NAME"` or `point "NAME"`.
+        element: String,
+        /// The volume, ft3.
+        left_ft3: f64,
+        /// The volume as a percentage of what entered.
+        percent: f64,
+        /// Where the water is.
+        what: &'static str,
+    },
+    /// Part of an element's outflow lagged past the end of the record.
+    LagPastEnd {
+        /// Record.
+        record: String,
+        /// Condition.
+        condition: String,
+        /// Element.
+        element: String,
+        /// The lag, h.
+        lag_h: f64,
+        /// The volume lost, ft3.
+        lost_ft3: f64,
+    },
+}
+
+/// What the records produced, in internal units.
 #[derive(Debug, Clone, Default)]
 pub struct RecordsResult {
-    /// `records` entries as JSON values.
-    pub json: Vec<serde_json::Value>,
-    /// Typed entries.
-    pub entries: Vec<RecordOut>,
-    /// Flow-duration comparisons.
-    pub comparisons: Vec<ComparisonOut>,
-    /// Markdown section.
-    pub markdown: String,
-    /// Plot data per record and point.
-    pub plots: Vec<(String, String, PlotData)>,
-    /// Seconds spent per stage (excess, convolution, routing, statistics) and intervals simulated.
-    pub timings: Timings,
+    /// One entry per record, condition and element or point, the
+    /// conditions in the study's order within each record.
+    pub elements: Vec<ElementRecord>,
+    /// Each point's reduced series per record and simulated condition.
+    pub points: Vec<PointSeries>,
+    /// Flow-duration controls.
+    pub comparisons: Vec<DurationComparison>,
+    /// Overtopping checks of ponds over each record (one per pond and
+    /// condition that has a top); a failure counts in the exit code.
+    pub overtopping: Vec<OvertoppingCheck>,
     /// What the records could not see or resolve (overtopping, water left
     /// at the end, runoff lagged past the end, incomplete years, short fits,
     /// mass balance).
-    pub warnings: Vec<Warning>,
-    /// Overtopping checks of ponds over each record (one per pond and
-    /// condition that has a top); a failure counts in the exit code.
-    pub pond_checks: Vec<PondCheckOut>,
+    pub warnings: Vec<RecordWarning>,
+    /// Seconds spent per stage and intervals simulated.
+    pub timings: Timings,
 }
 
 /// Seconds spent in each stage of the long records, for benchmarks.
@@ -161,30 +288,36 @@ pub struct Timings {
     pub runoff_s: f64,
     /// Pond routing.
     pub routing_s: f64,
-    /// Statistics (annual series, frequency, durations) and plot data.
+    /// Statistics (annual series, frequency, durations).
     pub statistics_s: f64,
     /// Intervals simulated (summed over records).
     pub intervals: usize,
 }
 
-/// Everything a record's point plots need.
-#[derive(Debug, Clone)]
-pub struct PlotData {
-    /// Flow-duration curves.
-    pub duration: plot::DurationPlot,
-    /// Frequency plot.
-    pub frequency: plot::FrequencyPlot,
-    /// Overview of daily maxima.
-    pub overview: plot::OverviewPlot,
+/// Where the records report their progress: the command layer shows it,
+/// tests and benchmarks pass [`Silent`].
+pub trait Progress {
+    /// A record starts: `steps` intervals, `elements` element simulations
+    /// (conditions times elements) to come.
+    fn start(&self, record: &str, steps: usize, elements: u64);
+    /// One element of one condition is done.
+    fn advance(&self);
+    /// The record is done.
+    fn finish(&self);
 }
 
-/// (condition, point) indices.
-type PointKey = (usize, usize);
-/// (exceedance, flow) pairs of a plotted curve.
-type Curve = Vec<(f64, f64)>;
+/// Progress that goes nowhere.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct Silent;
+
+impl Progress for Silent {
+    fn start(&self, _record: &str, _steps: usize, _elements: u64) {}
+    fn advance(&self) {}
+    fn finish(&self) {}
+}
 
 /// Exceedance fractions of the plotted flow-duration curves (log-spaced).
-fn plot_exceedances() -> Vec<f64> {
+pub fn plot_exceedances() -> Vec<f64> {
     (0..60)
         .map(|k| 10f64.powf(-4.0 + 4.0 * k as f64 / 59.0))
         .collect()
@@ -275,96 +408,121 @@ fn series_stats(values: &[f64], start_s: i64, step_s: i64, step_h: f64) -> Stats
 
 /// Who a record entry is about.
 struct Subject<'a> {
-    cond: &'a str,
+    condition: usize,
     element: &'a str,
-    kind: &'static str,
+    kind: SubjectKind,
     area_ac: f64,
 }
 
-/// Builds the frequency and duration parts of a record entry.
-fn entry(
-    r: &Record,
+/// One record's inputs as every element of it reads them.
+struct RecordRun<'a> {
+    study: &'a Study,
+    record: &'a Record,
+    /// Rain per step, in.
+    rain_in: std::borrow::Cow<'a, [f64]>,
+    /// Rain over the record, in.
+    rain_total_in: f64,
+    /// Values per series (intervals plus one).
+    len: usize,
+    step_h: f64,
+    step_s: i64,
+    /// `record "NAME"`, for errors.
+    run_name: String,
+}
+
+impl RecordRun<'_> {
+    /// A result that is not a finite number.
+    fn not_finite(
+        &self,
+        condition: usize,
+        kind: &'static str,
+        element: &str,
+        what: &'static str,
+        value: f64,
+    ) -> Error {
+        Error::Simulation(SimulationError::NotFinite {
+            kind,
+            element: element.to_string(),
+            run: self.run_name.clone(),
+            condition: self.study.conditions[condition].clone(),
+            what,
+            value,
+        })
+    }
+
+    /// Peak, volume and annual maxima of a series of this record.
+    fn stats(&self, values: &[f64]) -> Stats {
+        series_stats(values, self.record.start_s, self.step_s, self.step_h)
+    }
+}
+
+/// The frequency and duration parts of a record entry, from the series
+/// and its one-pass statistics; `flow_duration_cfs` when the caller has
+/// already ranked the series at [`EXCEEDANCES`].
+fn element_record(
+    run: &RecordRun<'_>,
     who: Subject<'_>,
     values: &[f64],
     st: &Stats,
-    rain_in: f64,
-    o: &Out,
-    fdc: Option<Vec<f64>>,
-) -> RecordOut {
-    let Subject {
-        cond,
-        element,
-        kind,
-        area_ac,
-    } = who;
-    let flow_conv = |q: f64| o.flow(q);
-    let step_s = (r.step_h * 3600.0).round() as i64;
-    let n = values.len().saturating_sub(1);
-    let mut annual_peaks = Vec::new();
-    let mut incomplete = Vec::new();
-    let mut zero = Vec::new();
+    flow_duration_cfs: Option<Vec<f64>>,
+) -> ElementRecord {
+    let mut annual_peaks_cfs = Vec::new();
+    let mut incomplete_years = Vec::new();
+    let mut zero_years = Vec::new();
     let mut fit_values = Vec::new();
     for a in &st.scan.annual {
         if (a.intervals as f64) < 0.9 * a.expected_intervals as f64 {
-            incomplete.push(a.year);
+            incomplete_years.push(a.year);
             continue;
         }
-        annual_peaks.push(AnnualPeak {
+        annual_peaks_cfs.push(YearMax {
             year: a.year,
-            peak_flow: flow_conv(a.peak),
+            value: a.peak,
         });
         if a.peak > 0.0 {
             fit_values.push(a.peak);
         } else {
-            zero.push(a.year);
+            zero_years.push(a.year);
         }
     }
-    let fit = stats::fit_lp3(&fit_values);
-    let frequency = match &fit {
+    let lp3 = stats::fit_lp3(&fit_values);
+    let frequency = match &lp3 {
         Some(f) => RETURN_PERIODS
             .iter()
-            .map(|&t| FreqOut {
-                return_period: t,
-                flow: flow_conv(f.quantile(t)),
+            .map(|&t| FrequencyFlow {
+                return_period_yr: t,
+                flow_cfs: f.quantile(t),
             })
             .collect(),
         None => Vec::new(),
     };
-    let fdc = fdc.unwrap_or_else(|| st.scan.flow_duration(values, &EXCEEDANCES));
-    RecordOut {
-        record: r.name.clone(),
-        condition: cond.to_string(),
-        element: element.to_string(),
-        kind,
-        start: calendar::format_timestamp(r.start_s),
-        end: calendar::format_timestamp(r.start_s + n as i64 * step_s),
-        steps: n,
-        rain_depth: o.depth(rain_in),
-        runoff_depth: if area_ac > 0.0 {
-            o.depth(st.volume_ft3 / (area_ac * crate::util::units::FT2_PER_AC) * 12.0)
+    let flow_duration_cfs =
+        flow_duration_cfs.unwrap_or_else(|| st.scan.flow_duration(values, &EXCEEDANCES));
+    ElementRecord {
+        record: run.record.name.clone(),
+        condition: who.condition,
+        element: who.element.to_string(),
+        kind: who.kind,
+        start_s: run.record.start_s,
+        step_s: run.step_s,
+        steps: values.len().saturating_sub(1),
+        rain_in: run.rain_total_in,
+        runoff_in: if who.area_ac > 0.0 {
+            st.volume_ft3 / (who.area_ac * crate::util::units::FT2_PER_AC) * 12.0
         } else {
             0.0
         },
-        volume: o.volume(st.volume_ft3),
-        peak_flow: flow_conv(st.peak),
-        peak_time: calendar::format_timestamp(r.start_s + st.peak_index as i64 * step_s),
-        annual_peaks,
-        incomplete_years: incomplete,
-        zero_years: zero,
+        volume_ft3: st.volume_ft3,
+        peak_cfs: st.peak,
+        peak_index: st.peak_index,
+        annual_peaks_cfs,
+        incomplete_years,
+        zero_years,
         frequency,
-        lp3: fit.as_ref().map(|f| [f.mean_log10, f.std_log10, f.skew]),
-        flow_duration: EXCEEDANCES
-            .iter()
-            .zip(fdc)
-            .map(|(&e, q)| DurOut {
-                exceedance: e,
-                flow: flow_conv(q),
-            })
-            .collect(),
+        lp3,
+        flow_duration_cfs,
         events: None,
-        stage_duration: None,
-        annual_max_stage: None,
-        mass_balance_error: None,
+        pond: None,
     }
 }
 
@@ -521,823 +679,740 @@ fn lagged_past_end_ft3(src: &[f64], len: usize, lag_h: f64, step_h: f64) -> f64 
     lost * step_h * 3600.0
 }
 
+/// A point's duration control over one record: the rule's flow range and
+/// its levels, from the baseline's frequency fit.
+#[derive(Debug, Clone)]
+struct DurationLevels {
+    from_cfs: f64,
+    to_cfs: f64,
+    levels_cfs: Vec<f64>,
+}
+
+/// What one record's conditions leave for its duration controls.
+struct DurationCounts {
+    /// Per point: the control's levels, once the baseline has been simulated.
+    levels: Vec<Option<DurationLevels>>,
+    /// Per condition and point: intervals above each level.
+    exceedance_counts: Vec<Vec<Vec<usize>>>,
+}
+
 /// Runs every record for every condition.
 ///
 /// # Errors
 /// A gauge whose rain cannot be simulated ([`rain_at_step`]), a pond that
 /// cannot be routed, or a result that is not a finite number
 /// ([`SimulationError`]).
-pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
+pub fn run(study: &Study, progress: &dyn Progress) -> Result<RecordsResult, Error> {
     let mut res = RecordsResult::default();
-    let o = Out(study.units);
     for r in &study.records {
-        let step_h = r.step_h;
-        let step_s = (step_h * 3600.0).round() as i64;
-        let n = record_steps(r);
-        let record_clock = std::time::Instant::now();
-        let routing_before = res.timings.routing_s + res.timings.runoff_s;
-        let clock = std::time::Instant::now();
-        // At the gauge interval the record's own depths are the rain per step.
-        let rain = rain_at_step(r)?;
-        let run_name = format!("record \"{}\"", r.name);
-        res.timings.rain_s += clock.elapsed().as_secs_f64();
-        res.timings.intervals += n;
-        let rain_total = stats::sum(&rain);
-        let len = n + 1;
-        let month_of = |k: usize| calendar::month_of(r.start_s + k as i64 * step_s);
-        let bar = (progress && n > 2_000_000).then(|| {
-            let b =
-                indicatif::ProgressBar::new((study.conditions.len() * study.elements.len()) as u64);
-            b.set_message(format!("record {}", r.name));
-            b
-        });
-        let nc = study.conditions.len();
-        let np = study.points.len();
-        // The baseline goes first, so that the flow levels of every point's
-        // duration control are known while each condition's series is at
-        // hand; the series is then reduced to its times above those levels
-        // and its daily maxima, and its buffer reused.
-        // An empty baseline is not simulated.
-        let order: Vec<usize> = if study.baseline < nc && !study.baseline_empty {
-            std::iter::once(study.baseline)
-                .chain((0..nc).filter(|&c| c != study.baseline))
-                .collect()
-        } else {
-            study.simulated_conditions()
-        };
-        let first_entry = res.entries.len();
-        let per_day = ((24.0 / step_h).round() as usize).max(1);
-        // Per point: the duration control's flow range and its 100 levels.
-        let mut control: Vec<Option<(f64, f64, Vec<f64>)>> = vec![None; np];
-        // Per condition and point: intervals above each level; daily maxima.
-        let mut counts: Vec<Vec<Vec<usize>>> = vec![vec![Vec::new(); np]; nc];
-        let mut daily_max: Vec<Vec<Vec<f64>>> = vec![vec![Vec::new(); np]; nc];
-        let mut point_curves: Vec<(PointKey, Curve)> = Vec::new();
-        // Buffers are reused between elements: fresh 80-MB vectors cost
-        // more in page faults than the arithmetic on them.
-        let mut pool = Pool::default();
-        for &c in &order {
-            let cname = &study.conditions[c];
-            let mut inputs: Vec<Vec<f64>> = vec![Vec::new(); study.elements.len()];
-            let mut points: Vec<Vec<f64>> = vec![Vec::new(); study.points.len()];
-            // Runoff volume (ft3) each catchment generated over the record.
-            let mut generated_ft3 = vec![0.0f64; study.elements.len()];
-            let not_finite = |kind, element: &str, what, value| {
-                Error::Simulation(SimulationError::NotFinite {
-                    kind,
-                    element: element.to_string(),
-                    run: run_name.clone(),
-                    condition: cname.clone(),
-                    what,
-                    value,
-                })
-            };
-            for i in network::order(&study.elements, c) {
-                let e = &study.elements[i];
-                // Routing writes a pond's outflow from empty; the others add into zeros.
-                let mut out = if matches!(e.kind, ElementKind::Pond(_)) {
-                    pool.take_overwritten(0)
-                } else {
-                    pool.take(len)
-                };
-                let mut rec_entry;
-                match &e.kind {
-                    ElementKind::Catchment(cat) => {
-                        let clock = std::time::Instant::now();
-                        let tp = unit_hydrograph::time_to_peak_h(
-                            step_h,
-                            crate::methods::timing::lag_h(cat.tc_h),
-                        );
-                        let uh = unit_hydrograph::ordinates_cfs_per_in(
-                            cat.shape,
-                            cat.area_ac,
-                            tp,
-                            step_h,
-                        );
-                        // Each rainy interval's excess goes straight into the
-                        // convolution (no excess series is stored), so the
-                        // two stages are timed together.
-                        let mut runoff_in = 0.0;
-                        let events = match &r.moisture {
-                            MoistureMode::Event {
-                                dry_gap_h,
-                                antecedent,
-                                growing_months,
-                            } => {
-                                let opts = moisture::EventOptions {
-                                    dry_gap_steps: moisture::dry_gap_steps_for(*dry_gap_h, step_h)
-                                        .unwrap_or(1),
-                                    antecedent: antecedent.then(|| moisture::AntecedentRule {
-                                        growing_months: *growing_months,
-                                        ..Default::default()
-                                    }),
-                                };
-                                moisture::event_excess_each(
-                                    &rain,
-                                    step_h,
-                                    cat.cn,
-                                    cat.lambda,
-                                    &opts,
-                                    &month_of,
-                                    |j, e| {
-                                        runoff_in += e;
-                                        unit_hydrograph::add_response(&mut out, j, e, &uh);
-                                    },
-                                )
-                                .map_err(|e| Error::Compute {
-                                    message: format!("record \"{}\": {e}", r.name),
-                                })?
-                            }
-                            MoistureMode::Continuous { .. } => {
-                                return Err(Error::Compute {
-                                    message: format!(
-                                        "record \"{}\": {}",
-                                        r.name,
-                                        moisture::MoistureError::ContinuousUnavailable
-                                    ),
-                                });
-                            }
-                        };
-                        res.timings.runoff_s += clock.elapsed().as_secs_f64();
-                        let st = series_stats(&out, r.start_s, step_s, step_h);
-                        for (what, v) in [
-                            ("runoff depth", runoff_in),
-                            ("volume", st.volume_ft3),
-                            ("peak flow", st.peak),
-                        ] {
-                            if !v.is_finite() {
-                                return Err(not_finite("catchment", &e.name, what, v));
-                            }
-                        }
-                        generated_ft3[i] =
-                            runoff_in / 12.0 * cat.area_ac * crate::util::units::FT2_PER_AC;
-                        rec_entry = entry(
-                            r,
-                            Subject {
-                                cond: cname,
-                                element: &e.name,
-                                kind: "catchment",
-                                area_ac: cat.area_ac,
-                            },
-                            &out,
-                            &st,
-                            rain_total,
-                            &o,
-                            None,
-                        );
-                        rec_entry.runoff_depth = o.depth(runoff_in);
-                        rec_entry.events = Some(events);
-                    }
-                    ElementKind::Inflow(inf) => {
-                        // An inflow hydrograph belongs to design storms; over a record it adds nothing.
-                        let _ = inf;
-                        let st = series_stats(&out, r.start_s, step_s, step_h);
-                        rec_entry = entry(
-                            r,
-                            Subject {
-                                cond: cname,
-                                element: &e.name,
-                                kind: "inflow",
-                                area_ac: 0.0,
-                            },
-                            &out,
-                            &st,
-                            rain_total,
-                            &o,
-                            None,
-                        );
-                    }
-                    ElementKind::Pond(p) => {
-                        let inflow = std::mem::take(&mut inputs[i]);
-                        let mut inflow = if inflow.is_empty() {
-                            pool.take(len)
-                        } else {
-                            inflow
-                        };
-                        let dt_s = step_h * 3600.0;
-                        let start = network::start_stage_ft(p);
-                        // Table up to the start storage plus all the water
-                        // that enters: the water cannot rise above it, and
-                        // the grid's spacing grows with depth far above the
-                        // outlets, so the table stays small however high that is.
-                        let total = stats::sum(&inflow);
-                        if !total.is_finite() {
-                            return Err(not_finite("pond", &e.name, "inflow volume", total));
-                        }
-                        let max_storage = p.storage.volume_ft3(start) + total * dt_s * 1.02 + 1.0;
-                        let table =
-                            network::pond_table_to(p, dt_s, max_storage).map_err(|source| {
-                                Error::Simulation(SimulationError::PondTable {
-                                    pond: e.name.clone(),
-                                    run: run_name.clone(),
-                                    condition: cname.clone(),
-                                    source,
-                                })
-                            })?;
-                        let vin = network::volume_ft3(&inflow, step_h);
-                        let clock = std::time::Instant::now();
-                        // The inflow's buffer becomes the stage series.
-                        let (storage_first, storage_last) =
-                            pond::route_stage_in_place(&table, &mut inflow, start, &mut out);
-                        res.timings.routing_s += clock.elapsed().as_secs_f64();
-                        let mut stage = inflow;
-                        let st = series_stats(&out, r.start_s, step_s, step_h);
-                        let area = crate::engine::analysis::area_to_element_ac(study, i, c);
-                        rec_entry = entry(
-                            r,
-                            Subject {
-                                cond: cname,
-                                element: &e.name,
-                                kind: "pond",
-                                area_ac: area,
-                            },
-                            &out,
-                            &st,
-                            rain_total,
-                            &o,
-                            None,
-                        );
-                        let am = if stage.len() > 1 {
-                            stats::annual_maxima(r.start_s, step_s, &stage[1..])
-                        } else {
-                            Vec::new()
-                        };
-                        // The highest stage and when, from the annual maxima
-                        // (NaN counts as missing there, so fewer intervals
-                        // than values means a NaN stage).
-                        let counted: usize = am.iter().map(|a| a.intervals).sum();
-                        let top_stage = am
-                            .iter()
-                            .map(|a| (a.peak, a.peak_index + 1))
-                            .max_by(|x, y| x.0.total_cmp(&y.0))
-                            .unwrap_or((start, 0));
-                        for (what, v) in [
-                            ("volume", st.volume_ft3),
-                            ("peak flow", st.peak),
-                            (
-                                "stage",
-                                if counted + 1 == stage.len() {
-                                    top_stage.0
-                                } else {
-                                    f64::NAN
-                                },
-                            ),
-                            ("storage", storage_last),
-                        ] {
-                            if !v.is_finite() {
-                                return Err(not_finite("pond", &e.name, what, v));
-                            }
-                        }
-                        if let Some(top) = p.top_ft {
-                            let over = top_stage.0 > top;
-                            res.pond_checks.push(PondCheckOut {
-                                pond: e.name.clone(),
-                                storm: r.name.clone(),
-                                condition: cname.clone(),
-                                check: "overtopping",
-                                value: Some(o.length(top_stage.0)),
-                                limit: o.length(top),
-                                pass: !over,
-                            });
-                            if over {
-                                let lu = o.unit(Quantity::Length);
-                                res.warnings.push(Warning::RecordOvertopped {
-                                    pond: e.name.clone(),
-                                    record: r.name.clone(),
-                                    condition: cname.clone(),
-                                    when: calendar::format_timestamp(
-                                        r.start_s + top_stage.1 as i64 * step_s,
-                                    ),
-                                    stage: format!("{} {lu}", sig(o.length(top_stage.0), 5)),
-                                    above: format!("{} {lu}", sig(o.length(top_stage.0 - top), 3)),
-                                });
-                            }
-                        }
-                        // Depths above the bottom (in place: the stages are
-                        // no longer needed) spread over many binary
-                        // exponents, which the duration ranking handles fastest.
-                        let bottom = p.storage.bottom_ft();
-                        for h in stage.iter_mut() {
-                            *h = (*h - bottom).max(0.0);
-                        }
-                        let sd: Vec<f64> = stats::flow_duration(&stage, &EXCEEDANCES)
-                            .into_iter()
-                            .map(|d| d + bottom)
-                            .collect();
-                        rec_entry.stage_duration = Some(
-                            EXCEEDANCES
-                                .iter()
-                                .zip(sd)
-                                .map(|(&x, s)| StageDurOut {
-                                    exceedance: x,
-                                    stage: o.length(s),
-                                })
-                                .collect(),
-                        );
-                        rec_entry.annual_max_stage = Some(
-                            am.iter()
-                                .map(|a| AnnualStage {
-                                    year: a.year,
-                                    peak_stage: o.length(a.peak),
-                                })
-                                .collect(),
-                        );
-                        let vout = network::volume_ft3(&out, step_h);
-                        let ds = storage_last - storage_first;
-                        let mb = if vin > 0.0 {
-                            (vin - vout - ds) / vin
-                        } else {
-                            0.0
-                        };
-                        rec_entry.mass_balance_error = Some(mb);
-                        if mb.abs() > crate::engine::analysis::MASS_BALANCE_WARN {
-                            res.warnings.push(Warning::MassBalance {
-                                pond: e.name.clone(),
-                                run: run_name.clone(),
-                                condition: cname.clone(),
-                                error: mb,
-                            });
-                        }
-                        if vin > 0.0 && ds > crate::engine::analysis::MASS_BALANCE_WARN * vin {
-                            res.warnings.push(Warning::RecordWaterLeft {
-                                record: r.name.clone(),
-                                condition: cname.clone(),
-                                element: format!("pond \"{}\"", e.name),
-                                left: format!(
-                                    "{} {}",
-                                    sig(o.volume(ds), 3),
-                                    o.unit(Quantity::Volume)
-                                ),
-                                percent: 100.0 * ds / vin,
-                                what: "is still stored in it",
-                            });
-                        }
-                        pool.give(stage);
-                    }
-                }
-                res.entries.push(rec_entry);
-                let target = match e.to {
-                    Target::Point(pi) => points.get_mut(pi),
-                    Target::Element(j) => inputs.get_mut(j),
-                };
-                if target.is_some() && e.lag_h > 0.0 {
-                    let lost = lagged_past_end_ft3(&out, len, e.lag_h, step_h);
-                    if lost > 0.0 {
-                        res.warnings.push(Warning::RecordLagPastEnd {
-                            record: r.name.clone(),
-                            condition: cname.clone(),
-                            element: e.name.clone(),
-                            lag_h: e.lag_h,
-                            lost: format!(
-                                "{} {}",
-                                sig(o.volume(lost), 3),
-                                o.unit(Quantity::Volume)
-                            ),
-                        });
-                    }
-                }
-                if let Some(target) = target {
-                    if target.is_empty() && e.lag_h == 0.0 && out.len() == len {
-                        // The first series into a target, unshifted: it
-                        // becomes the target's sum as it is.
-                        *target = out;
-                    } else {
-                        if target.is_empty() {
-                            *target = pool.take(len);
-                        }
-                        network::add_lagged(target, &out, e.lag_h, step_h);
-                        pool.give(out);
-                    }
-                } else {
-                    pool.give(out);
-                }
-                if let Some(b) = &bar {
-                    b.inc(1);
-                }
-            }
-            for (pi, p) in points.iter_mut().enumerate() {
-                if p.is_empty() {
-                    *p = pool.take(len);
-                }
-                let st = series_stats(p, r.start_s, step_s, step_h);
-                let pname = &study.points[pi].name;
-                if !st.volume_ft3.is_finite() {
-                    return Err(not_finite("point", pname, "volume", st.volume_ft3));
-                }
-                // Runoff generated upstream that has not reached the point
-                // when the record ends (in ponds, in the falling limbs of
-                // the last storms, or lagged past the end).
-                let entered: f64 = (0..study.elements.len())
-                    .filter(|&j| crate::engine::analysis::reaches(study, j, pi))
-                    .map(|j| generated_ft3[j])
-                    .sum();
-                let missing = entered - st.volume_ft3;
-                if entered > 0.0 && missing > crate::engine::analysis::MASS_BALANCE_WARN * entered {
-                    res.warnings.push(Warning::RecordWaterLeft {
-                        record: r.name.clone(),
-                        condition: cname.clone(),
-                        element: format!("point \"{pname}\""),
-                        left: format!("{} {}", sig(o.volume(missing), 3), o.unit(Quantity::Volume)),
-                        percent: 100.0 * missing / entered,
-                        what: "of the runoff generated upstream has not reached it",
-                    });
-                }
-                let area = crate::engine::analysis::area_to_point_ac(study, pi, c);
-                // The table's fractions and the plot's, in one ranking.
-                let mut wanted = EXCEEDANCES.to_vec();
-                wanted.extend(plot_exceedances());
-                let mut all = st.scan.flow_duration(p, &wanted);
-                let curve = all.split_off(EXCEEDANCES.len());
-                point_curves.push((
-                    (c, pi),
-                    plot_exceedances()
-                        .into_iter()
-                        .zip(curve.into_iter().map(|v| o.flow(v)))
-                        .collect::<Vec<_>>(),
-                ));
-                res.entries.push(entry(
-                    r,
-                    Subject {
-                        cond: cname,
-                        element: &study.points[pi].name,
-                        kind: "point",
-                        area_ac: area,
-                    },
-                    p,
-                    &st,
-                    rain_total,
-                    &o,
-                    Some(all),
-                ));
-                if let Some(dc) = &study.points[pi].durations {
-                    if c == study.baseline
-                        && let Some(be) = res.entries.last()
-                        && let Some([m, s, g]) = be.lp3
-                    {
-                        let fit = stats::Lp3Fit {
-                            mean_log10: m,
-                            std_log10: s,
-                            skew: g,
-                            n: be.annual_peaks.len(),
-                        };
-                        let from = dc.from.0 * fit.quantile(dc.from.1);
-                        let to = dc.to.0 * fit.quantile(dc.to.1);
-                        let (lo, hi) = (from.min(to), from.max(to));
-                        let levels: Vec<f64> = (0..100)
-                            .map(|k| (lo.ln() + (hi.ln() - lo.ln()) * k as f64 / 99.0).exp())
-                            .collect();
-                        control[pi] = Some((lo, hi, levels));
-                    }
-                    if let Some((_, _, levels)) = &control[pi] {
-                        counts[c][pi] = stats::times_above_levels(p, levels);
-                    }
-                }
-                daily_max[c][pi] = p
-                    .chunks(per_day)
-                    .map(|ch| stats::max_value(ch).max(0.0))
-                    .collect();
-            }
-            for p in points {
-                pool.give(p);
-            }
-        }
-        // Entries in the order of the conditions, as for design storms.
-        res.entries[first_entry..].sort_by_key(|e| {
-            study
-                .conditions
-                .iter()
-                .position(|c| *c == e.condition)
-                .unwrap_or(usize::MAX)
-        });
-        if let Some(b) = bar {
-            b.finish_and_clear();
-        }
-        let partial = incomplete_years(r.start_s, step_s, n);
-        if !partial.is_empty() {
-            res.warnings.push(Warning::RecordIncompleteYears {
-                record: r.name.clone(),
-                years: partial
-                    .iter()
-                    .map(|&(y, k, m)| (y, 100.0 * k as f64 / m.max(1) as f64))
-                    .collect(),
-            });
-        }
-        let complete = res.entries[first_entry..]
-            .first()
-            .map_or(0, |e| e.annual_peaks.len());
-        if complete < 10 {
-            res.warnings.push(Warning::RecordShortFit {
-                record: r.name.clone(),
-                element: None,
-                years: complete,
-            });
-        } else {
-            for en in &res.entries[first_entry..] {
-                let fitted = en.annual_peaks.len() - en.zero_years.len();
-                if en.lp3.is_some() && fitted < 10 {
-                    res.warnings.push(Warning::RecordShortFit {
-                        record: r.name.clone(),
-                        element: Some(format!("{} \"{}\" ({})", en.kind, en.element, en.condition)),
-                        years: fitted,
-                    });
-                }
-            }
-        }
-        // Flow-duration control and plots per point.
-        for (pi, pt) in study.points.iter().enumerate() {
-            let base_entry = res
-                .entries
-                .iter()
-                .find(|e| {
-                    e.record == r.name
-                        && e.kind == "point"
-                        && e.element == pt.name
-                        && e.condition == study.conditions[study.baseline]
-                })
-                .cloned();
-            if let (Some(dc), Some(_)) = (&pt.durations, &base_entry)
-                && let Some((lo, hi, levels)) = &control[pi]
-            {
-                let (lo, hi) = (*lo, *hi);
-                let tb = &counts[study.baseline][pi];
-                for (c, cname) in study.conditions.iter().enumerate() {
-                    if c == study.baseline {
-                        continue;
-                    }
-                    let tc = &counts[c][pi];
-                    let mut worst = (f64::NEG_INFINITY, 0usize);
-                    let mut pass = true;
-                    for (k, (&b, &x)) in tb.iter().zip(tc.iter()).enumerate() {
-                        let excess = if b == 0 {
-                            if x > 0 { f64::INFINITY } else { 0.0 }
-                        } else {
-                            (x as f64 - b as f64) / b as f64
-                        };
-                        let bad = if b == 0 {
-                            x > 0
-                        } else {
-                            x as f64 > b as f64 * (1.0 + dc.tolerance) + 1e-9
-                        };
-                        if bad {
-                            pass = false;
-                        }
-                        if excess > worst.0 {
-                            worst = (excess, k);
-                        }
-                    }
-                    let wl = levels.get(worst.1).copied().unwrap_or(0.0);
-                    let hours = |n: Option<&usize>| n.map(|&n| n as f64 * step_h).unwrap_or(0.0);
-                    let base_h = hours(tb.get(worst.1));
-                    res.comparisons.push(ComparisonOut {
-                        point: pt.name.clone(),
-                        storm: None,
-                        record: Some(r.name.clone()),
-                        baseline: study.conditions[study.baseline].clone(),
-                        condition: cname.clone(),
-                        check: "flow duration",
-                        status: if pass { "meets" } else { "exceeds" },
-                        baseline_peak: None,
-                        peak: None,
-                        limit: None,
-                        limit_text: duration_rule_text(dc),
-                        pass: Some(pass),
-                        area: o.area(crate::engine::analysis::area_to_point_ac(study, pi, c)),
-                        baseline_area: Some(o.area(crate::engine::analysis::area_to_point_ac(
-                            study,
-                            pi,
-                            study.baseline,
-                        ))),
-                        duration: Some(DurationOut {
-                            from_flow: o.flow(lo),
-                            to_flow: o.flow(hi),
-                            levels: levels.len(),
-                            tolerance: dc.tolerance,
-                            worst_flow: o.flow(wl),
-                            baseline_time_h: base_h,
-                            time_h: hours(tc.get(worst.1)),
-                            allowed_time_h: base_h * (1.0 + dc.tolerance),
-                            worst_relative_excess: worst.0.is_finite().then_some(worst.0),
-                        }),
-                    });
-                }
-            } else if let Some(dc) = &pt.durations
-                && study.baseline_empty
-            {
-                for c in study.simulated_conditions() {
-                    res.comparisons.push(ComparisonOut {
-                        point: pt.name.clone(),
-                        storm: None,
-                        record: Some(r.name.clone()),
-                        baseline: study.conditions[study.baseline].clone(),
-                        condition: study.conditions[c].clone(),
-                        check: "flow duration",
-                        status: crate::report::summary::NOT_CHECKED_NO_BASELINE,
-                        baseline_peak: None,
-                        peak: None,
-                        limit: None,
-                        limit_text: duration_rule_text(dc),
-                        pass: None,
-                        area: o.area(crate::engine::analysis::area_to_point_ac(study, pi, c)),
-                        baseline_area: None,
-                        duration: None,
-                    });
-                }
-            }
-            // Plot data.
-            let fu = o.unit(Quantity::Flow).replace("m3/s", "m³/s");
-            let mut curves = Vec::new();
-            let mut observed = Vec::new();
-            let mut fitted = Vec::new();
-            let mut daily = Vec::new();
-            for c in study.simulated_conditions() {
-                let cname = &study.conditions[c];
-                let curve = point_curves
-                    .iter()
-                    .find(|(k, _)| *k == (c, pi))
-                    .map(|(_, v)| v.clone())
-                    .unwrap_or_default();
-                curves.push((cname.clone(), curve));
-                if let Some(en) = res.entries.iter().find(|e| {
-                    e.record == r.name
-                        && e.kind == "point"
-                        && e.element == pt.name
-                        && &e.condition == cname
-                }) {
-                    let mut peaks: Vec<f64> = en
-                        .annual_peaks
-                        .iter()
-                        .map(|a| a.peak_flow)
-                        .filter(|v| *v > 0.0)
-                        .collect();
-                    peaks.sort_by(|a, b| b.total_cmp(a));
-                    let m = peaks.len() as f64;
-                    observed.push((
-                        cname.clone(),
-                        peaks
-                            .iter()
-                            .enumerate()
-                            .map(|(i, &v)| ((m + 1.0) / (i as f64 + 1.0), v))
-                            .collect(),
-                    ));
-                    if let Some([mu, sd, g]) = en.lp3 {
-                        let f = stats::Lp3Fit {
-                            mean_log10: mu,
-                            std_log10: sd,
-                            skew: g,
-                            n: peaks.len(),
-                        };
-                        let ts = [
-                            1.01, 1.1, 1.25, 1.5, 2.0, 3.0, 5.0, 10.0, 20.0, 25.0, 50.0, 100.0,
-                            200.0,
-                        ];
-                        fitted.push((
-                            cname.clone(),
-                            ts.iter().map(|&t| (t, o.flow(f.quantile(t)))).collect(),
-                        ));
-                    }
-                }
-                daily.push((
-                    cname.clone(),
-                    daily_max[c][pi].iter().map(|&q| o.flow(q)).collect(),
-                ));
-            }
-            let (y, mo, d) = calendar::civil_from_days(r.start_s.div_euclid(86_400));
-            let title = format!("{} - record \"{}\"", pt.name, r.name);
-            let base = output::record_plot_base(&r.name, &pt.name);
-            res.plots.push((
-                format!("record {} at {}", r.name, pt.name),
-                base,
-                PlotData {
-                    duration: plot::DurationPlot {
-                        title: format!("Flow duration - {title}"),
-                        flow_unit: fu.clone(),
-                        curves,
-                    },
-                    frequency: plot::FrequencyPlot {
-                        title: format!("Annual peaks - {title}"),
-                        flow_unit: fu.clone(),
-                        observed,
-                        fitted,
-                    },
-                    overview: plot::OverviewPlot {
-                        title: format!("Daily maximum flow - {title}"),
-                        flow_unit: fu.clone(),
-                        day_labels_start: (y, mo, d),
-                        daily_max: daily,
-                    },
-                },
-            ));
-        }
-        let inner = res.timings.routing_s + res.timings.runoff_s - routing_before;
-        res.timings.statistics_s +=
-            (record_clock.elapsed().as_secs_f64() - inner - res.timings.rain_s).max(0.0);
+        run_record(study, r, progress, &mut res)?;
     }
-    res.json = res
-        .entries
-        .iter()
-        .filter_map(|e| serde_json::to_value(e).ok())
-        .collect();
-    res.markdown = markdown(study, &res);
     Ok(res)
 }
 
-/// A flow-duration rule as the report states it.
-fn duration_rule_text(dc: &crate::model::DurationControl) -> String {
-    format!("durations {} within {:.0} %", dc.text, dc.tolerance * 100.0)
+/// The order in which conditions are simulated: the baseline first, so
+/// that the flow levels of every point's duration control are known while
+/// each condition's series is at hand (the series is then reduced to its
+/// times above those levels and its daily maxima, and its buffer reused).
+/// An empty baseline is not simulated.
+fn condition_order(study: &Study) -> Vec<usize> {
+    let nc = study.conditions.len();
+    if study.baseline < nc && !study.baseline_empty {
+        std::iter::once(study.baseline)
+            .chain((0..nc).filter(|&c| c != study.baseline))
+            .collect()
+    } else {
+        study.simulated_conditions()
+    }
 }
 
-/// Writes the record plots and returns (caption, file) pairs.
-///
-/// # Errors
-/// When a plot cannot be drawn or written.
-pub fn write_plots(
-    _study: &Study,
-    res: &RecordsResult,
-    stage: &Staging,
-) -> Result<Vec<(String, String)>, Error> {
-    let mut out = Vec::new();
-    for (cap, base, p) in &res.plots {
-        let err = |e: plot::PlotError| Error::Write {
-            path: stage.temp_dir().to_path_buf(),
-            message: e.to_string(),
-        };
-        let f1 = format!("{base}-duration.png");
-        stage.write(&f1, &plot::flow_duration_png(&p.duration).map_err(err)?)?;
-        out.push((format!("{cap}: flow duration"), f1));
-        let f2 = format!("{base}-frequency.png");
-        stage.write(&f2, &plot::frequency_png(&p.frequency).map_err(err)?)?;
-        out.push((format!("{cap}: annual peaks"), f2));
-        let f3 = format!("{base}-overview.png");
-        stage.write(&f3, &plot::overview_png(&p.overview).map_err(err)?)?;
-        out.push((format!("{cap}: daily maxima"), f3));
-    }
-    Ok(out)
-}
-
-fn markdown(study: &Study, res: &RecordsResult) -> String {
-    if study.records.is_empty() {
-        return String::new();
-    }
-    let o = Out(study.units);
-    let fu = o.unit(Quantity::Flow);
-    let du = o.unit(Quantity::Depth);
-    let mut m = String::new();
-    let _ = writeln!(m, "## Long records\n");
-    let _ = writeln!(
-        m,
-        "Event curve-number accounting (events split by dry gaps), unit hydrographs and storage-indication over the whole record. Frequency by log-Pearson Type III fitted to log10 annual peaks by moments with the station skew (Bulletin 17B frequency factors from the gamma inverse); Weibull plotting positions; complete calendar years only (>= 90 % of intervals).\n"
+/// Runs one record for every condition and adds its results to `res`.
+fn run_record(
+    study: &Study,
+    r: &Record,
+    progress: &dyn Progress,
+    res: &mut RecordsResult,
+) -> Result<(), Error> {
+    let step_h = r.step_h;
+    let step_s = (step_h * 3600.0).round() as i64;
+    let steps = record_steps(r);
+    let record_clock = std::time::Instant::now();
+    let inner_before_s = res.timings.routing_s + res.timings.runoff_s;
+    let clock = std::time::Instant::now();
+    // At the gauge interval the record's own depths are the rain per step.
+    let rain_in = rain_at_step(r)?;
+    res.timings.rain_s += clock.elapsed().as_secs_f64();
+    res.timings.intervals += steps;
+    let run = RecordRun {
+        study,
+        record: r,
+        rain_total_in: stats::sum(&rain_in),
+        rain_in,
+        len: steps + 1,
+        step_h,
+        step_s,
+        run_name: format!("record \"{}\"", r.name),
+    };
+    progress.start(
+        &r.name,
+        steps,
+        (study.conditions.len() * study.elements.len()) as u64,
     );
-    for r in &study.records {
-        let _ = writeln!(m, "### Record \"{}\"\n", r.name);
-        let _ = writeln!(
-            m,
-            "| condition | element | kind | rain [{du}] | runoff [{du}] | peak [{fu}] | when | Q2 | Q10 | Q100 | 1 % time | 0.1 % time |\n|---|---|---|---:|---:|---:|---|---:|---:|---:|---:|---:|"
-        );
-        for e in res.entries.iter().filter(|e| e.record == r.name) {
-            let q = |t: f64| {
-                e.frequency
-                    .iter()
-                    .find(|f| (f.return_period - t).abs() < 1e-9)
-                    .map(|f| sig(f.flow, 4))
-                    .unwrap_or_else(|| "-".into())
-            };
-            let d = |x: f64| {
-                e.flow_duration
-                    .iter()
-                    .find(|f| (f.exceedance - x).abs() < 1e-12)
-                    .map(|f| sig(f.flow, 4))
-                    .unwrap_or_else(|| "-".into())
-            };
-            let _ = writeln!(
-                m,
-                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
-                e.condition,
-                e.element,
-                e.kind,
-                sig(e.rain_depth, 5),
-                sig(e.runoff_depth, 5),
-                sig(e.peak_flow, 4),
-                e.peak_time,
-                q(2.0),
-                q(10.0),
-                q(100.0),
-                d(0.01),
-                d(0.001)
-            );
-        }
-        let _ = writeln!(m);
-        if res
-            .comparisons
-            .iter()
-            .any(|c| c.record.as_deref() == Some(&r.name))
-        {
-            let _ = writeln!(
-                m,
-                "The flow-duration control of this record is reported with the design points.\n"
-            );
+    let first_entry = res.elements.len();
+    let mut durations = DurationCounts {
+        levels: vec![None; study.points.len()],
+        exceedance_counts: vec![vec![Vec::new(); study.points.len()]; study.conditions.len()],
+    };
+    // Buffers are reused between elements: fresh 80-MB vectors cost
+    // more in page faults than the arithmetic on them.
+    let mut pool = Pool::default();
+    for c in condition_order(study) {
+        let flows = simulate_condition(&run, c, &mut pool, progress, res)?;
+        reduce_points(&run, c, flows, &mut durations, &mut pool, res)?;
+    }
+    // Entries in the order of the conditions, as for design storms.
+    res.elements[first_entry..].sort_by_key(|e| e.condition);
+    progress.finish();
+    fit_warnings(study, r, steps, &res.elements[first_entry..], &mut res.warnings);
+    duration_comparisons(&run, &durations, &mut res.comparisons);
+    let inner_s = res.timings.routing_s + res.timings.runoff_s - inner_before_s;
+    res.timings.statistics_s +=
+        (record_clock.elapsed().as_secs_f64() - inner_s - res.timings.rain_s).max(0.0);
+    Ok(())
+}
+
+/// What one condition's elements leave at the points.
+struct ConditionFlows {
+    /// Flow (cfs) arriving at each point.
+    points: Vec<Vec<f64>>,
+    /// Runoff volume (ft3) each catchment generated over the record.
+    generated_ft3: Vec<f64>,
+}
+
+/// Simulates every element of condition `c` in network order, adding each
+/// one's outflow into what it drains to.
+fn simulate_condition(
+    run: &RecordRun<'_>,
+    c: usize,
+    pool: &mut Pool,
+    progress: &dyn Progress,
+    res: &mut RecordsResult,
+) -> Result<ConditionFlows, Error> {
+    let study = run.study;
+    let mut inputs: Vec<Vec<f64>> = vec![Vec::new(); study.elements.len()];
+    let mut flows = ConditionFlows {
+        points: vec![Vec::new(); study.points.len()],
+        generated_ft3: vec![0.0; study.elements.len()],
+    };
+    for i in network::order(&study.elements, c) {
+        let e = &study.elements[i];
+        // Routing writes a pond's outflow from empty; the others add into zeros.
+        let mut out = if matches!(e.kind, ElementKind::Pond(_)) {
+            pool.take_overwritten(0)
+        } else {
+            pool.take(run.len)
+        };
+        let entry = match &e.kind {
+            ElementKind::Catchment(cat) => {
+                let (entry, generated_ft3) =
+                    simulate_catchment(run, c, &e.name, cat, &mut out, &mut res.timings)?;
+                flows.generated_ft3[i] = generated_ft3;
+                entry
+            }
+            ElementKind::Inflow(_) => {
+                // An inflow hydrograph belongs to design storms; over a record it adds nothing.
+                let st = run.stats(&out);
+                let who = Subject {
+                    condition: c,
+                    element: &e.name,
+                    kind: SubjectKind::Inflow,
+                    area_ac: 0.0,
+                };
+                element_record(run, who, &out, &st, None)
+            }
+            ElementKind::Pond(p) => {
+                let inflow = std::mem::take(&mut inputs[i]);
+                route_pond(run, c, i, p, inflow, &mut out, pool, res)?
+            }
+        };
+        res.elements.push(entry);
+        let target = match e.to {
+            Target::Point(pi) => flows.points.get_mut(pi),
+            Target::Element(j) => inputs.get_mut(j),
+        };
+        pass_downstream(run, c, e, out, target, pool, &mut res.warnings);
+        progress.advance();
+    }
+    Ok(flows)
+}
+
+/// Adds an element's outflow into its target (lagged), warning of any
+/// volume lagged past the record's end, and returns the buffer to the pool.
+fn pass_downstream(
+    run: &RecordRun<'_>,
+    c: usize,
+    e: &crate::model::Element,
+    out: Vec<f64>,
+    target: Option<&mut Vec<f64>>,
+    pool: &mut Pool,
+    warnings: &mut Vec<RecordWarning>,
+) {
+    let Some(target) = target else {
+        pool.give(out);
+        return;
+    };
+    if e.lag_h > 0.0 {
+        let lost_ft3 = lagged_past_end_ft3(&out, run.len, e.lag_h, run.step_h);
+        if lost_ft3 > 0.0 {
+            warnings.push(RecordWarning::LagPastEnd {
+                record: run.record.name.clone(),
+                condition: run.study.conditions[c].clone(),
+                element: e.name.clone(),
+                lag_h: e.lag_h,
+                lost_ft3,
+            });
         }
     }
-    m
+    if target.is_empty() && e.lag_h == 0.0 && out.len() == run.len {
+        // The first series into a target, unshifted: it becomes the
+        // target's sum as it is.
+        *target = out;
+    } else {
+        if target.is_empty() {
+            *target = pool.take(run.len);
+        }
+        network::add_lagged(target, &out, e.lag_h, run.step_h);
+        pool.give(out);
+    }
+}
+
+/// A catchment's runoff over the record, added into `out` (zeroed), with
+/// its entry and the runoff volume (ft3) it generated.
+fn simulate_catchment(
+    run: &RecordRun<'_>,
+    c: usize,
+    name: &str,
+    cat: &Catchment,
+    out: &mut [f64],
+    timings: &mut Timings,
+) -> Result<(ElementRecord, f64), Error> {
+    let r = run.record;
+    let step_h = run.step_h;
+    let clock = std::time::Instant::now();
+    let tp_h = unit_hydrograph::time_to_peak_h(step_h, crate::methods::timing::lag_h(cat.tc_h));
+    let uh = unit_hydrograph::ordinates_cfs_per_in(cat.shape, cat.area_ac, tp_h, step_h);
+    let month_of = |k: usize| calendar::month_of(r.start_s + k as i64 * run.step_s);
+    // Each rainy interval's excess goes straight into the convolution (no
+    // excess series is stored), so the two stages are timed together.
+    let mut runoff_in = 0.0;
+    let events = match &r.moisture {
+        MoistureMode::Event {
+            dry_gap_h,
+            antecedent,
+            growing_months,
+        } => {
+            let opts = moisture::EventOptions {
+                dry_gap_steps: moisture::dry_gap_steps_for(*dry_gap_h, step_h).unwrap_or(1),
+                antecedent: antecedent.then(|| moisture::AntecedentRule {
+                    growing_months: *growing_months,
+                    ..Default::default()
+                }),
+            };
+            moisture::event_excess_each(
+                &run.rain_in,
+                step_h,
+                cat.cn,
+                cat.lambda,
+                &opts,
+                &month_of,
+                |j, excess_in| {
+                    runoff_in += excess_in;
+                    unit_hydrograph::add_response(out, j, excess_in, &uh);
+                },
+            )
+            .map_err(|e| Error::Compute {
+                message: format!("record \"{}\": {e}", r.name),
+            })?
+        }
+        MoistureMode::Continuous { .. } => {
+            return Err(Error::Compute {
+                message: format!(
+                    "record \"{}\": {}",
+                    r.name,
+                    moisture::MoistureError::ContinuousUnavailable
+                ),
+            });
+        }
+    };
+    timings.runoff_s += clock.elapsed().as_secs_f64();
+    let st = run.stats(out);
+    for (what, v) in [
+        ("runoff depth", runoff_in),
+        ("volume", st.volume_ft3),
+        ("peak flow", st.peak),
+    ] {
+        if !v.is_finite() {
+            return Err(run.not_finite(c, "catchment", name, what, v));
+        }
+    }
+    let generated_ft3 = runoff_in / 12.0 * cat.area_ac * crate::util::units::FT2_PER_AC;
+    let who = Subject {
+        condition: c,
+        element: name,
+        kind: SubjectKind::Catchment,
+        area_ac: cat.area_ac,
+    };
+    let mut entry = element_record(run, who, out, &st, None);
+    entry.runoff_in = runoff_in;
+    entry.events = Some(events);
+    Ok((entry, generated_ft3))
+}
+
+/// Routes a pond's inflow over the record into `out` and returns its entry,
+/// with its overtopping check, stage statistics and mass balance.
+#[allow(clippy::too_many_arguments)]
+fn route_pond(
+    run: &RecordRun<'_>,
+    c: usize,
+    index: usize,
+    p: &Pond,
+    inflow: Vec<f64>,
+    out: &mut Vec<f64>,
+    pool: &mut Pool,
+    res: &mut RecordsResult,
+) -> Result<ElementRecord, Error> {
+    let study = run.study;
+    let name = &study.elements[index].name;
+    let mut inflow = if inflow.is_empty() {
+        pool.take(run.len)
+    } else {
+        inflow
+    };
+    let dt_s = run.step_h * 3600.0;
+    let start_ft = network::start_stage_ft(p);
+    // Table up to the start storage plus all the water that enters: the
+    // water cannot rise above it, and the grid's spacing grows with depth
+    // far above the outlets, so the table stays small however high that is.
+    let total = stats::sum(&inflow);
+    if !total.is_finite() {
+        return Err(run.not_finite(c, "pond", name, "inflow volume", total));
+    }
+    let max_storage_ft3 = p.storage.volume_ft3(start_ft) + total * dt_s * 1.02 + 1.0;
+    let table = network::pond_table_to(p, dt_s, max_storage_ft3).map_err(|source| {
+        Error::Simulation(SimulationError::PondTable {
+            pond: name.clone(),
+            run: run.run_name.clone(),
+            condition: study.conditions[c].clone(),
+            source,
+        })
+    })?;
+    let inflow_ft3 = network::volume_ft3(&inflow, run.step_h);
+    let clock = std::time::Instant::now();
+    // The inflow's buffer becomes the stage series.
+    let (storage_first_ft3, storage_last_ft3) =
+        pond::route_stage_in_place(&table, &mut inflow, start_ft, out);
+    res.timings.routing_s += clock.elapsed().as_secs_f64();
+    let mut stage_ft = inflow;
+    let st = run.stats(out);
+    let who = Subject {
+        condition: c,
+        element: name,
+        kind: SubjectKind::Pond,
+        area_ac: crate::engine::analysis::area_to_element_ac(study, index, c),
+    };
+    let mut entry = element_record(run, who, out, &st, None);
+    let annual_max = if stage_ft.len() > 1 {
+        stats::annual_maxima(run.record.start_s, run.step_s, &stage_ft[1..])
+    } else {
+        Vec::new()
+    };
+    // The highest stage and when, from the annual maxima (NaN counts as
+    // missing there, so fewer intervals than values means a NaN stage).
+    let counted: usize = annual_max.iter().map(|a| a.intervals).sum();
+    let (top_stage_ft, top_index) = annual_max
+        .iter()
+        .map(|a| (a.peak, a.peak_index + 1))
+        .max_by(|x, y| x.0.total_cmp(&y.0))
+        .unwrap_or((start_ft, 0));
+    let stage_checked = if counted + 1 == stage_ft.len() {
+        top_stage_ft
+    } else {
+        f64::NAN
+    };
+    for (what, v) in [
+        ("volume", st.volume_ft3),
+        ("peak flow", st.peak),
+        ("stage", stage_checked),
+        ("storage", storage_last_ft3),
+    ] {
+        if !v.is_finite() {
+            return Err(run.not_finite(c, "pond", name, what, v));
+        }
+    }
+    if let Some(top_ft) = p.top_ft {
+        check_overtopping(run, c, name, top_ft, (top_stage_ft, top_index), res);
+    }
+    // Depths above the bottom (in place: the stages are no longer needed)
+    // spread over many binary exponents, which the duration ranking
+    // handles fastest.
+    let bottom_ft = p.storage.bottom_ft();
+    for h in stage_ft.iter_mut() {
+        *h = (*h - bottom_ft).max(0.0);
+    }
+    let stage_duration_ft: Vec<f64> = stats::flow_duration(&stage_ft, &EXCEEDANCES)
+        .into_iter()
+        .map(|d| d + bottom_ft)
+        .collect();
+    let outflow_ft3 = network::volume_ft3(out, run.step_h);
+    let stored_ft3 = storage_last_ft3 - storage_first_ft3;
+    let mass_balance_error = if inflow_ft3 > 0.0 {
+        (inflow_ft3 - outflow_ft3 - stored_ft3) / inflow_ft3
+    } else {
+        0.0
+    };
+    entry.pond = Some(PondRecord {
+        stage_duration_ft,
+        annual_max_stage_ft: annual_max
+            .iter()
+            .map(|a| YearMax {
+                year: a.year,
+                value: a.peak,
+            })
+            .collect(),
+        mass_balance_error,
+    });
+    pond_balance_warnings(
+        run,
+        c,
+        name,
+        mass_balance_error,
+        (inflow_ft3, stored_ft3),
+        &mut res.warnings,
+    );
+    pool.give(stage_ft);
+    Ok(entry)
+}
+
+/// The overtopping check of a pond with a top, and its warning when the
+/// highest stage (ft, at interval index) rose above it.
+fn check_overtopping(
+    run: &RecordRun<'_>,
+    c: usize,
+    pond: &str,
+    top_ft: f64,
+    (peak_stage_ft, peak_index): (f64, usize),
+    res: &mut RecordsResult,
+) {
+    let over = peak_stage_ft > top_ft;
+    let condition = &run.study.conditions[c];
+    res.overtopping.push(OvertoppingCheck {
+        pond: pond.to_string(),
+        record: run.record.name.clone(),
+        condition: condition.clone(),
+        peak_stage_ft,
+        top_ft,
+        pass: !over,
+    });
+    if over {
+        res.warnings.push(RecordWarning::Overtopped {
+            pond: pond.to_string(),
+            record: run.record.name.clone(),
+            condition: condition.clone(),
+            when_s: run.record.start_s + peak_index as i64 * run.step_s,
+            stage_ft: peak_stage_ft,
+            top_ft,
+        });
+    }
+}
+
+/// Warnings of a pond's mass balance and of the water (ft3) still stored
+/// in it at the end of the record, out of `(inflow, stored)` volumes.
+fn pond_balance_warnings(
+    run: &RecordRun<'_>,
+    c: usize,
+    pond: &str,
+    mass_balance_error: f64,
+    (inflow_ft3, stored_ft3): (f64, f64),
+    warnings: &mut Vec<RecordWarning>,
+) {
+    let condition = &run.study.conditions[c];
+    if mass_balance_error.abs() > crate::engine::analysis::MASS_BALANCE_WARN {
+        warnings.push(RecordWarning::Plain(Warning::MassBalance {
+            pond: pond.to_string(),
+            run: run.run_name.clone(),
+            condition: condition.clone(),
+            error: mass_balance_error,
+        }));
+    }
+    if inflow_ft3 > 0.0 && stored_ft3 > crate::engine::analysis::MASS_BALANCE_WARN * inflow_ft3 {
+        warnings.push(RecordWarning::WaterLeft {
+            record: run.record.name.clone(),
+            condition: condition.clone(),
+            element: format!("pond \"{pond}\""),
+            left_ft3: stored_ft3,
+            percent: 100.0 * stored_ft3 / inflow_ft3,
+            what: "is still stored in it",
+        });
+    }
+}
+
+/// Reduces each point's series of condition `c` to its entry, its plot
+/// series, and its times above its duration control's levels, and returns
+/// the buffers to the pool.
+fn reduce_points(
+    run: &RecordRun<'_>,
+    c: usize,
+    flows: ConditionFlows,
+    durations: &mut DurationCounts,
+    pool: &mut Pool,
+    res: &mut RecordsResult,
+) -> Result<(), Error> {
+    let study = run.study;
+    let ConditionFlows {
+        mut points,
+        generated_ft3,
+    } = flows;
+    let per_day = ((24.0 / run.step_h).round() as usize).max(1);
+    for (pi, p) in points.iter_mut().enumerate() {
+        if p.is_empty() {
+            *p = pool.take(run.len);
+        }
+        let st = run.stats(p);
+        let pname = &study.points[pi].name;
+        if !st.volume_ft3.is_finite() {
+            return Err(run.not_finite(c, "point", pname, "volume", st.volume_ft3));
+        }
+        // Runoff generated upstream that has not reached the point when the
+        // record ends (in ponds, in the falling limbs of the last storms, or
+        // lagged past the end).
+        let entered_ft3: f64 = (0..study.elements.len())
+            .filter(|&j| crate::engine::analysis::reaches(study, j, pi))
+            .map(|j| generated_ft3[j])
+            .sum();
+        let missing_ft3 = entered_ft3 - st.volume_ft3;
+        if entered_ft3 > 0.0
+            && missing_ft3 > crate::engine::analysis::MASS_BALANCE_WARN * entered_ft3
+        {
+            res.warnings.push(RecordWarning::WaterLeft {
+                record: run.record.name.clone(),
+                condition: study.conditions[c].clone(),
+                element: format!("point \"{pname}\""),
+                left_ft3: missing_ft3,
+                percent: 100.0 * missing_ft3 / entered_ft3,
+                what: "of the runoff generated upstream has not reached it",
+            });
+        }
+        // The table's fractions and the plot's, in one ranking.
+        let mut wanted = EXCEEDANCES.to_vec();
+        wanted.extend(plot_exceedances());
+        let mut table_cfs = st.scan.flow_duration(p, &wanted);
+        let duration_curve_cfs = table_cfs.split_off(EXCEEDANCES.len());
+        let who = Subject {
+            condition: c,
+            element: pname,
+            kind: SubjectKind::Point,
+            area_ac: crate::engine::analysis::area_to_point_ac(study, pi, c),
+        };
+        let entry = element_record(run, who, p, &st, Some(table_cfs));
+        if let Some(dc) = &study.points[pi].durations {
+            if c == study.baseline
+                && let Some(fit) = &entry.lp3
+            {
+                durations.levels[pi] = Some(duration_levels(dc, fit));
+            }
+            if let Some(levels) = &durations.levels[pi] {
+                durations.exceedance_counts[c][pi] =
+                    stats::times_above_levels(p, &levels.levels_cfs);
+            }
+        }
+        res.elements.push(entry);
+        res.points.push(PointSeries {
+            record: run.record.name.clone(),
+            condition: c,
+            point: pi,
+            duration_curve_cfs,
+            daily_max_cfs: p
+                .chunks(per_day)
+                .map(|ch| stats::max_value(ch).max(0.0))
+                .collect(),
+        });
+    }
+    for p in points {
+        pool.give(p);
+    }
+    Ok(())
+}
+
+/// The flow levels of a duration control, from the baseline's fit:
+/// [`DURATION_LEVELS`] levels evenly spaced in log over the rule's range.
+fn duration_levels(dc: &DurationControl, fit: &stats::Lp3Fit) -> DurationLevels {
+    let from = dc.from.0 * fit.quantile(dc.from.1);
+    let to = dc.to.0 * fit.quantile(dc.to.1);
+    let (lo, hi) = (from.min(to), from.max(to));
+    let last = (DURATION_LEVELS - 1) as f64;
+    DurationLevels {
+        from_cfs: lo,
+        to_cfs: hi,
+        levels_cfs: (0..DURATION_LEVELS)
+            .map(|k| (lo.ln() + (hi.ln() - lo.ln()) * k as f64 / last).exp())
+            .collect(),
+    }
+}
+
+/// Warnings about a record's years: incomplete calendar years at its ends,
+/// and frequency fits on fewer than ten years (`entries` are the record's).
+fn fit_warnings(
+    study: &Study,
+    r: &Record,
+    steps: usize,
+    entries: &[ElementRecord],
+    warnings: &mut Vec<RecordWarning>,
+) {
+    let step_s = (r.step_h * 3600.0).round() as i64;
+    let partial = incomplete_years(r.start_s, step_s, steps);
+    if !partial.is_empty() {
+        warnings.push(RecordWarning::Plain(Warning::RecordIncompleteYears {
+            record: r.name.clone(),
+            years: partial
+                .iter()
+                .map(|&(y, k, m)| (y, 100.0 * k as f64 / m.max(1) as f64))
+                .collect(),
+        }));
+    }
+    let complete_years = entries.first().map_or(0, |e| e.annual_peaks_cfs.len());
+    if complete_years < 10 {
+        warnings.push(RecordWarning::Plain(Warning::RecordShortFit {
+            record: r.name.clone(),
+            element: None,
+            years: complete_years,
+        }));
+        return;
+    }
+    for en in entries {
+        let fitted = en.annual_peaks_cfs.len() - en.zero_years.len();
+        if en.lp3.is_some() && fitted < 10 {
+            warnings.push(RecordWarning::Plain(Warning::RecordShortFit {
+                record: r.name.clone(),
+                element: Some(format!(
+                    "{} \"{}\" ({})",
+                    en.kind.label(),
+                    en.element,
+                    study.conditions[en.condition]
+                )),
+                years: fitted,
+            }));
+        }
+    }
+}
+
+/// How a condition's times above the control's levels compare with the
+/// baseline's.
+#[derive(Debug, Clone, Copy, PartialEq)]
+struct LevelComparison {
+    /// Whether every level is within the tolerance.
+    pass: bool,
+    /// The largest relative excess of the condition's count over the
+    /// baseline's (infinite where the baseline's is zero and the
+    /// condition's is not; negative infinity with no levels).
+    worst_relative_excess: f64,
+    /// The level where it occurs.
+    worst_level: usize,
+}
+
+/// Compares the intervals above each level of a condition with the
+/// baseline's: a level fails when the condition's count exceeds the
+/// baseline's times (1 + `tolerance`), or is above zero where the
+/// baseline's is zero.
+fn compare_levels(
+    baseline_counts: &[usize],
+    condition_counts: &[usize],
+    tolerance: f64,
+) -> LevelComparison {
+    let mut worst = (f64::NEG_INFINITY, 0usize);
+    let mut pass = true;
+    for (k, (&base, &cond)) in baseline_counts.iter().zip(condition_counts).enumerate() {
+        let (excess, bad) = if base == 0 {
+            (if cond > 0 { f64::INFINITY } else { 0.0 }, cond > 0)
+        } else {
+            (
+                (cond as f64 - base as f64) / base as f64,
+                cond as f64 > base as f64 * (1.0 + tolerance) + 1e-9,
+            )
+        };
+        if bad {
+            pass = false;
+        }
+        if excess > worst.0 {
+            worst = (excess, k);
+        }
+    }
+    LevelComparison {
+        pass,
+        worst_relative_excess: worst.0,
+        worst_level: worst.1,
+    }
+}
+
+/// The flow-duration controls of one record's points: each condition
+/// against the baseline, or "not checked" for each when the baseline is
+/// empty.
+fn duration_comparisons(
+    run: &RecordRun<'_>,
+    durations: &DurationCounts,
+    out: &mut Vec<DurationComparison>,
+) {
+    let study = run.study;
+    let area = |pi: usize, c: usize| crate::engine::analysis::area_to_point_ac(study, pi, c);
+    for (pi, pt) in study.points.iter().enumerate() {
+        let Some(dc) = &pt.durations else { continue };
+        if let Some(levels) = &durations.levels[pi] {
+            let baseline_counts = &durations.exceedance_counts[study.baseline][pi];
+            for c in (0..study.conditions.len()).filter(|&c| c != study.baseline) {
+                let condition_counts = &durations.exceedance_counts[c][pi];
+                let cmp = compare_levels(baseline_counts, condition_counts, dc.tolerance);
+                let hours =
+                    |n: Option<&usize>| n.map(|&n| n as f64 * run.step_h).unwrap_or(0.0);
+                let baseline_time_h = hours(baseline_counts.get(cmp.worst_level));
+                out.push(DurationComparison {
+                    point: pi,
+                    record: run.record.name.clone(),
+                    condition: c,
+                    area_ac: area(pi, c),
+                    baseline_area_ac: Some(area(pi, study.baseline)),
+                    check: Some(DurationCheck {
+                        from_cfs: levels.from_cfs,
+                        to_cfs: levels.to_cfs,
+                        levels: levels.levels_cfs.len(),
+                        tolerance: dc.tolerance,
+                        worst_flow_cfs: levels
+                            .levels_cfs
+                            .get(cmp.worst_level)
+                            .copied()
+                            .unwrap_or(0.0),
+                        baseline_time_h,
+                        time_h: hours(condition_counts.get(cmp.worst_level)),
+                        allowed_time_h: baseline_time_h * (1.0 + dc.tolerance),
+                        worst_relative_excess: cmp
+                            .worst_relative_excess
+                            .is_finite()
+                            .then_some(cmp.worst_relative_excess),
+                        pass: cmp.pass,
+                    }),
+                });
+            }
+        } else if study.baseline_empty {
+            for c in study.simulated_conditions() {
+                out.push(DurationComparison {
+                    point: pi,
+                    record: run.record.name.clone(),
+                    condition: c,
+                    area_ac: area(pi, c),
+                    baseline_area_ac: None,
+                    check: None,
+                    });
+            }
+        }
+    }
 }
 
 #[cfg(test)]
