@@ -96,13 +96,22 @@ fn write_record_plots(
             message: e.to_string(),
         };
         let duration = format!("{base}-duration.png");
-        stage.write(&duration, &plot::flow_duration_png(&p.data.duration).map_err(err)?)?;
+        stage.write(
+            &duration,
+            &plot::flow_duration_png(&p.data.duration).map_err(err)?,
+        )?;
         out.push((format!("{}: flow duration", p.caption), duration));
         let frequency = format!("{base}-frequency.png");
-        stage.write(&frequency, &plot::frequency_png(&p.data.frequency).map_err(err)?)?;
+        stage.write(
+            &frequency,
+            &plot::frequency_png(&p.data.frequency).map_err(err)?,
+        )?;
         out.push((format!("{}: annual peaks", p.caption), frequency));
         let overview = format!("{base}-overview.png");
-        stage.write(&overview, &plot::overview_png(&p.data.overview).map_err(err)?)?;
+        stage.write(
+            &overview,
+            &plot::overview_png(&p.data.overview).map_err(err)?,
+        )?;
         out.push((format!("{}: daily maxima", p.caption), overview));
     }
     Ok(out)

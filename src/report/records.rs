@@ -4,8 +4,8 @@
 //! typed [`RecordsResult`] (internal units).
 
 use crate::engine::records::{
-    DurationComparison, ElementRecord, EXCEEDANCES, OvertoppingCheck, RecordWarning,
-    RecordsResult, plot_exceedances,
+    DurationComparison, EXCEEDANCES, ElementRecord, OvertoppingCheck, RecordWarning, RecordsResult,
+    plot_exceedances,
 };
 use crate::methods::stats;
 use crate::model::{DurationControl, Study};
@@ -296,7 +296,10 @@ pub fn pond_check(study: &Study, c: &OvertoppingCheck) -> PondCheckOut {
 
 /// Every overtopping check of the records, in output units.
 pub fn pond_checks(study: &Study, res: &RecordsResult) -> Vec<PondCheckOut> {
-    res.overtopping.iter().map(|c| pond_check(study, c)).collect()
+    res.overtopping
+        .iter()
+        .map(|c| pond_check(study, c))
+        .collect()
 }
 
 /// A records warning with its quantities in output units.
@@ -525,4 +528,180 @@ pub fn markdown(study: &Study, entries: &[RecordOut], comparisons: &[ComparisonO
         }
     }
     m
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::engine::records::{
+        DurationCheck, ElementRecord, FrequencyFlow, PondRecord, SubjectKind, YearMax,
+    };
+    use crate::util::units::UnitSystem;
+
+    fn study(units: UnitSystem) -> Study {
+        let path =
+            std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data/record-check.toml");
+        let mut study = crate::input::scenario::load(&path)
+            .unwrap_or_else(|e| panic!("record-check.toml loads: {e}"));
+        study.units = units;
+        study
+    }
+
+    /// A pond's typed entry: one hour steps from 2001-01-01, round numbers.
+    fn pond_entry() -> ElementRecord {
+        ElementRecord {
+            record: "twenty years".into(),
+            condition: 0,
+            element: "basin".into(),
+            kind: SubjectKind::Pond,
+            start_s: 978_307_200,
+            step_s: 3600,
+            steps: 48,
+            rain_in: 2.0,
+            runoff_in: 0.5,
+            volume_ft3: 1000.0,
+            peak_cfs: 10.0,
+            peak_index: 5,
+            annual_peaks_cfs: vec![YearMax {
+                year: 2001,
+                value: 10.0,
+            }],
+            incomplete_years: vec![2002],
+            zero_years: Vec::new(),
+            frequency: vec![FrequencyFlow {
+                return_period_yr: 2.0,
+                flow_cfs: 4.0,
+            }],
+            lp3: Some(stats::Lp3Fit {
+                mean_log10: 0.5,
+                std_log10: 0.2,
+                skew: -0.1,
+                n: 1,
+            }),
+            flow_duration_cfs: vec![9.0, 8.0, 7.0, 6.0, 5.0, 4.0, 3.0, 2.0, 1.0],
+            events: None,
+            pond: Some(PondRecord {
+                stage_duration_ft: vec![3.0; EXCEEDANCES.len()],
+                annual_max_stage_ft: vec![YearMax {
+                    year: 2001,
+                    value: 4.0,
+                }],
+                mass_balance_error: 1e-4,
+            }),
+        }
+    }
+
+    #[test]
+    fn a_us_entry_keeps_internal_units_and_states_times_as_timestamps() {
+        let s = study(UnitSystem::Us);
+        let e = entry(&s, &pond_entry());
+        assert_eq!(e.kind, "pond");
+        assert_eq!(e.condition, s.conditions[0]);
+        assert_eq!(e.start, "2001-01-01T00:00:00");
+        assert_eq!(e.end, "2001-01-03T00:00:00");
+        assert_eq!(e.peak_time, "2001-01-01T05:00:00");
+        assert_eq!((e.rain_depth, e.runoff_depth), (2.0, 0.5));
+        assert_eq!((e.volume, e.peak_flow), (1000.0, 10.0));
+        assert_eq!(e.annual_peaks[0].peak_flow, 10.0);
+        assert_eq!(e.frequency[0].flow, 4.0);
+        assert_eq!(e.flow_duration.len(), EXCEEDANCES.len());
+        assert_eq!(e.flow_duration[0].exceedance, EXCEEDANCES[0]);
+        assert_eq!(e.flow_duration[8].flow, 1.0);
+        assert_eq!(e.lp3, Some([0.5, 0.2, -0.1]));
+        assert_eq!(
+            e.annual_max_stage.as_ref().map(|a| a[0].peak_stage),
+            Some(4.0)
+        );
+        assert_eq!(e.mass_balance_error, Some(1e-4));
+        assert!(e.events.is_none());
+    }
+
+    #[test]
+    fn an_si_entry_is_in_cubic_metres_millimetres_and_metres() {
+        // 1 ft = 0.3048 m and 1 in = 25.4 mm exactly (international yard
+        // and pound agreement, 1959), from memory.
+        let s = study(UnitSystem::Si);
+        let e = entry(&s, &pond_entry());
+        let m3_per_ft3 = 0.3048f64.powi(3);
+        let close = |a: f64, b: f64| (a - b).abs() <= 1e-12 * b.abs().max(1.0);
+        assert!(close(e.rain_depth, 50.8));
+        assert!(close(e.runoff_depth, 12.7));
+        assert!(close(e.volume, 1000.0 * m3_per_ft3));
+        assert!(close(e.peak_flow, 10.0 * m3_per_ft3));
+        assert!(close(e.annual_peaks[0].peak_flow, 10.0 * m3_per_ft3));
+        assert!(close(e.frequency[0].flow, 4.0 * m3_per_ft3));
+        assert!(close(e.flow_duration[0].flow, 9.0 * m3_per_ft3));
+        let stage = e.stage_duration.as_ref().map(|d| d[0].stage);
+        assert!(close(stage.unwrap_or(f64::NAN), 3.0 * 0.3048));
+        // the fit stays in log10 of cfs: it is not a flow
+        assert_eq!(e.lp3, Some([0.5, 0.2, -0.1]));
+    }
+
+    #[test]
+    fn a_water_left_warning_states_its_volume_in_output_units() {
+        let s = study(UnitSystem::Si);
+        let w = warning(
+            &s,
+            &RecordWarning::WaterLeft {
+                record: "r".into(),
+                condition: "c".into(),
+                element: "pond \"basin\"".into(),
+                left_ft3: 1000.0,
+                percent: 2.0,
+                what: "is still stored in it",
+            },
+        );
+        match w {
+            Warning::RecordWaterLeft { left, .. } => assert_eq!(left, "28.3 m3"),
+            other => panic!("{other:?}"),
+        }
+    }
+
+    #[test]
+    fn the_markdown_section_has_the_expected_columns_and_rows() {
+        let s = study(UnitSystem::Us);
+        let entries = vec![entry(&s, &pond_entry())];
+        let comparisons = vec![comparison(
+            &s,
+            &DurationComparison {
+                point: 0,
+                record: "twenty years".into(),
+                condition: 1,
+                area_ac: 10.0,
+                baseline_area_ac: Some(10.0),
+                check: Some(DurationCheck {
+                    from_cfs: 1.0,
+                    to_cfs: 5.0,
+                    levels: 100,
+                    tolerance: 0.1,
+                    worst_flow_cfs: 2.0,
+                    baseline_time_h: 10.0,
+                    time_h: 10.5,
+                    allowed_time_h: 11.0,
+                    worst_relative_excess: Some(0.05),
+                    pass: true,
+                }),
+            },
+        )];
+        assert_eq!(comparisons[0].status, "meets");
+        let md = markdown(&s, &entries, &comparisons);
+        assert!(md.starts_with("## Long records\n"));
+        assert!(md.contains("### Record \"twenty years\""));
+        assert!(md.contains(
+            "| condition | element | kind | rain [in] | runoff [in] | peak [cfs] | when | Q2 | Q10 | Q100 | 1 % time | 0.1 % time |"
+        ));
+        let row = md
+            .lines()
+            .find(|l| l.contains("| basin |"))
+            .unwrap_or_else(|| panic!("a row for the pond: {md}"));
+        let cells: Vec<&str> = row.trim_matches('|').split('|').map(str::trim).collect();
+        assert_eq!(cells.len(), 12, "{row}");
+        assert_eq!(&cells[2..4], ["pond", "2.0000"]);
+        assert_eq!(cells[6], "2001-01-01T05:00:00");
+        // Q2 from the frequency table; Q10 and Q100 not fitted here
+        assert_eq!(&cells[7..10], ["4.000", "-", "-"]);
+        // 1 % and 0.1 % of the time: the 3rd and 2nd table fractions
+        assert_eq!(&cells[10..12], ["7.000", "8.000"]);
+        assert!(md.contains("reported with the design points"));
+    }
 }

@@ -24,297 +24,15 @@ use crate::model::{
 use crate::util::calendar;
 use crate::warning::Warning;
 
+mod result;
+pub use result::*;
+
 /// Return periods of the frequency table, years.
 pub const RETURN_PERIODS: [f64; 7] = [1.5, 2.0, 5.0, 10.0, 25.0, 50.0, 100.0];
 /// Exceedance fractions of the flow-duration table.
 pub const EXCEEDANCES: [f64; 9] = [0.0001, 0.001, 0.01, 0.05, 0.1, 0.2, 0.3, 0.5, 0.9];
 /// Number of flow levels of a duration control (evenly spaced in log).
 pub const DURATION_LEVELS: usize = 100;
-
-/// What a record entry is about.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum SubjectKind {
-    /// A catchment.
-    Catchment,
-    /// An inflow hydrograph (adds nothing over a record).
-    Inflow,
-    /// A pond (its outflow).
-    Pond,
-    /// A design point.
-    Point,
-}
-
-impl SubjectKind {
-    /// The word the reports use.
-    pub fn label(self) -> &'static str {
-        match self {
-            SubjectKind::Catchment => "catchment",
-            SubjectKind::Inflow => "inflow",
-            SubjectKind::Pond => "pond",
-            SubjectKind::Point => "point",
-        }
-    }
-}
-
-/// One calendar year's maximum of a record series.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct YearMax {
-    /// Calendar year.
-    pub year: i32,
-    /// The year's maximum (the unit is in the field holding it).
-    pub value: f64,
-}
-
-/// A flow of the fitted frequency distribution.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct FrequencyFlow {
-    /// Return period, years.
-    pub return_period_yr: f64,
-    /// Flow, cfs.
-    pub flow_cfs: f64,
-}
-
-/// What a pond adds to its record entry.
-#[derive(Debug, Clone, PartialEq)]
-pub struct PondRecord {
-    /// Stage (ft) equalled or exceeded at each of [`EXCEEDANCES`].
-    pub stage_duration_ft: Vec<f64>,
-    /// Annual maximum stage, ft.
-    pub annual_max_stage_ft: Vec<YearMax>,
-    /// Mass-balance error of the routing (fraction of the inflow volume).
-    pub mass_balance_error: f64,
-}
-
-/// One element or point over one record and condition, internal units.
-#[derive(Debug, Clone, PartialEq)]
-pub struct ElementRecord {
-    /// Record name.
-    pub record: String,
-    /// Condition index.
-    pub condition: usize,
-    /// Element or point name.
-    pub element: String,
-    /// What it is.
-    pub kind: SubjectKind,
-    /// Start of the first interval, seconds since 1970-01-01 (UTC).
-    pub start_s: i64,
-    /// Length of one interval, s.
-    pub step_s: i64,
-    /// Intervals from the start to the end of the record.
-    pub steps: usize,
-    /// Rain over the record, in.
-    pub rain_in: f64,
-    /// Runoff depth over the contributing area, in.
-    pub runoff_in: f64,
-    /// Runoff or outflow volume, ft3.
-    pub volume_ft3: f64,
-    /// Peak flow, cfs.
-    pub peak_cfs: f64,
-    /// Index of the peak in the series (0 = the record's start).
-    pub peak_index: usize,
-    /// Annual maximum flows (complete years), cfs.
-    pub annual_peaks_cfs: Vec<YearMax>,
-    /// Years left out for less than 90 % coverage.
-    pub incomplete_years: Vec<i32>,
-    /// Years with zero peak, left out of the fit.
-    pub zero_years: Vec<i32>,
-    /// LP3 frequency flows at [`RETURN_PERIODS`] (empty without a fit).
-    pub frequency: Vec<FrequencyFlow>,
-    /// LP3 fit of log10 annual peaks in cfs.
-    pub lp3: Option<stats::Lp3Fit>,
-    /// Flow (cfs) equalled or exceeded at each of [`EXCEEDANCES`].
-    pub flow_duration_cfs: Vec<f64>,
-    /// Number of rain events (catchments, event mode).
-    pub events: Option<usize>,
-    /// Stage statistics and mass balance (ponds).
-    pub pond: Option<PondRecord>,
-}
-
-/// A point's series over one record and condition, reduced for its plots.
-#[derive(Debug, Clone, PartialEq)]
-pub struct PointSeries {
-    /// Record name.
-    pub record: String,
-    /// Condition index.
-    pub condition: usize,
-    /// Point index.
-    pub point: usize,
-    /// Flow (cfs) equalled or exceeded at each of [`plot_exceedances`].
-    pub duration_curve_cfs: Vec<f64>,
-    /// Daily maximum flows, cfs, from the record's start.
-    pub daily_max_cfs: Vec<f64>,
-}
-
-/// The result of a flow-duration control that could be checked.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct DurationCheck {
-    /// Lowest flow of the rule's range, cfs.
-    pub from_cfs: f64,
-    /// Highest flow of the rule's range, cfs.
-    pub to_cfs: f64,
-    /// Number of flow levels compared.
-    pub levels: usize,
-    /// Relative tolerance on the baseline's time.
-    pub tolerance: f64,
-    /// The level where the condition's time most exceeds the baseline's, cfs.
-    pub worst_flow_cfs: f64,
-    /// The baseline's time above that level, h.
-    pub baseline_time_h: f64,
-    /// The condition's time above that level, h.
-    pub time_h: f64,
-    /// The time allowed above it, h.
-    pub allowed_time_h: f64,
-    /// The condition's time over the baseline's, less one, at that level
-    /// (`None` when the baseline never reaches it and the condition does).
-    pub worst_relative_excess: Option<f64>,
-    /// Whether the condition's times stay within the rule at every level.
-    pub pass: bool,
-}
-
-/// A flow-duration control of a point over a record for one condition.
-#[derive(Debug, Clone, PartialEq)]
-pub struct DurationComparison {
-    /// Point index.
-    pub point: usize,
-    /// Record name.
-    pub record: String,
-    /// Condition index.
-    pub condition: usize,
-    /// Area draining to the point in the condition, ac.
-    pub area_ac: f64,
-    /// Area draining to the point in the baseline, ac (`None` without one).
-    pub baseline_area_ac: Option<f64>,
-    /// The check (`None`: not checked, the baseline is empty).
-    pub check: Option<DurationCheck>,
-}
-
-/// Whether a pond with a top overtopped over a record.
-#[derive(Debug, Clone, PartialEq)]
-pub struct OvertoppingCheck {
-    /// Pond name.
-    pub pond: String,
-    /// Record name.
-    pub record: String,
-    /// Condition name.
-    pub condition: String,
-    /// Highest stage, ft.
-    pub peak_stage_ft: f64,
-    /// Top of the pond, ft.
-    pub top_ft: f64,
-    /// Whether the stage stayed at or below the top.
-    pub pass: bool,
-}
-
-/// A warning of the long records, with its quantities in internal units
-/// (`report::records` turns each into a [`Warning`]).
-#[derive(Debug, Clone, PartialEq)]
-pub enum RecordWarning {
-    /// A warning without quantities to convert.
-    Plain(Warning),
-    /// A pond rose above its top.
-    Overtopped {
-        /// Pond.
-        pond: String,
-        /// Record.
-        record: String,
-        /// Condition.
-        condition: String,
-        /// When the highest stage came, seconds since 1970-01-01 (UTC).
-        when_s: i64,
-        /// Highest stage, ft.
-        stage_ft: f64,
-        /// Top, ft.
-        top_ft: f64,
-    },
-    /// Water still in a pond, or not yet at a point, when the record ends.
-    WaterLeft {
-        /// Record.
-        record: String,
-        /// Condition.
-        condition: String,
-        /// `pond "NAME"` or `point "NAME"`.
-        element: String,
-        /// The volume, ft3.
-        left_ft3: f64,
-        /// The volume as a percentage of what entered.
-        percent: f64,
-        /// Where the water is.
-        what: &'static str,
-    },
-    /// Part of an element's outflow lagged past the end of the record.
-    LagPastEnd {
-        /// Record.
-        record: String,
-        /// Condition.
-        condition: String,
-        /// Element.
-        element: String,
-        /// The lag, h.
-        lag_h: f64,
-        /// The volume lost, ft3.
-        lost_ft3: f64,
-    },
-}
-
-/// What the records produced, in internal units.
-#[derive(Debug, Clone, Default)]
-pub struct RecordsResult {
-    /// One entry per record, condition and element or point, the
-    /// conditions in the study's order within each record.
-    pub elements: Vec<ElementRecord>,
-    /// Each point's reduced series per record and simulated condition.
-    pub points: Vec<PointSeries>,
-    /// Flow-duration controls.
-    pub comparisons: Vec<DurationComparison>,
-    /// Overtopping checks of ponds over each record (one per pond and
-    /// condition that has a top); a failure counts in the exit code.
-    pub overtopping: Vec<OvertoppingCheck>,
-    /// What the records could not see or resolve (overtopping, water left
-    /// at the end, runoff lagged past the end, incomplete years, short fits,
-    /// mass balance).
-    pub warnings: Vec<RecordWarning>,
-    /// Seconds spent per stage and intervals simulated.
-    pub timings: Timings,
-}
-
-/// Seconds spent in each stage of the long records, for benchmarks.
-#[derive(Debug, Clone, Copy, Default)]
-pub struct Timings {
-    /// Rain at the step.
-    pub rain_s: f64,
-    /// Excess rainfall (moisture accounting) and its unit-hydrograph
-    /// convolution, computed together one rainy interval at a time (the
-    /// benchmarks time each alone).
-    pub runoff_s: f64,
-    /// Pond routing.
-    pub routing_s: f64,
-    /// Statistics (annual series, frequency, durations).
-    pub statistics_s: f64,
-    /// Intervals simulated (summed over records).
-    pub intervals: usize,
-}
-
-/// Where the records report their progress: the command layer shows it,
-/// tests and benchmarks pass [`Silent`].
-pub trait Progress {
-    /// A record starts: `steps` intervals, `elements` element simulations
-    /// (conditions times elements) to come.
-    fn start(&self, record: &str, steps: usize, elements: u64);
-    /// One element of one condition is done.
-    fn advance(&self);
-    /// The record is done.
-    fn finish(&self);
-}
-
-/// Progress that goes nowhere.
-#[derive(Debug, Clone, Copy, Default)]
-pub struct Silent;
-
-impl Progress for Silent {
-    fn start(&self, _record: &str, _steps: usize, _elements: u64) {}
-    fn advance(&self) {}
-    fn finish(&self) {}
-}
 
 /// Exceedance fractions of the plotted flow-duration curves (log-spaced).
 pub fn plot_exceedances() -> Vec<f64> {
@@ -773,7 +491,13 @@ fn run_record(
     // Entries in the order of the conditions, as for design storms.
     res.elements[first_entry..].sort_by_key(|e| e.condition);
     progress.finish();
-    fit_warnings(study, r, steps, &res.elements[first_entry..], &mut res.warnings);
+    fit_warnings(
+        study,
+        r,
+        steps,
+        &res.elements[first_entry..],
+        &mut res.warnings,
+    );
     duration_comparisons(&run, &durations, &mut res.comparisons);
     let inner_s = res.timings.routing_s + res.timings.runoff_s - inner_before_s;
     res.timings.statistics_s +=
@@ -1370,8 +1094,7 @@ fn duration_comparisons(
             for c in (0..study.conditions.len()).filter(|&c| c != study.baseline) {
                 let condition_counts = &durations.exceedance_counts[c][pi];
                 let cmp = compare_levels(baseline_counts, condition_counts, dc.tolerance);
-                let hours =
-                    |n: Option<&usize>| n.map(|&n| n as f64 * run.step_h).unwrap_or(0.0);
+                let hours = |n: Option<&usize>| n.map(|&n| n as f64 * run.step_h).unwrap_or(0.0);
                 let baseline_time_h = hours(baseline_counts.get(cmp.worst_level));
                 out.push(DurationComparison {
                     point: pi,
@@ -1409,7 +1132,7 @@ fn duration_comparisons(
                     area_ac: area(pi, c),
                     baseline_area_ac: None,
                     check: None,
-                    });
+                });
             }
         }
     }
@@ -1459,6 +1182,60 @@ mod tests {
                 "lag {lag_h}: {got} vs {}",
                 lost_sum * step_h * 3600.0
             );
+        }
+    }
+
+    #[test]
+    fn a_level_fails_above_the_baseline_count_times_one_plus_the_tolerance() {
+        // contract (scenario-format.md, Long records, durations): at each
+        // level the condition's time may exceed the baseline's by the
+        // tolerance; where the baseline never reaches a level, any time fails.
+        let baseline = [100, 50, 10, 0];
+        let within = compare_levels(&baseline, &[110, 55, 11, 0], 0.1);
+        assert!(within.pass);
+        assert_eq!(within.worst_level, 0);
+        assert!((within.worst_relative_excess - 0.1).abs() < 1e-12);
+        let over = compare_levels(&baseline, &[100, 56, 10, 0], 0.1);
+        assert!(!over.pass);
+        assert_eq!(over.worst_level, 1);
+        assert!((over.worst_relative_excess - 0.12).abs() < 1e-12);
+        let new_level = compare_levels(&baseline, &[90, 40, 5, 1], 0.1);
+        assert!(!new_level.pass);
+        assert_eq!(new_level.worst_level, 3);
+        assert!(new_level.worst_relative_excess.is_infinite());
+        // fewer intervals everywhere: passes, the worst excess is negative
+        let below = compare_levels(&baseline, &[50, 25, 5, 0], 0.0);
+        assert!(below.pass);
+        assert_eq!(below.worst_level, 3);
+        assert_eq!(below.worst_relative_excess, 0.0);
+    }
+
+    #[test]
+    fn duration_levels_span_the_rule_evenly_in_log() {
+        // common practice, no published source: levels evenly spaced in log
+        // between the two flows of the rule, in either order.
+        let fit = stats::Lp3Fit {
+            mean_log10: 1.0,
+            std_log10: 0.0,
+            skew: 0.0,
+            n: 20,
+        };
+        let q = fit.quantile(2.0);
+        assert!((q - 10.0).abs() < 1e-9, "{q}");
+        let dc = DurationControl {
+            from: (0.5, 2.0),
+            to: (0.1, 2.0),
+            tolerance: 0.1,
+            text: "from 50% Q2 to 10% Q2".into(),
+        };
+        let d = duration_levels(&dc, &fit);
+        assert!((d.from_cfs - 1.0).abs() < 1e-9 && (d.to_cfs - 5.0).abs() < 1e-9);
+        assert_eq!(d.levels_cfs.len(), DURATION_LEVELS);
+        assert!((d.levels_cfs[0] - 1.0).abs() < 1e-9);
+        assert!((d.levels_cfs[DURATION_LEVELS - 1] - 5.0).abs() < 1e-9);
+        let ratio = d.levels_cfs[1] / d.levels_cfs[0];
+        for w in d.levels_cfs.windows(2) {
+            assert!((w[1] / w[0] - ratio).abs() < 1e-9);
         }
     }
 }
