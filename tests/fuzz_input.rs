@@ -436,7 +436,7 @@ fn load_and_run(path: &Path) -> bool {
             assert_eq!(e.exit_code(), 2);
         }
     }
-    let _ = runnel::engine::records::run(&study, false);
+    let _ = runnel::engine::records::run(&study, &runnel::engine::records::Silent);
     true
 }
 

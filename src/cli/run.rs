@@ -39,6 +39,84 @@ pub fn now_utc() -> String {
     crate::util::calendar::now_utc()
 }
 
+/// Records shorter than this many intervals run without a progress bar.
+const PROGRESS_MIN_STEPS: usize = 2_000_000;
+
+/// The long records' progress on the terminal: one bar per long record,
+/// counting the elements simulated over its conditions.
+struct RecordProgress {
+    enabled: bool,
+    bar: std::cell::RefCell<Option<indicatif::ProgressBar>>,
+}
+
+impl RecordProgress {
+    fn new(enabled: bool) -> Self {
+        Self {
+            enabled,
+            bar: std::cell::RefCell::new(None),
+        }
+    }
+}
+
+impl crate::engine::records::Progress for RecordProgress {
+    fn start(&self, record: &str, steps: usize, elements: u64) {
+        let bar = (self.enabled && steps > PROGRESS_MIN_STEPS).then(|| {
+            let b = indicatif::ProgressBar::new(elements);
+            b.set_message(format!("record {record}"));
+            b
+        });
+        *self.bar.borrow_mut() = bar;
+    }
+    fn advance(&self) {
+        if let Some(b) = self.bar.borrow().as_ref() {
+            b.inc(1);
+        }
+    }
+    fn finish(&self) {
+        if let Some(b) = self.bar.borrow_mut().take() {
+            b.finish_and_clear();
+        }
+    }
+}
+
+/// Writes the long records' plots (PNG) into the staging folder and returns
+/// (caption, file) pairs.
+///
+/// # Errors
+/// When a plot cannot be drawn or written.
+fn write_record_plots(
+    plots: &[report::records::RecordPlots],
+    stage: &Staging,
+) -> Result<Vec<(String, String)>, Error> {
+    let mut out = Vec::new();
+    for p in plots {
+        let base = output::record_plot_base(&p.record, &p.point);
+        let err = |e: plot::PlotError| Error::Write {
+            path: stage.temp_dir().to_path_buf(),
+            message: e.to_string(),
+        };
+        let duration = format!("{base}-duration.png");
+        stage.write(
+            &duration,
+            &plot::flow_duration_png(&p.data.duration).map_err(err)?,
+        )?;
+        out.push((format!("{}: flow duration", p.caption), duration));
+        let frequency = format!("{base}-frequency.png");
+        stage.write(
+            &frequency,
+            &plot::frequency_png(&p.data.frequency).map_err(err)?,
+        )?;
+        out.push((format!("{}: annual peaks", p.caption), frequency));
+        let overview = format!("{base}-overview.png");
+        stage.write(
+            &overview,
+            &plot::overview_png(&p.data.overview).map_err(err)?,
+        )?;
+        out.push((format!("{}: daily maxima", p.caption), overview));
+    }
+    Ok(out)
+}
+
 /// Runs a scenario and writes its results.
 ///
 /// # Errors
@@ -61,22 +139,26 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let sized = crate::engine::sizing::solve(&mut study)?;
     let a = analysis::analyse(&study)?;
     let t1 = std::time::Instant::now();
-    let rec = crate::engine::records::run(&study, progress)?;
+    let bar = RecordProgress::new(progress);
+    let rec = crate::engine::records::run(&study, &bar)?;
     let t_records = t1.elapsed().as_secs_f64();
     let t2 = std::time::Instant::now();
     let run_date = now_utc();
+    let record_entries = report::records::entries(&study, &rec);
+    let record_comparisons = report::records::comparisons(&study, &rec);
     let mut s = summary::build(
         &study,
         &a,
         sized.outputs.clone(),
-        rec.json.clone(),
-        rec.comparisons.clone(),
+        report::records::json(&record_entries),
+        record_comparisons.clone(),
         run_date,
     );
     // What the long records found: overtopping counts like a storm's.
-    s.all_pass &= rec.pond_checks.iter().all(|c| c.pass);
-    s.pond_checks.extend(rec.pond_checks.iter().cloned());
-    for w in &rec.warnings {
+    let record_pond_checks = report::records::pond_checks(&study, &rec);
+    s.all_pass &= record_pond_checks.iter().all(|c| c.pass);
+    s.pond_checks.extend(record_pond_checks);
+    for w in &report::records::warnings(&study, &rec) {
         s.warning_details.push(summary::WarningOut {
             code: w.code(),
             message: w.to_string(),
@@ -86,7 +168,8 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let stage = Staging::new(&out_dir, &inputs)?;
     let plots = write_plots(&study, &a, &stage)?;
     let mut all_plots = plots;
-    all_plots.extend(crate::engine::records::write_plots(&study, &rec, &stage)?);
+    let record_plots = report::records::plots(&study, &rec, &record_entries);
+    all_plots.extend(write_record_plots(&record_plots, &stage)?);
     for st in &a.storms {
         let name = output::storm_csv_name(&study.storms[st.storm].name);
         stage.write(&name, report::csv::storm_csv(&study, st).as_bytes())?;
@@ -96,7 +179,8 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         message: e.to_string(),
     })?;
     stage.write("summary.json", json.as_bytes())?;
-    let md = report::markdown::render(&study, &s, &all_plots, &rec.markdown);
+    let record_md = report::records::markdown(&study, &record_entries, &record_comparisons);
+    let md = report::markdown::render(&study, &s, &all_plots, &record_md);
     stage.write("summary.md", md.as_bytes())?;
     if !study.sizing.is_empty() {
         // Paths in the sized copy are written relative to the results

@@ -4,4 +4,5 @@
 pub mod csv;
 pub mod markdown;
 pub mod plot;
+pub mod records;
 pub mod summary;
