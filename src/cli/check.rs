@@ -124,7 +124,7 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
             "\n{} -> {} (storage: {})",
             summary::kind_and_name("Pond", &e.name),
             summary::target_name(&study, e.to),
-            p.storage_kind
+            p.storage_kind.describe()
         );
         for (i, d) in p.outlets.iter().enumerate() {
             let label = crate::engine::sizing::outlet_label(

@@ -794,7 +794,7 @@ pub fn run(study: &Study, progress: bool) -> Result<RecordsResult, Error> {
                                 pond: e.name.clone(),
                                 storm: r.name.clone(),
                                 condition: cname.clone(),
-                                check: "overtopping",
+                                check: crate::engine::analysis::PondCheckKind::Overtopping,
                                 value: Some(o.length(top_stage.0)),
                                 limit: o.length(top),
                                 pass: !over,

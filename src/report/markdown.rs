@@ -243,7 +243,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     }
     if !s.pond_checks.is_empty() {
         let _ = writeln!(m, "### Pond checks\n");
-        if s.pond_checks.iter().any(|c| c.check == "drain time") {
+        if s.pond_checks.iter().any(|c| c.check.is_time()) {
             let _ = writeln!(m, "{DRAIN_TIME_DEFINITION}\n");
         }
         let _ = writeln!(
@@ -251,14 +251,14 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
             "| pond | storm | condition | check | value | limit | result |\n|---|---|---|---|---:|---:|---|"
         );
         for c in &s.pond_checks {
-            let unit = if c.check == "drain time" { "h" } else { lu };
+            let unit = if c.check.is_time() { "h" } else { lu };
             let _ = writeln!(
                 m,
                 "| {} | {} | {} | {} | {} | {} | {} |",
                 c.pond,
                 c.storm,
                 c.condition,
-                c.check,
+                c.check.word(),
                 c.value
                     .map(|v| format!("{} {unit}", f(v, 2)))
                     .unwrap_or_else(|| "never drained".into()),
@@ -405,7 +405,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
             e.storm,
             e.condition,
             e.element,
-            e.kind,
+            e.kind.word(),
             opt(e.rain_depth, 2),
             opt(e.runoff_depth, 3),
             sig(e.peak_flow, 4),
@@ -428,7 +428,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
         let _ = writeln!(
             m,
             "Storage from {}; outlets in parallel with a free outfall (no tailwater); routed by storage-indication (modified Puls) on a {} {lu} stage grid.{} {DRAIN_TIME_DEFINITION}\n",
-            p.storage_kind,
+            p.storage_kind.describe(),
             f(o.length(p.grid_step_ft), 3),
             match p.top_ft {
                 Some(t) => format!(
@@ -484,7 +484,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
         for ev in s
             .events
             .iter()
-            .filter(|ev| ev.kind == "pond" && ev.element == cell(&e.name))
+            .filter(|ev| ev.kind == crate::model::Kind::Pond && ev.element == cell(&e.name))
         {
             let _ = writeln!(
                 m,

@@ -2,11 +2,28 @@
 //! `summary.json` is this structure, and the Markdown report and plots read
 //! it too.
 
-use crate::engine::analysis::Analysis;
+use crate::engine::analysis::{Analysis, PondCheck, PondCheckKind, PondLimitCheck};
+use crate::engine::catchment_timing::catchment_timing;
 use crate::engine::network;
-use crate::model::{ElementKind, Study};
+use crate::methods::timing::Segment;
+use crate::model::{ElementKind, Kind, Study};
 use crate::util::units::{Quantity, UnitSystem};
 use serde::Serialize;
+
+/// A kind is written as its word ("catchment", "pond", "inflow", "point").
+impl Serialize for Kind {
+    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        serializer.serialize_str(self.word())
+    }
+}
+
+/// A pond check is written as its word ("overtopping", "freeboard",
+/// "drain time").
+impl Serialize for PondCheckKind {
+    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        serializer.serialize_str(self.word())
+    }
+}
 
 /// Units of the numbers in the summary.
 #[derive(Debug, Clone, Serialize)]
@@ -119,7 +136,7 @@ pub struct EventOut {
     /// Element or point.
     pub element: String,
     /// catchment | pond | inflow | point.
-    pub kind: &'static str,
+    pub kind: Kind,
     /// Rain depth (catchments).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub rain_depth: Option<f64>,
@@ -239,7 +256,7 @@ pub struct PondCheckOut {
     /// Condition.
     pub condition: String,
     /// freeboard | drain time | overtopping.
-    pub check: &'static str,
+    pub check: PondCheckKind,
     /// Value found (stage units or h; null when never drained).
     pub value: Option<f64>,
     /// Limit.
@@ -433,10 +450,7 @@ pub fn build(
             .filter(|(_, m)| **m)
             .map(|(n, _)| n.clone())
             .collect();
-        let p2 = study.p2_in.unwrap_or(1.0);
-        let lag = crate::methods::timing::lag_h(c.tc_h);
-        let tp = crate::methods::unit_hydrograph::time_to_peak_h(step_h, lag);
-        let uh = network::catchment_uh(c, step_h);
+        let timing = catchment_timing(c, study.p2_in, step_h);
         catchments.push(CatchmentOut {
             name: e.name.clone(),
             condition: conds.join(", "),
@@ -446,10 +460,10 @@ pub fn build(
             lambda: c.lambda.ratio(),
             cn_used: crate::methods::runoff::cn_from_retention_in(c.retention_in),
             retention: o.depth(c.retention_in),
-            tc_h: c.tc_h,
-            lag_h: lag,
-            tp_h: tp,
-            uh_peak_per_depth: o.flow(network::peak(&uh).0) / o.depth(1.0),
+            tc_h: timing.tc_h,
+            lag_h: timing.lag_h,
+            tp_h: timing.tp_h,
+            uh_peak_per_depth: o.flow(timing.uh_peak_cfs_per_in) / o.depth(1.0),
             prf: c.prf,
             covers: c
                 .covers
@@ -463,14 +477,11 @@ pub fn build(
             flow_path: c
                 .segments
                 .iter()
-                .map(|s| {
-                    let t = s.travel(p2);
+                .zip(&timing.segments)
+                .map(|(s, t)| {
                     let (n, surface) = match s {
-                        crate::methods::timing::Segment::Sheet { n, .. }
-                        | crate::methods::timing::Segment::Channel { n, .. } => (Some(*n), None),
-                        crate::methods::timing::Segment::Shallow { surface, .. } => {
-                            (None, Some(surface.clone()))
-                        }
+                        Segment::Sheet { n, .. } | Segment::Channel { n, .. } => (Some(*n), None),
+                        Segment::Shallow { surface, .. } => (None, Some(surface.clone())),
                     };
                     SegmentOut {
                         kind: s.kind(),
@@ -500,7 +511,7 @@ pub fn build(
                     storm: sname.clone(),
                     condition: cname.clone(),
                     element: e.name.clone(),
-                    kind: e.kind_word(),
+                    kind: Kind::of(&e.kind),
                     rain_depth: None,
                     runoff_depth: None,
                     peak_inflow: None,
@@ -537,7 +548,7 @@ pub fn build(
                     storm: sname.clone(),
                     condition: cname.clone(),
                     element: study.points[pi].name.clone(),
-                    kind: "point",
+                    kind: Kind::Point,
                     rain_depth: None,
                     runoff_depth: None,
                     peak_inflow: None,
@@ -590,19 +601,7 @@ pub fn build(
     let pond_checks = a
         .pond_checks
         .iter()
-        .map(|c| {
-            let is_time = c.what == "drain time";
-            let conv = |v: f64| if is_time { v } else { o.length(v) };
-            PondCheckOut {
-                pond: study.elements[c.element].name.clone(),
-                storm: study.storms[c.storm].name.clone(),
-                condition: study.conditions[c.condition].clone(),
-                check: c.what,
-                value: c.value.is_finite().then(|| conv(c.value)),
-                limit: conv(c.limit),
-                pass: c.pass,
-            }
-        })
+        .map(|c| pond_check_out(study, c))
         .collect();
 
     let graphical_checks = a
@@ -676,6 +675,33 @@ pub fn build(
         },
         all_pass,
         caution: CAUTION,
+    }
+}
+
+/// A pond check in output units: stages in the scenario's length unit,
+/// times in hours; a value that is not finite (a pond never drained) is
+/// null.
+fn pond_check_out(study: &Study, c: &PondCheck) -> PondCheckOut {
+    let o = Out(study.units);
+    let (value, limit) = match c.check {
+        PondLimitCheck::Overtopping {
+            peak_stage_ft,
+            top_ft,
+        } => (Some(o.length(peak_stage_ft)), o.length(top_ft)),
+        PondLimitCheck::Freeboard {
+            freeboard_ft,
+            min_freeboard_ft,
+        } => (Some(o.length(freeboard_ft)), o.length(min_freeboard_ft)),
+        PondLimitCheck::DrainTime { hours, max_hours } => (hours, max_hours),
+    };
+    PondCheckOut {
+        pond: study.elements[c.element].name.clone(),
+        storm: study.storms[c.storm].name.clone(),
+        condition: study.conditions[c.condition].clone(),
+        check: c.check.kind(),
+        value: value.filter(|v| v.is_finite()),
+        limit,
+        pass: c.pass,
     }
 }
 

@@ -2,4 +2,5 @@
 
 pub mod calendar;
 pub mod interp;
+pub mod tolerances;
 pub mod units;
