@@ -7,8 +7,8 @@ use crate::methods::graphical_peak::{self, StormType};
 use crate::methods::rainfall::NrcsType;
 use crate::methods::runoff;
 use crate::model::{ElementKind, Limit, Pond, Study, Target};
-use crate::warning::Warning;
 use crate::util::tolerances;
+use crate::warning::Warning;
 use rayon::prelude::*;
 
 /// One limit check at a point.
@@ -413,7 +413,11 @@ pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
     for g in &graphical {
         let (h, gp) = (g.hydrograph_peak_cfs, g.graphical_peak_cfs);
         let lambda_std = matches!(&study.elements[g.element].kind, ElementKind::Catchment(c) if c.lambda == runoff::Lambda::Standard);
-        if lambda_std && h > 0.0 && gp > 0.0 && ((h - gp).abs() / gp) > tolerances::GRAPHICAL_PEAK_TOLERANCE {
+        if lambda_std
+            && h > 0.0
+            && gp > 0.0
+            && ((h - gp).abs() / gp) > tolerances::GRAPHICAL_PEAK_TOLERANCE
+        {
             let f = crate::util::units::Quantity::Flow.output_factor(study.units);
             let u = crate::util::units::Quantity::Flow.output_unit(study.units);
             warnings.push(Warning::GraphicalPeakDiffers {

@@ -5,3 +5,4 @@ pub mod csv;
 pub mod markdown;
 pub mod plot;
 pub mod summary;
+pub mod table;

@@ -438,164 +438,9 @@ pub fn build(
 ) -> Summary {
     let o = Out(study.units);
     let step_h = study.step_h;
-    let mut catchments = Vec::new();
-    for e in &study.elements {
-        let ElementKind::Catchment(c) = &e.kind else {
-            continue;
-        };
-        let conds: Vec<String> = study
-            .conditions
-            .iter()
-            .zip(&e.conditions)
-            .filter(|(_, m)| **m)
-            .map(|(n, _)| n.clone())
-            .collect();
-        let timing = catchment_timing(c, study.p2_in, step_h);
-        catchments.push(CatchmentOut {
-            name: e.name.clone(),
-            condition: conds.join(", "),
-            conditions: conds,
-            area: o.area(c.area_ac),
-            cn: c.cn,
-            lambda: c.lambda.ratio(),
-            cn_used: crate::methods::runoff::cn_from_retention_in(c.retention_in),
-            retention: o.depth(c.retention_in),
-            tc_h: timing.tc_h,
-            lag_h: timing.lag_h,
-            tp_h: timing.tp_h,
-            uh_peak_per_depth: o.flow(timing.uh_peak_cfs_per_in) / o.depth(1.0),
-            prf: c.prf,
-            covers: c
-                .covers
-                .iter()
-                .map(|r| CoverOut {
-                    cover: r.label.clone(),
-                    cn: r.cn,
-                    area: o.area(r.area_ac),
-                })
-                .collect(),
-            flow_path: c
-                .segments
-                .iter()
-                .zip(&timing.segments)
-                .map(|(s, t)| {
-                    let (n, surface) = match s {
-                        Segment::Sheet { n, .. } | Segment::Channel { n, .. } => (Some(*n), None),
-                        Segment::Shallow { surface, .. } => (None, Some(surface.clone())),
-                    };
-                    SegmentOut {
-                        kind: s.kind(),
-                        length: o.length(s.length_ft()),
-                        slope: s.slope(),
-                        n,
-                        surface,
-                        velocity: o.length(t.velocity_fps),
-                        time_h: t.time_h,
-                    }
-                })
-                .collect(),
-            to: target_name(study, e.to),
-        });
-    }
-
-    let mut events = Vec::new();
-    for s in &a.storms {
-        let sname = &study.storms[s.storm].name;
-        for c in &s.conditions {
-            let cname = &study.conditions[c.condition];
-            for (i, er) in c.elements.iter().enumerate() {
-                let Some(er) = er else { continue };
-                let e = &study.elements[i];
-                let (pk, pi) = network::peak(&er.outflow_cfs);
-                let mut ev = EventOut {
-                    storm: sname.clone(),
-                    condition: cname.clone(),
-                    element: e.name.clone(),
-                    kind: Kind::of(&e.kind),
-                    rain_depth: None,
-                    runoff_depth: None,
-                    peak_inflow: None,
-                    peak_flow: o.flow(pk),
-                    peak_time_h: pi as f64 * step_h,
-                    peak_stage: None,
-                    peak_storage: None,
-                    volume: o.volume(network::volume_ft3(&er.outflow_cfs, step_h)),
-                    freeboard: None,
-                    overtopped: None,
-                    mass_balance_error: None,
-                    drain_time_h: None,
-                };
-                if let Some(r) = &er.runoff {
-                    ev.rain_depth = Some(o.depth(r.rain_in));
-                    ev.runoff_depth = Some(o.depth(r.runoff_in));
-                }
-                if let Some(p) = &er.pond {
-                    let sm = &p.summary;
-                    ev.peak_inflow = Some(o.flow(sm.peak_inflow_cfs));
-                    ev.peak_stage = Some(o.length(sm.peak_stage_ft));
-                    ev.peak_storage = Some(o.volume(sm.peak_storage_ft3));
-                    ev.volume = o.volume(sm.outflow_volume_ft3);
-                    ev.freeboard = sm.freeboard_ft.map(|f| o.length(f));
-                    ev.overtopped = Some(sm.overtopped);
-                    ev.mass_balance_error = Some(sm.mass_balance_error);
-                    ev.drain_time_h = Some(sm.drain_time_h);
-                }
-                events.push(ev);
-            }
-            for (pi, q) in c.points.iter().enumerate() {
-                let (pk, k) = network::peak(q);
-                events.push(EventOut {
-                    storm: sname.clone(),
-                    condition: cname.clone(),
-                    element: study.points[pi].name.clone(),
-                    kind: Kind::Point,
-                    rain_depth: None,
-                    runoff_depth: None,
-                    peak_inflow: None,
-                    peak_flow: o.flow(pk),
-                    peak_time_h: k as f64 * step_h,
-                    peak_stage: None,
-                    peak_storage: None,
-                    volume: o.volume(network::volume_ft3(q, step_h)),
-                    freeboard: None,
-                    overtopped: None,
-                    mass_balance_error: None,
-                    drain_time_h: None,
-                });
-            }
-        }
-    }
-
-    let mut comparisons: Vec<ComparisonOut> = a
-        .comparisons
-        .iter()
-        .map(|c| ComparisonOut {
-            point: study.points[c.point].name.clone(),
-            storm: Some(study.storms[c.storm].name.clone()),
-            record: None,
-            baseline: study.conditions[study.baseline].clone(),
-            condition: study.conditions[c.condition].clone(),
-            check: "peak",
-            status: match (c.checked, c.pass) {
-                (false, _) => NOT_CHECKED_NO_BASELINE,
-                (true, true) => "meets",
-                (true, false) => "exceeds",
-            },
-            baseline_peak: (c.checked && !study.baseline_empty)
-                .then(|| o.flow(c.baseline_peak_cfs)),
-            peak: Some(o.flow(c.peak_cfs)),
-            limit: c.checked.then(|| o.flow(c.limit_cfs)),
-            limit_text: study.points[c.point]
-                .limit_text
-                .get(c.storm)
-                .cloned()
-                .unwrap_or_default(),
-            pass: c.checked.then_some(c.pass),
-            area: o.area(c.area_ac),
-            baseline_area: c.baseline_area_ac.map(|x| o.area(x)),
-            duration: None,
-        })
-        .collect();
+    let catchments = catchments_out(study);
+    let events = events_out(study, a);
+    let mut comparisons = peak_comparisons_out(study, a);
     comparisons.extend(extra_comparisons);
 
     let pond_checks = a
@@ -676,6 +521,182 @@ pub fn build(
         all_pass,
         caution: CAUTION,
     }
+}
+
+/// Each catchment's derived parameters in output units.
+fn catchments_out(study: &Study) -> Vec<CatchmentOut> {
+    let o = Out(study.units);
+    let step_h = study.step_h;
+    let mut catchments = Vec::new();
+    for e in &study.elements {
+        let ElementKind::Catchment(c) = &e.kind else {
+            continue;
+        };
+        let conds: Vec<String> = study
+            .conditions
+            .iter()
+            .zip(&e.conditions)
+            .filter(|(_, m)| **m)
+            .map(|(n, _)| n.clone())
+            .collect();
+        let timing = catchment_timing(c, study.p2_in, step_h);
+        catchments.push(CatchmentOut {
+            name: e.name.clone(),
+            condition: conds.join(", "),
+            conditions: conds,
+            area: o.area(c.area_ac),
+            cn: c.cn,
+            lambda: c.lambda.ratio(),
+            cn_used: crate::methods::runoff::cn_from_retention_in(c.retention_in),
+            retention: o.depth(c.retention_in),
+            tc_h: timing.tc_h,
+            lag_h: timing.lag_h,
+            tp_h: timing.tp_h,
+            uh_peak_per_depth: o.flow(timing.uh_peak_cfs_per_in) / o.depth(1.0),
+            prf: c.prf,
+            covers: c
+                .covers
+                .iter()
+                .map(|r| CoverOut {
+                    cover: r.label.clone(),
+                    cn: r.cn,
+                    area: o.area(r.area_ac),
+                })
+                .collect(),
+            flow_path: c
+                .segments
+                .iter()
+                .zip(&timing.segments)
+                .map(|(s, t)| {
+                    let (n, surface) = match s {
+                        Segment::Sheet { n, .. } | Segment::Channel { n, .. } => (Some(*n), None),
+                        Segment::Shallow { surface, .. } => (None, Some(surface.clone())),
+                    };
+                    SegmentOut {
+                        kind: s.kind(),
+                        length: o.length(s.length_ft()),
+                        slope: s.slope(),
+                        n,
+                        surface,
+                        velocity: o.length(t.velocity_fps),
+                        time_h: t.time_h,
+                    }
+                })
+                .collect(),
+            to: target_name(study, e.to),
+        });
+    }
+
+    catchments
+}
+
+/// Every element and point in every storm and condition, in output units.
+fn events_out(study: &Study, a: &Analysis) -> Vec<EventOut> {
+    let o = Out(study.units);
+    let step_h = study.step_h;
+    let mut events = Vec::new();
+    for s in &a.storms {
+        let sname = &study.storms[s.storm].name;
+        for c in &s.conditions {
+            let cname = &study.conditions[c.condition];
+            for (i, er) in c.elements.iter().enumerate() {
+                let Some(er) = er else { continue };
+                let e = &study.elements[i];
+                let (pk, pi) = network::peak(&er.outflow_cfs);
+                let mut ev = EventOut {
+                    storm: sname.clone(),
+                    condition: cname.clone(),
+                    element: e.name.clone(),
+                    kind: Kind::of(&e.kind),
+                    rain_depth: None,
+                    runoff_depth: None,
+                    peak_inflow: None,
+                    peak_flow: o.flow(pk),
+                    peak_time_h: pi as f64 * step_h,
+                    peak_stage: None,
+                    peak_storage: None,
+                    volume: o.volume(network::volume_ft3(&er.outflow_cfs, step_h)),
+                    freeboard: None,
+                    overtopped: None,
+                    mass_balance_error: None,
+                    drain_time_h: None,
+                };
+                if let Some(r) = &er.runoff {
+                    ev.rain_depth = Some(o.depth(r.rain_in));
+                    ev.runoff_depth = Some(o.depth(r.runoff_in));
+                }
+                if let Some(p) = &er.pond {
+                    let sm = &p.summary;
+                    ev.peak_inflow = Some(o.flow(sm.peak_inflow_cfs));
+                    ev.peak_stage = Some(o.length(sm.peak_stage_ft));
+                    ev.peak_storage = Some(o.volume(sm.peak_storage_ft3));
+                    ev.volume = o.volume(sm.outflow_volume_ft3);
+                    ev.freeboard = sm.freeboard_ft.map(|f| o.length(f));
+                    ev.overtopped = Some(sm.overtopped);
+                    ev.mass_balance_error = Some(sm.mass_balance_error);
+                    ev.drain_time_h = Some(sm.drain_time_h);
+                }
+                events.push(ev);
+            }
+            for (pi, q) in c.points.iter().enumerate() {
+                let (pk, k) = network::peak(q);
+                events.push(EventOut {
+                    storm: sname.clone(),
+                    condition: cname.clone(),
+                    element: study.points[pi].name.clone(),
+                    kind: Kind::Point,
+                    rain_depth: None,
+                    runoff_depth: None,
+                    peak_inflow: None,
+                    peak_flow: o.flow(pk),
+                    peak_time_h: k as f64 * step_h,
+                    peak_stage: None,
+                    peak_storage: None,
+                    volume: o.volume(network::volume_ft3(q, step_h)),
+                    freeboard: None,
+                    overtopped: None,
+                    mass_balance_error: None,
+                    drain_time_h: None,
+                });
+            }
+        }
+    }
+
+    events
+}
+
+/// The peak checks at the points, in output units.
+fn peak_comparisons_out(study: &Study, a: &Analysis) -> Vec<ComparisonOut> {
+    let o = Out(study.units);
+    a.comparisons
+        .iter()
+        .map(|c| ComparisonOut {
+            point: study.points[c.point].name.clone(),
+            storm: Some(study.storms[c.storm].name.clone()),
+            record: None,
+            baseline: study.conditions[study.baseline].clone(),
+            condition: study.conditions[c.condition].clone(),
+            check: "peak",
+            status: match (c.checked, c.pass) {
+                (false, _) => NOT_CHECKED_NO_BASELINE,
+                (true, true) => "meets",
+                (true, false) => "exceeds",
+            },
+            baseline_peak: (c.checked && !study.baseline_empty)
+                .then(|| o.flow(c.baseline_peak_cfs)),
+            peak: Some(o.flow(c.peak_cfs)),
+            limit: c.checked.then(|| o.flow(c.limit_cfs)),
+            limit_text: study.points[c.point]
+                .limit_text
+                .get(c.storm)
+                .cloned()
+                .unwrap_or_default(),
+            pass: c.checked.then_some(c.pass),
+            area: o.area(c.area_ac),
+            baseline_area: c.baseline_area_ac.map(|x| o.area(x)),
+            duration: None,
+        })
+        .collect()
 }
 
 /// A pond check in output units: stages in the scenario's length unit,

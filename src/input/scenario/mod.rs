@@ -2591,7 +2591,11 @@ impl<'a> Builder<'a> {
                 ],
             )?;
             let s = StageStorage::from_stage_volume(&rows).map_err(|e| self.err(&t.span(), &format!("{ctx}, stage_volume"), e.to_string()).expected("[stage, volume] rows with stages increasing and volumes >= 0, not decreasing"))?;
-            (s, crate::model::StorageKind::StageVolume, rows.last().map(|r| r.0))
+            (
+                s,
+                crate::model::StorageKind::StageVolume,
+                rows.last().map(|r| r.0),
+            )
         } else if let Some(b) = &rp.basin {
             let rb = b.get_ref();
             let bctx = format!("{ctx}, basin");
@@ -2635,11 +2639,7 @@ impl<'a> Builder<'a> {
                 .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
             let s = StageStorage::from_stage_area(&rows)
                 .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
-            (
-                s,
-                crate::model::StorageKind::Basin,
-                Some(bottom + depth),
-            )
+            (s, crate::model::StorageKind::Basin, Some(bottom + depth))
         } else {
             unreachable_storage()?
         };
