@@ -733,3 +733,70 @@ pub fn target_name(study: &Study, t: crate::model::Target) -> String {
         crate::model::Target::Point(i) => study.points[i].name.clone(),
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::StorageKind;
+
+    // common practice, no published source: the words summary.json has
+    // always carried (the results contract), unchanged by the enums
+    #[test]
+    fn kinds_serialize_to_their_words() {
+        let words: Vec<String> = [Kind::Catchment, Kind::Pond, Kind::Inflow, Kind::Point]
+            .iter()
+            .map(|k| serde_json::to_string(k).unwrap_or_default())
+            .collect();
+        assert_eq!(
+            words,
+            ["\"catchment\"", "\"pond\"", "\"inflow\"", "\"point\""]
+        );
+    }
+
+    #[test]
+    fn pond_checks_serialize_to_their_words() {
+        let words: Vec<String> = [
+            PondCheckKind::Overtopping,
+            PondCheckKind::Freeboard,
+            PondCheckKind::DrainTime,
+        ]
+        .iter()
+        .map(|k| serde_json::to_string(k).unwrap_or_default())
+        .collect();
+        assert_eq!(
+            words,
+            ["\"overtopping\"", "\"freeboard\"", "\"drain time\""]
+        );
+        assert!(PondCheckKind::DrainTime.is_time());
+        assert!(!PondCheckKind::Freeboard.is_time());
+    }
+
+    #[test]
+    fn pond_check_values_keep_their_units() {
+        let c = PondLimitCheck::DrainTime {
+            hours: None,
+            max_hours: 72.0,
+        };
+        assert_eq!(c.kind(), PondCheckKind::DrainTime);
+        let c = PondLimitCheck::Freeboard {
+            freeboard_ft: 1.0,
+            min_freeboard_ft: 1.0,
+        };
+        assert_eq!(c.kind().word(), "freeboard");
+        // NIST SP 811 (2008): 1 ft = 0.3048 m exactly (from memory)
+        assert!((Out(UnitSystem::Si).length(1.0) - 0.3048).abs() < 1e-12);
+    }
+
+    #[test]
+    fn storage_kinds_read_as_before() {
+        assert_eq!(
+            StorageKind::StageArea.describe(),
+            "stage-area (conic frustum between rows)"
+        );
+        assert_eq!(StorageKind::StageVolume.describe(), "stage-volume");
+        assert_eq!(
+            StorageKind::Basin.describe(),
+            "basin geometry (stage-area, conic frustum)"
+        );
+    }
+}
