@@ -209,10 +209,41 @@ pub enum ElementKind {
 impl Element {
     /// Kind word for results: catchment, pond, inflow.
     pub fn kind_word(&self) -> &'static str {
-        match self.kind {
-            ElementKind::Catchment(_) => "catchment",
-            ElementKind::Pond(_) => "pond",
-            ElementKind::Inflow(_) => "inflow",
+        Kind::of(&self.kind).word()
+    }
+}
+
+/// What a row of results is about: an element of one of the three kinds,
+/// or a point of comparison.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Kind {
+    /// A catchment.
+    Catchment,
+    /// A pond.
+    Pond,
+    /// An inflow hydrograph.
+    Inflow,
+    /// A point of comparison.
+    Point,
+}
+
+impl Kind {
+    /// The kind of an element.
+    pub fn of(kind: &ElementKind) -> Kind {
+        match kind {
+            ElementKind::Catchment(_) => Kind::Catchment,
+            ElementKind::Pond(_) => Kind::Pond,
+            ElementKind::Inflow(_) => Kind::Inflow,
+        }
+    }
+
+    /// The word written in results: catchment, pond, inflow, point.
+    pub fn word(self) -> &'static str {
+        match self {
+            Kind::Catchment => "catchment",
+            Kind::Pond => "pond",
+            Kind::Inflow => "inflow",
+            Kind::Point => "point",
         }
     }
 }
@@ -258,8 +289,8 @@ pub struct Catchment {
 pub struct Pond {
     /// Stage-storage relation.
     pub storage: StageStorage,
-    /// How the storage was given: "stage-area (conic frustum)", "stage-volume", "basin".
-    pub storage_kind: &'static str,
+    /// How the storage was given.
+    pub storage_kind: StorageKind,
     /// Outlets, in the scenario's order.
     pub outlets: Vec<Outlet>,
     /// Each outlet's optional `name`, in the same order.
@@ -276,6 +307,28 @@ pub struct Pond {
     pub max_drain_time_h: Option<f64>,
     /// Stage grid spacing for the routing table, ft.
     pub grid_step_ft: f64,
+}
+
+/// How a pond's stage-storage relation was given.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum StorageKind {
+    /// `stage_area` rows, conic frustum between them.
+    StageArea,
+    /// `stage_volume` rows.
+    StageVolume,
+    /// `basin` geometry (bottom, length, width, side slopes, depth).
+    Basin,
+}
+
+impl StorageKind {
+    /// How the report describes it.
+    pub fn describe(self) -> &'static str {
+        match self {
+            StorageKind::StageArea => "stage-area (conic frustum between rows)",
+            StorageKind::StageVolume => "stage-volume",
+            StorageKind::Basin => "basin geometry (stage-area, conic frustum)",
+        }
+    }
 }
 
 /// Weir coefficient of an overtopped embankment (broad-crested, US units;

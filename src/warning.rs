@@ -366,6 +366,45 @@ impl Warning {
 impl fmt::Display for Warning {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
+            Warning::SheetFlowLong { .. }
+            | Warning::TcShort { .. }
+            | Warning::StepCoarse { .. }
+            | Warning::CnLow { .. }
+            | Warning::CnHighPervious { .. }
+            | Warning::StormShorterThanTc { .. }
+            | Warning::GraphicalPeakDiffers { .. } => self.fmt_catchment(f),
+            Warning::OutletAboveTop { .. }
+            | Warning::PondNeverFills { .. }
+            | Warning::OrificeNeverSubmerged { .. }
+            | Warning::Overtopped { .. }
+            | Warning::MassBalance { .. } => self.fmt_pond(f),
+            Warning::RecordOvertopped { .. }
+            | Warning::RecordWaterLeft { .. }
+            | Warning::RecordLagPastEnd { .. }
+            | Warning::RecordIncompleteYears { .. }
+            | Warning::RecordShortFit { .. }
+            | Warning::RecordStepCoarse { .. }
+            | Warning::RecordStepCoarserThanGauge { .. } => self.fmt_record(f),
+            Warning::PointNotReached { .. }
+            | Warning::NoBaseline { .. }
+            | Warning::AreaMismatch { .. }
+            | Warning::SizingInfeasible { .. } => self.fmt_network(f),
+            Warning::SlopeSteep { .. }
+            | Warning::ManningNUnusual { .. }
+            | Warning::P2Unusual { .. }
+            | Warning::StormDepthUnusual { .. }
+            | Warning::DiameterBare { .. }
+            | Warning::CoefficientUnusual { .. }
+            | Warning::TcLong { .. }
+            | Warning::Note(_) => self.fmt_input(f),
+        }
+    }
+}
+
+impl Warning {
+    /// Catchments: flow paths, Tc, curve numbers, the step and the TR-55 cross-check.
+    fn fmt_catchment(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
             Warning::SheetFlowLong {
                 catchment,
                 segment,
@@ -409,10 +448,23 @@ impl fmt::Display for Warning {
                 f,
                 "storm \"{storm}\" lasts {duration_h:.2} h, less than the Tc of catchment \"{catchment}\" ({tc_h:.2} h); the whole catchment never contributes at once - the design storm may be too short"
             ),
-            Warning::PointNotReached { point, condition } => write!(
+            Warning::GraphicalPeakDiffers {
+                catchment,
+                storm,
+                hydrograph,
+                graphical,
+            } => write!(
                 f,
-                "point \"{point}\": nothing in condition \"{condition}\" drains to it; its flow there is zero"
+                "catchment \"{catchment}\", {storm}: the hydrograph peak {hydrograph} and the TR-55 graphical-method peak {graphical} differ by more than 25 % - check Tc, CN and the step"
             ),
+            // The other families are written by their own functions.
+            _ => Ok(()),
+        }
+    }
+
+    /// Ponds in design storms: outlets, filling, overtopping, mass balance.
+    fn fmt_pond(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
             Warning::OutletAboveTop { pond, outlet } => write!(
                 f,
                 "pond \"{pond}\", {outlet}: it sits above the top of embankment and can only act once the pond overtops"
@@ -437,15 +489,6 @@ impl fmt::Display for Warning {
                 f,
                 "pond \"{pond}\" overtops in {storm} ({condition}): the water rises over the top of embankment - the embankment is treated as a broad-crested weir; enlarge the pond or the spillway"
             ),
-            Warning::GraphicalPeakDiffers {
-                catchment,
-                storm,
-                hydrograph,
-                graphical,
-            } => write!(
-                f,
-                "catchment \"{catchment}\", {storm}: the hydrograph peak {hydrograph} and the TR-55 graphical-method peak {graphical} differ by more than 25 % - check Tc, CN and the step"
-            ),
             Warning::MassBalance {
                 pond,
                 run,
@@ -456,6 +499,14 @@ impl fmt::Display for Warning {
                 "pond \"{pond}\" ({condition}, {run}): the routing's mass balance is off by {:.2} % of the inflow volume (more than 0.1 %); its outflow and stage are not reliable - use a smaller `step` (the pond is small for its outlets at this step) or check the pond's tables",
                 error * 100.0
             ),
+            // The other families are written by their own functions.
+            _ => Ok(()),
+        }
+    }
+
+    /// Long records.
+    fn fmt_record(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
             Warning::RecordOvertopped {
                 pond,
                 record,
@@ -537,6 +588,18 @@ impl fmt::Display for Warning {
                 step_h * 60.0,
                 interval_h * 60.0
             ),
+            // The other families are written by their own functions.
+            _ => Ok(()),
+        }
+    }
+
+    /// Points, conditions, areas and sizing.
+    fn fmt_network(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Warning::PointNotReached { point, condition } => write!(
+                f,
+                "point \"{point}\": nothing in condition \"{condition}\" drains to it; its flow there is zero"
+            ),
             Warning::NoBaseline {
                 point,
                 what,
@@ -573,6 +636,14 @@ impl fmt::Display for Warning {
                 f,
                 "sizing of pond \"{pond}\", {outlet} {field}: no value from {range} meets every limit: {reason}; the results are written at {written_at} - widen the range, change another outlet or the pond, or review the limit"
             ),
+            // The other families are written by their own functions.
+            _ => Ok(()),
+        }
+    }
+
+    /// Plausibility of input values (legal but almost always a slip), and free notes.
+    fn fmt_input(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
             Warning::SlopeSteep {
                 at,
                 value,
@@ -627,6 +698,8 @@ impl fmt::Display for Warning {
                 "{at}: Tc = {value} is longer than 24 h, far beyond the small-watershed times the TR-55 method is meant for; {hint}"
             ),
             Warning::Note(s) => f.write_str(s),
+            // The other families are written by their own functions.
+            _ => Ok(()),
         }
     }
 }

@@ -8,6 +8,7 @@ use crate::methods::storage_estimate;
 use crate::model::{ElementKind, Study, Target};
 use crate::report::markdown::describe_outlet;
 use crate::report::summary::{self, Out};
+use crate::report::table::{Column, Table};
 use crate::util::units::{Quantity, sig};
 use std::fmt::Write;
 use std::path::Path;
@@ -124,7 +125,7 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
             "\n{} -> {} (storage: {})",
             summary::kind_and_name("Pond", &e.name),
             summary::target_name(&study, e.to),
-            p.storage_kind
+            p.storage_kind.describe()
         );
         for (i, d) in p.outlets.iter().enumerate() {
             let label = crate::engine::sizing::outlet_label(
@@ -133,22 +134,19 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
             );
             let _ = writeln!(t, "  {label}: {}", describe_outlet(d, o));
         }
-        let _ = writeln!(
-            t,
-            "  {:>10} {:>14} {:>12}",
-            format!("stage {lu}"),
-            format!("storage {vu}"),
-            format!("outflow {fu}")
-        );
+        let mut table = Table::new(vec![
+            Column::number(format!("stage {lu}")),
+            Column::number(format!("storage {vu}")),
+            Column::number(format!("outflow {fu}")),
+        ]);
         for (h, v, q) in network::rating_rows(p) {
-            let _ = writeln!(
-                t,
-                "  {:>10.2} {:>14} {:>12}",
-                o.length(h),
+            table.row([
+                format!("{:.2}", o.length(h)),
                 sig(o.volume(v), 6),
-                sig(o.flow(q), 4)
-            );
+                sig(o.flow(q), 4),
+            ]);
         }
+        t.push_str(&table.text("  ", &[10, 14, 12]));
     }
     let est = estimate_text(&study, &a);
     if !est.is_empty() {

@@ -240,7 +240,7 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
             summary::kind_and_name("pond", &c.pond),
             c.storm,
             c.condition,
-            c.check
+            c.check.word()
         ));
     }
     for (z, d) in s.sized.iter().zip(&study.sizing) {

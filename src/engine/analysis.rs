@@ -8,6 +8,7 @@ use crate::methods::graphical_peak::{self, StormType};
 use crate::methods::rainfall::NrcsType;
 use crate::methods::runoff;
 use crate::model::{ElementKind, Limit, Pond, Study};
+use crate::util::tolerances;
 use crate::warning::Warning;
 use rayon::prelude::*;
 
@@ -46,14 +47,74 @@ pub struct PondCheck {
     pub storm: usize,
     /// Condition index.
     pub condition: usize,
-    /// What was checked: "freeboard", "drain time", "overtopping".
-    pub what: &'static str,
-    /// Value found (ft or h; NaN when the pond never drained).
-    pub value: f64,
-    /// Limit (ft or h).
-    pub limit: f64,
+    /// What was checked, with the value found and the limit.
+    pub check: PondLimitCheck,
     /// Whether it holds.
     pub pass: bool,
+}
+
+/// What a pond check compares, each value with its unit.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum PondLimitCheck {
+    /// The peak stage against the top of the embankment.
+    Overtopping {
+        /// Peak stage, ft.
+        peak_stage_ft: f64,
+        /// Top of embankment, ft.
+        top_ft: f64,
+    },
+    /// The least freeboard against the least allowed.
+    Freeboard {
+        /// Freeboard found, ft.
+        freeboard_ft: f64,
+        /// Least freeboard allowed, ft.
+        min_freeboard_ft: f64,
+    },
+    /// The drain time against the longest allowed.
+    DrainTime {
+        /// Drain time, h (None: not drained within the run).
+        hours: Option<f64>,
+        /// Longest drain time allowed, h.
+        max_hours: f64,
+    },
+}
+
+impl PondLimitCheck {
+    /// Which check it is.
+    pub fn kind(&self) -> PondCheckKind {
+        match self {
+            PondLimitCheck::Overtopping { .. } => PondCheckKind::Overtopping,
+            PondLimitCheck::Freeboard { .. } => PondCheckKind::Freeboard,
+            PondLimitCheck::DrainTime { .. } => PondCheckKind::DrainTime,
+        }
+    }
+}
+
+/// The kinds of pond check, as named in results.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum PondCheckKind {
+    /// Peak stage above the top of the embankment.
+    Overtopping,
+    /// Least freeboard.
+    Freeboard,
+    /// Longest drain time.
+    DrainTime,
+}
+
+impl PondCheckKind {
+    /// The word written in results: overtopping, freeboard, drain time.
+    pub fn word(self) -> &'static str {
+        match self {
+            PondCheckKind::Overtopping => "overtopping",
+            PondCheckKind::Freeboard => "freeboard",
+            PondCheckKind::DrainTime => "drain time",
+        }
+    }
+
+    /// Whether its value and limit are times (h) rather than stages.
+    pub fn is_time(self) -> bool {
+        self == PondCheckKind::DrainTime
+    }
 }
 
 /// TR-55 chapter 4 graphical peak beside the hydrograph peak.
@@ -237,7 +298,7 @@ pub fn compare(study: &Study, topology: &Topology, storms: &[StormResult]) -> Ve
                     baseline_peak_cfs: base,
                     peak_cfs: peak,
                     limit_cfs: limit,
-                    pass: peak <= limit * (1.0 + 1e-9) + 1e-12,
+                    pass: tolerances::within_upper_limit(peak, limit),
                     checked: true,
                     area_ac,
                     baseline_area_ac,
@@ -267,36 +328,40 @@ pub fn pond_checks(study: &Study, storms: &[StormResult]) -> Vec<PondCheck> {
                 else {
                     continue;
                 };
-                let base = PondCheck {
+                let check = |check, pass| PondCheck {
                     element: i,
                     storm: s.storm,
                     condition: c.condition,
-                    what: "overtopping",
-                    value: pr.summary.peak_stage_ft,
-                    limit: p.top_ft.unwrap_or(f64::INFINITY),
-                    pass: !pr.summary.overtopped,
+                    check,
+                    pass,
                 };
-                if p.top_ft.is_some() {
-                    out.push(base.clone());
+                if let Some(top_ft) = p.top_ft {
+                    out.push(check(
+                        PondLimitCheck::Overtopping {
+                            peak_stage_ft: pr.summary.peak_stage_ft,
+                            top_ft,
+                        },
+                        !pr.summary.overtopped,
+                    ));
                 }
                 if let (Some(minf), Some(fb)) = (p.min_freeboard_ft, pr.summary.freeboard_ft) {
-                    out.push(PondCheck {
-                        what: "freeboard",
-                        value: fb,
-                        limit: minf,
-                        pass: fb >= minf - 1e-9,
-                        ..base.clone()
-                    });
+                    out.push(check(
+                        PondLimitCheck::Freeboard {
+                            freeboard_ft: fb,
+                            min_freeboard_ft: minf,
+                        },
+                        fb >= minf - tolerances::POND_LIMIT_SLACK,
+                    ));
                 }
                 if let Some(maxd) = p.max_drain_time_h {
-                    let d = pr.summary.drain_time_h.unwrap_or(f64::NAN);
-                    out.push(PondCheck {
-                        what: "drain time",
-                        value: d,
-                        limit: maxd,
-                        pass: d <= maxd + 1e-9,
-                        ..base
-                    });
+                    let d = pr.summary.drain_time_h;
+                    out.push(check(
+                        PondLimitCheck::DrainTime {
+                            hours: d,
+                            max_hours: maxd,
+                        },
+                        d.is_some_and(|d| d <= maxd + tolerances::POND_LIMIT_SLACK),
+                    ));
                 }
             }
         }
@@ -361,8 +426,7 @@ pub fn analyse(study: &Study) -> Result<Analysis, crate::error::Error> {
     Ok(finish_on(study, &topology, storms))
 }
 
-/// Mass-balance errors above this fraction of the inflow volume are warned about.
-pub const MASS_BALANCE_WARN: f64 = 0.001;
+pub use crate::util::tolerances::MASS_BALANCE_WARN;
 
 /// The checks and warnings for a set of storm results.
 pub fn finish(study: &Study, storms: Vec<StormResult>) -> Analysis {
@@ -378,7 +442,11 @@ pub fn finish_on(study: &Study, topology: &Topology, storms: Vec<StormResult>) -
     for g in &graphical {
         let (h, gp) = (g.hydrograph_peak_cfs, g.graphical_peak_cfs);
         let lambda_std = matches!(&study.elements[g.element].kind, ElementKind::Catchment(c) if c.lambda == runoff::Lambda::Standard);
-        if lambda_std && h > 0.0 && gp > 0.0 && ((h - gp).abs() / gp) > 0.25 {
+        if lambda_std
+            && h > 0.0
+            && gp > 0.0
+            && ((h - gp).abs() / gp) > tolerances::GRAPHICAL_PEAK_TOLERANCE
+        {
             let f = crate::util::units::Quantity::Flow.output_factor(study.units);
             let u = crate::util::units::Quantity::Flow.output_unit(study.units);
             warnings.push(Warning::GraphicalPeakDiffers {
@@ -483,10 +551,7 @@ pub fn area_to_element_ac(study: &Study, j: usize, condition: usize) -> f64 {
     crate::engine::topology::area_to_element_ac(&study.elements, j, condition)
 }
 
-/// Relative difference of areas above which a point's areas are flagged:
-/// 5 % (issue 10, the reviewer's first check; common practice, no published
-/// source).
-pub const AREA_BALANCE_TOLERANCE: f64 = 0.05;
+pub use crate::util::tolerances::AREA_BALANCE_TOLERANCE;
 
 /// A warning for every point and condition whose draining area differs from
 /// the baseline's by more than [`AREA_BALANCE_TOLERANCE`].

@@ -5,8 +5,9 @@
 //! sizing and long-record results, the plots and the warnings.
 
 use crate::engine::network;
-use crate::model::{ElementKind, Study};
-use crate::report::summary::{Out, Summary};
+use crate::model::{EMBANKMENT_WEIR_COEFFICIENT, ElementKind, Kind, Pond, Study};
+use crate::report::summary::{CatchmentOut, Out, Summary};
+use crate::report::table::{Column, Table};
 use crate::util::units::{Quantity, sig};
 use std::fmt::Write;
 
@@ -89,15 +90,32 @@ fn escaped(s: &Summary) -> Summary {
     s
 }
 
+/// The scenario's output unit labels, for table headers.
+struct Units {
+    flow: &'static str,
+    length: &'static str,
+    volume: &'static str,
+    depth: &'static str,
+    area: &'static str,
+}
+
+impl Units {
+    fn of(o: Out) -> Units {
+        Units {
+            flow: o.unit(Quantity::Flow),
+            length: o.unit(Quantity::Length),
+            volume: o.unit(Quantity::Volume),
+            depth: o.unit(Quantity::Depth),
+            area: o.unit(Quantity::Area),
+        }
+    }
+}
+
 /// Renders the report. `plots` lists (caption, file name) of the PNGs.
 pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md: &str) -> String {
     let s = &escaped(s);
     let o = Out(study.units);
-    let fu = o.unit(Quantity::Flow);
-    let lu = o.unit(Quantity::Length);
-    let vu = o.unit(Quantity::Volume);
-    let du = o.unit(Quantity::Depth);
-    let au = o.unit(Quantity::Area);
+    let u = Units::of(o);
     let mut m = String::new();
     let title = if s.title.is_empty() {
         "Drainage study"
@@ -106,47 +124,90 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     };
     let _ = writeln!(m, "# {title}\n");
     let _ = writeln!(m, "> **Caution.** {}\n", s.caution);
-    let _ = writeln!(m, "## Provenance\n");
-    let _ = writeln!(m, "| | |\n|---|---|");
-    let _ = writeln!(m, "| program | runnel {} |", s.provenance.version);
-    let _ = writeln!(m, "| run | {} |", s.provenance.run_date);
-    let _ = writeln!(m, "| scenario | `{}` |", s.provenance.scenario);
-    let _ = writeln!(
-        m,
-        "| scenario SHA-256 | `{}` |",
-        s.provenance.scenario_sha256
-    );
-    for i in &s.provenance.inputs {
-        let _ = writeln!(m, "| input read | `{i}` |");
-    }
-    let _ = writeln!(
-        m,
-        "| units | {} ({fu}, {lu}, {vu}, {du}, {au}; times in hours from the storm start) |",
-        s.unit_system
-    );
-    let _ = writeln!(
-        m,
-        "| step | {} min{} |",
-        f(s.step_h * 60.0, 2),
-        if study.step_given {
-            " (given)"
-        } else {
-            " (chosen: largest of 1, 2, 3, 5, 6 min within 0.133 Tc)"
-        }
-    );
-    let _ = writeln!(
-        m,
-        "| baseline | {}{} |",
-        s.baseline,
-        if s.baseline_present {
-            ""
-        } else {
-            " (no element: limits that need it are not checked)"
-        }
-    );
-    let _ = writeln!(m);
-
+    provenance(&mut m, study, s, &u);
     // Verdict first.
+    design_points(&mut m, s, &u);
+    pond_checks(&mut m, s, &u);
+    worksheet(&mut m, s, &u);
+    events(&mut m, s, &u);
+    for e in &study.elements {
+        if let ElementKind::Pond(p) = &e.kind {
+            pond(&mut m, s, &e.name, p, o, &u);
+        }
+    }
+    sizing(&mut m, s);
+    if !record_md.is_empty() {
+        m.push_str(record_md);
+    }
+    if !plots.is_empty() {
+        let _ = writeln!(m, "## Plots\n");
+        for (cap, file) in plots {
+            let _ = writeln!(m, "![{}]({file})\n", cell(cap));
+        }
+    }
+    warnings(&mut m, s);
+    let _ = writeln!(m, "---\n\n*{}*", s.caution);
+    m
+}
+
+/// The provenance table: program, run, inputs, units, step, baseline.
+fn provenance(m: &mut String, study: &Study, s: &Summary, u: &Units) {
+    let _ = writeln!(m, "## Provenance\n");
+    let mut t = Table::new(vec![Column::text(""), Column::text("")]);
+    t.row([
+        "program".to_string(),
+        format!("runnel {}", s.provenance.version),
+    ]);
+    t.row(["run".to_string(), s.provenance.run_date.clone()]);
+    t.row([
+        "scenario".to_string(),
+        format!("`{}`", s.provenance.scenario),
+    ]);
+    t.row([
+        "scenario SHA-256".to_string(),
+        format!("`{}`", s.provenance.scenario_sha256),
+    ]);
+    for i in &s.provenance.inputs {
+        t.row(["input read".to_string(), format!("`{i}`")]);
+    }
+    t.row([
+        "units".to_string(),
+        format!(
+            "{} ({}, {}, {}, {}, {}; times in hours from the storm start)",
+            s.unit_system, u.flow, u.length, u.volume, u.depth, u.area
+        ),
+    ]);
+    t.row([
+        "step".to_string(),
+        format!(
+            "{} min{}",
+            f(s.step_h * 60.0, 2),
+            if study.step_given {
+                " (given)"
+            } else {
+                " (chosen: largest of 1, 2, 3, 5, 6 min within 0.133 Tc)"
+            }
+        ),
+    ]);
+    t.row([
+        "baseline".to_string(),
+        format!(
+            "{}{}",
+            s.baseline,
+            if s.baseline_present {
+                ""
+            } else {
+                " (no element: limits that need it are not checked)"
+            }
+        ),
+    ]);
+    m.push_str(&t.markdown());
+    let _ = writeln!(m);
+}
+
+/// The verdict and the limit checks at the design points: peaks per storm
+/// and flow durations per record.
+fn design_points(m: &mut String, s: &Summary, u: &Units) {
     let _ = writeln!(m, "## Design points\n");
     let peaks: Vec<_> = s.comparisons.iter().filter(|c| c.check == "peak").collect();
     let durations: Vec<_> = s.comparisons.iter().filter(|c| c.check != "peak").collect();
@@ -171,36 +232,42 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
         }
         let _ = writeln!(m, "{verdict}\n");
     }
+    let b = &s.baseline;
+    let sig4 = |v: Option<f64>| v.map(|v| sig(v, 4)).unwrap_or_else(|| "-".into());
     if !peaks.is_empty() {
-        let _ = writeln!(
-            m,
-            "| point | storm | condition | area [{au}] | {b} area [{au}] | peak [{fu}] | limit [{fu}] | limit rule | {b} peak [{fu}] | margin | result |",
-            b = s.baseline
-        );
-        let _ = writeln!(m, "|---|---|---|---:|---:|---:|---:|---|---:|---:|---|");
+        let mut t = Table::new(vec![
+            Column::text("point"),
+            Column::text("storm"),
+            Column::text("condition"),
+            Column::quantity("area", u.area),
+            Column::quantity(&format!("{b} area"), u.area),
+            Column::quantity("peak", u.flow),
+            Column::quantity("limit", u.flow),
+            Column::text("limit rule"),
+            Column::quantity(&format!("{b} peak"), u.flow),
+            Column::number("margin"),
+            Column::text("result"),
+        ]);
         for c in &peaks {
             let margin = match (c.limit, c.peak) {
                 (Some(l), Some(p)) if l > 0.0 => format!("{:+.1} %", (l - p) / l * 100.0),
                 _ => "-".into(),
             };
-            let _ = writeln!(
-                m,
-                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
-                c.point,
+            t.row([
+                c.point.clone(),
                 c.storm.clone().unwrap_or_default(),
-                c.condition,
+                c.condition.clone(),
                 f(c.area, 3),
                 opt(c.baseline_area, 3),
-                c.peak.map(|v| sig(v, 4)).unwrap_or_else(|| "-".into()),
-                c.limit.map(|v| sig(v, 4)).unwrap_or_else(|| "-".into()),
-                c.limit_text,
-                c.baseline_peak
-                    .map(|v| sig(v, 4))
-                    .unwrap_or_else(|| "-".into()),
+                sig4(c.peak),
+                sig4(c.limit),
+                c.limit_text.clone(),
+                sig4(c.baseline_peak),
                 margin,
-                result_word(c)
-            );
+                result_word(c),
+            ]);
         }
+        m.push_str(&t.markdown());
         let _ = writeln!(m);
     }
     if !durations.is_empty() {
@@ -212,68 +279,82 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
                 .find_map(|c| c.duration.as_ref().map(|d| d.levels))
                 .unwrap_or(100)
         );
-        let _ = writeln!(
-            m,
-            "| point | record | condition | area [{au}] | {b} area [{au}] | rule | worst flow [{fu}] | {b} time above [h] | time above [h] | allowed [h] | result |",
-            b = s.baseline
-        );
-        let _ = writeln!(m, "|---|---|---|---:|---:|---|---:|---:|---:|---:|---|");
+        let mut t = Table::new(vec![
+            Column::text("point"),
+            Column::text("record"),
+            Column::text("condition"),
+            Column::quantity("area", u.area),
+            Column::quantity(&format!("{b} area"), u.area),
+            Column::text("rule"),
+            Column::quantity("worst flow", u.flow),
+            Column::quantity(&format!("{b} time above"), "h"),
+            Column::quantity("time above", "h"),
+            Column::quantity("allowed", "h"),
+            Column::text("result"),
+        ]);
         for c in &durations {
             let d = c.duration.as_ref();
-            let _ = writeln!(
-                m,
-                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
-                c.point,
+            t.row([
+                c.point.clone(),
                 c.record.clone().unwrap_or_default(),
-                c.condition,
+                c.condition.clone(),
                 f(c.area, 3),
                 opt(c.baseline_area, 3),
-                c.limit_text,
-                d.map(|d| sig(d.worst_flow, 4))
-                    .unwrap_or_else(|| "-".into()),
-                d.map(|d| sig(d.baseline_time_h, 4))
-                    .unwrap_or_else(|| "-".into()),
-                d.map(|d| sig(d.time_h, 4)).unwrap_or_else(|| "-".into()),
-                d.map(|d| sig(d.allowed_time_h, 4))
-                    .unwrap_or_else(|| "-".into()),
-                result_word(c)
-            );
+                c.limit_text.clone(),
+                sig4(d.map(|d| d.worst_flow)),
+                sig4(d.map(|d| d.baseline_time_h)),
+                sig4(d.map(|d| d.time_h)),
+                sig4(d.map(|d| d.allowed_time_h)),
+                result_word(c),
+            ]);
         }
+        m.push_str(&t.markdown());
         let _ = writeln!(m);
     }
-    if !s.pond_checks.is_empty() {
-        let _ = writeln!(m, "### Pond checks\n");
-        if s.pond_checks.iter().any(|c| c.check == "drain time") {
-            let _ = writeln!(m, "{DRAIN_TIME_DEFINITION}\n");
-        }
-        let _ = writeln!(
-            m,
-            "| pond | storm | condition | check | value | limit | result |\n|---|---|---|---|---:|---:|---|"
-        );
-        for c in &s.pond_checks {
-            let unit = if c.check == "drain time" { "h" } else { lu };
-            let _ = writeln!(
-                m,
-                "| {} | {} | {} | {} | {} | {} | {} |",
-                c.pond,
-                c.storm,
-                c.condition,
-                c.check,
-                c.value
-                    .map(|v| format!("{} {unit}", f(v, 2)))
-                    .unwrap_or_else(|| "never drained".into()),
-                if c.limit.is_finite() {
-                    format!("{} {unit}", f(c.limit, 2))
-                } else {
-                    "-".into()
-                },
-                if c.pass { "meets" } else { "**FAILS**" }
-            );
-        }
-        let _ = writeln!(m);
-    }
+}
 
-    // Worksheet.
+/// The pond checks (freeboard, drain time, overtopping).
+fn pond_checks(m: &mut String, s: &Summary, u: &Units) {
+    if s.pond_checks.is_empty() {
+        return;
+    }
+    let _ = writeln!(m, "### Pond checks\n");
+    if s.pond_checks.iter().any(|c| c.check.is_time()) {
+        let _ = writeln!(m, "{DRAIN_TIME_DEFINITION}\n");
+    }
+    let mut t = Table::new(vec![
+        Column::text("pond"),
+        Column::text("storm"),
+        Column::text("condition"),
+        Column::text("check"),
+        Column::number("value"),
+        Column::number("limit"),
+        Column::text("result"),
+    ]);
+    for c in &s.pond_checks {
+        let unit = if c.check.is_time() { "h" } else { u.length };
+        t.row([
+            c.pond.clone(),
+            c.storm.clone(),
+            c.condition.clone(),
+            c.check.word().to_string(),
+            c.value
+                .map(|v| format!("{} {unit}", f(v, 2)))
+                .unwrap_or_else(|| "never drained".into()),
+            if c.limit.is_finite() {
+                format!("{} {unit}", f(c.limit, 2))
+            } else {
+                "-".into()
+            },
+            (if c.pass { "meets" } else { "**FAILS**" }).to_string(),
+        ]);
+    }
+    m.push_str(&t.markdown());
+    let _ = writeln!(m);
+}
+
+/// The catchment worksheet: covers, flow path, timing, graphical check.
+fn worksheet(m: &mut String, s: &Summary, u: &Units) {
     let _ = writeln!(m, "## Catchment worksheet\n");
     let _ = writeln!(
         m,
@@ -282,36 +363,14 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     for c in &s.catchments {
         let _ = writeln!(
             m,
-            "### {} ({}), {} {au}, to \"{}\"\n",
+            "### {} ({}), {} {}, to \"{}\"\n",
             c.name,
             c.condition,
             f(c.area, 3),
+            u.area,
             c.to
         );
-        if !c.covers.is_empty() {
-            let _ = writeln!(
-                m,
-                "| cover | CN | area [{au}] | CN x area |\n|---|---:|---:|---:|"
-            );
-            for r in &c.covers {
-                let _ = writeln!(
-                    m,
-                    "| {} | {} | {} | {} |",
-                    r.cover,
-                    f(r.cn, 0),
-                    f(r.area, 3),
-                    f(r.cn * r.area, 2)
-                );
-            }
-            let _ = writeln!(
-                m,
-                "| **composite** | **{}** | {} | |\n",
-                f(c.cn, 2),
-                f(c.covers.iter().map(|r| r.area).sum(), 3)
-            );
-        } else {
-            let _ = writeln!(m, "CN {} (given).\n", f(c.cn, 2));
-        }
+        covers(m, c, u);
         if (c.lambda - 0.05).abs() < 1e-9 {
             let _ = writeln!(
                 m,
@@ -319,284 +378,344 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
                 f(c.cn_used, 2)
             );
         }
-        if !c.flow_path.is_empty() {
-            let _ = writeln!(
-                m,
-                "| segment | kind | length [{lu}] | slope [{lu}/{lu}] | n or surface | velocity [{lu}/s] | travel time [h] |\n|---:|---|---:|---:|---|---:|---:|"
-            );
-            for (i, sgm) in c.flow_path.iter().enumerate() {
-                let ns = sgm
-                    .n
-                    .map(|n| f(n, 3))
-                    .or(sgm.surface.clone())
-                    .unwrap_or_default();
-                let _ = writeln!(
-                    m,
-                    "| {} | {} | {} | {} | {} | {} | {} |",
-                    i + 1,
-                    sgm.kind,
-                    f(sgm.length, 1),
-                    f(sgm.slope, 4),
-                    ns,
-                    f(sgm.velocity, 2),
-                    f(sgm.time_h, 3)
-                );
-            }
-            let _ = writeln!(m);
-        }
+        flow_path(m, c, u);
         let _ = writeln!(
             m,
-            "Tc = **{} h**; lag = {} h; Tp = {} h; unit-hydrograph peak {} {fu} per {du} of runoff (PRF {}).\n",
+            "Tc = **{} h**; lag = {} h; Tp = {} h; unit-hydrograph peak {} {} per {} of runoff (PRF {}).\n",
             f(c.tc_h, 3),
             f(c.lag_h, 3),
             f(c.tp_h, 3),
             sig(c.uh_peak_per_depth, 4),
+            u.flow,
+            u.depth,
             f(c.prf, 0)
         );
-        let g: Vec<_> = s
-            .graphical_checks
-            .iter()
-            .filter(|g| g.catchment == c.name)
-            .collect();
-        if !g.is_empty() {
-            let _ = writeln!(
-                m,
-                "Cross-check by the TR-55 chapter 4 graphical method (Table F-1, Fp = 1, Ia = 0.2 S):\n"
-            );
-            let _ = writeln!(
-                m,
-                "| storm | Ia/P | qu [csm/in] | graphical peak [{fu}] | hydrograph peak [{fu}] | difference |\n|---|---:|---:|---:|---:|---:|"
-            );
-            for x in g {
-                let diff = if x.graphical_peak > 0.0 {
-                    format!(
-                        "{:+.0} %",
-                        (x.hydrograph_peak - x.graphical_peak) / x.graphical_peak * 100.0
-                    )
-                } else {
-                    "-".into()
-                };
-                let _ = writeln!(
-                    m,
-                    "| {} | {}{} | {} | {} | {} | {} |",
-                    x.storm,
-                    f(x.ia_over_p, 3),
-                    if x.clamped { " (clamped)" } else { "" },
-                    f(x.unit_peak_csm_per_in, 0),
-                    sig(x.graphical_peak, 4),
-                    sig(x.hydrograph_peak, 4),
-                    diff
-                );
-            }
-            let _ = writeln!(m);
-        }
+        graphical(m, s, &c.name, u);
     }
+}
 
-    // Events.
-    let _ = writeln!(m, "## Events\n");
+/// A catchment's cover table with its composite CN, or the CN as given.
+fn covers(m: &mut String, c: &CatchmentOut, u: &Units) {
+    if c.covers.is_empty() {
+        let _ = writeln!(m, "CN {} (given).\n", f(c.cn, 2));
+        return;
+    }
+    let mut t = Table::new(vec![
+        Column::text("cover"),
+        Column::number("CN"),
+        Column::quantity("area", u.area),
+        Column::number("CN x area"),
+    ]);
+    for r in &c.covers {
+        t.row([
+            r.cover.clone(),
+            f(r.cn, 0),
+            f(r.area, 3),
+            f(r.cn * r.area, 2),
+        ]);
+    }
+    m.push_str(&t.markdown());
     let _ = writeln!(
         m,
-        "| storm | condition | element | kind | rain [{du}] | runoff [{du}] | peak [{fu}] | at [h] | volume [{vu}] |\n|---|---|---|---|---:|---:|---:|---:|---:|"
+        "| **composite** | **{}** | {} | |\n",
+        f(c.cn, 2),
+        f(c.covers.iter().map(|r| r.area).sum(), 3)
     );
+}
+
+/// A catchment's flow-path segments with velocities and travel times.
+fn flow_path(m: &mut String, c: &CatchmentOut, u: &Units) {
+    if c.flow_path.is_empty() {
+        return;
+    }
+    let lu = u.length;
+    let mut t = Table::new(vec![
+        Column::number("segment"),
+        Column::text("kind"),
+        Column::quantity("length", lu),
+        Column::quantity("slope", &format!("{lu}/{lu}")),
+        Column::text("n or surface"),
+        Column::quantity("velocity", &format!("{lu}/s")),
+        Column::quantity("travel time", "h"),
+    ]);
+    for (i, sgm) in c.flow_path.iter().enumerate() {
+        let ns = sgm
+            .n
+            .map(|n| f(n, 3))
+            .or(sgm.surface.clone())
+            .unwrap_or_default();
+        t.row([
+            (i + 1).to_string(),
+            sgm.kind.to_string(),
+            f(sgm.length, 1),
+            f(sgm.slope, 4),
+            ns,
+            f(sgm.velocity, 2),
+            f(sgm.time_h, 3),
+        ]);
+    }
+    m.push_str(&t.markdown());
+    let _ = writeln!(m);
+}
+
+/// The TR-55 chapter 4 cross-check of one catchment, when there is one.
+fn graphical(m: &mut String, s: &Summary, catchment: &str, u: &Units) {
+    let g: Vec<_> = s
+        .graphical_checks
+        .iter()
+        .filter(|g| g.catchment == catchment)
+        .collect();
+    if g.is_empty() {
+        return;
+    }
+    let _ = writeln!(
+        m,
+        "Cross-check by the TR-55 chapter 4 graphical method (Table F-1, Fp = 1, Ia = 0.2 S):\n"
+    );
+    let mut t = Table::new(vec![
+        Column::text("storm"),
+        Column::number("Ia/P"),
+        Column::quantity("qu", "csm/in"),
+        Column::quantity("graphical peak", u.flow),
+        Column::quantity("hydrograph peak", u.flow),
+        Column::number("difference"),
+    ]);
+    for x in g {
+        let diff = if x.graphical_peak > 0.0 {
+            format!(
+                "{:+.0} %",
+                (x.hydrograph_peak - x.graphical_peak) / x.graphical_peak * 100.0
+            )
+        } else {
+            "-".into()
+        };
+        t.row([
+            x.storm.clone(),
+            format!(
+                "{}{}",
+                f(x.ia_over_p, 3),
+                if x.clamped { " (clamped)" } else { "" }
+            ),
+            f(x.unit_peak_csm_per_in, 0),
+            sig(x.graphical_peak, 4),
+            sig(x.hydrograph_peak, 4),
+            diff,
+        ]);
+    }
+    m.push_str(&t.markdown());
+    let _ = writeln!(m);
+}
+
+/// Every element and point in every storm and condition.
+fn events(m: &mut String, s: &Summary, u: &Units) {
+    let _ = writeln!(m, "## Events\n");
+    let mut t = Table::new(vec![
+        Column::text("storm"),
+        Column::text("condition"),
+        Column::text("element"),
+        Column::text("kind"),
+        Column::quantity("rain", u.depth),
+        Column::quantity("runoff", u.depth),
+        Column::quantity("peak", u.flow),
+        Column::quantity("at", "h"),
+        Column::quantity("volume", u.volume),
+    ]);
     for e in &s.events {
-        let _ = writeln!(
-            m,
-            "| {} | {} | {} | {} | {} | {} | {} | {} | {} |",
-            e.storm,
-            e.condition,
-            e.element,
-            e.kind,
+        t.row([
+            e.storm.clone(),
+            e.condition.clone(),
+            e.element.clone(),
+            e.kind.word().to_string(),
             opt(e.rain_depth, 2),
             opt(e.runoff_depth, 3),
             sig(e.peak_flow, 4),
             f(e.peak_time_h, 2),
-            sig(e.volume, 5)
-        );
+            sig(e.volume, 5),
+        ]);
     }
+    m.push_str(&t.markdown());
     let _ = writeln!(m);
+}
 
-    // Ponds.
-    for e in &study.elements {
-        let ElementKind::Pond(p) = &e.kind else {
-            continue;
-        };
-        let _ = writeln!(
-            m,
-            "## {}\n",
-            crate::report::summary::kind_and_name("Pond", &cell(&e.name))
-        );
-        let _ = writeln!(
-            m,
-            "Storage from {}; outlets in parallel with a free outfall (no tailwater); routed by storage-indication (modified Puls) on a {} {lu} stage grid.{} {DRAIN_TIME_DEFINITION}\n",
-            p.storage_kind,
-            f(o.length(p.grid_step_ft), 3),
-            match p.top_ft {
-                Some(t) => format!(
-                    " Top of embankment {} {lu}; above it the embankment overflows as a broad-crested weir (C = {}) {} {lu} long.",
-                    f(o.length(t), 2),
-                    f(
-                        o.weir_coefficient(crate::model::EMBANKMENT_WEIR_COEFFICIENT),
-                        2
-                    ),
-                    f(o.length(p.top_length_ft), 1)
-                ),
-                None => String::new(),
-            }
-        );
-        let named = p.outlet_names.iter().any(Option::is_some);
+/// One pond: how it is modelled, its outlets, its stage-storage-discharge
+/// table (the engine's [`network::rating_rows`]) and its storms.
+fn pond(m: &mut String, s: &Summary, name: &str, p: &Pond, o: Out, u: &Units) {
+    let lu = u.length;
+    let _ = writeln!(
+        m,
+        "## {}\n",
+        crate::report::summary::kind_and_name("Pond", &cell(name))
+    );
+    let _ = writeln!(
+        m,
+        "Storage from {}; outlets in parallel with a free outfall (no tailwater); routed by storage-indication (modified Puls) on a {} {lu} stage grid.{} {DRAIN_TIME_DEFINITION}\n",
+        p.storage_kind.describe(),
+        f(o.length(p.grid_step_ft), 3),
+        match p.top_ft {
+            Some(t) => format!(
+                " Top of embankment {} {lu}; above it the embankment overflows as a broad-crested weir (C = {}) {} {lu} long.",
+                f(o.length(t), 2),
+                f(o.weir_coefficient(EMBANKMENT_WEIR_COEFFICIENT), 2),
+                f(o.length(p.top_length_ft), 1)
+            ),
+            None => String::new(),
+        }
+    );
+    let named = p.outlet_names.iter().any(Option::is_some);
+    let mut t = Table::new(if named {
+        vec![
+            Column::number("outlet"),
+            Column::text("name"),
+            Column::text("device"),
+        ]
+    } else {
+        vec![Column::number("outlet"), Column::text("device")]
+    });
+    for (i, d) in p.outlets.iter().enumerate() {
+        let mut row = vec![(i + 1).to_string()];
         if named {
-            let _ = writeln!(m, "| outlet | name | device |\n|---:|---|---|");
+            row.push(p.outlet_names.get(i).cloned().flatten().unwrap_or_default());
+        }
+        row.push(describe_outlet(d, o));
+        t.row(row);
+    }
+    m.push_str(&t.markdown());
+    let _ = writeln!(m);
+    let mut t = Table::new(vec![
+        Column::quantity("stage", lu),
+        Column::quantity("storage", u.volume),
+        Column::quantity("outflow", u.flow),
+    ]);
+    for (h, v, q) in network::rating_rows(p) {
+        t.row([f(o.length(h), 2), sig(o.volume(v), 5), sig(o.flow(q), 4)]);
+    }
+    m.push_str(&t.markdown());
+    let _ = writeln!(m);
+    let mut t = Table::new(vec![
+        Column::text("storm"),
+        Column::text("condition"),
+        Column::quantity("peak in", u.flow),
+        Column::quantity("peak out", u.flow),
+        Column::quantity("at", "h"),
+        Column::quantity("peak stage", lu),
+        Column::quantity("peak storage", u.volume),
+        Column::quantity("freeboard", lu),
+        Column::quantity("drain time", "h"),
+        Column::number("mass balance"),
+    ]);
+    let escaped_name = cell(name);
+    for ev in s
+        .events
+        .iter()
+        .filter(|ev| ev.kind == Kind::Pond && ev.element == escaped_name)
+    {
+        t.row([
+            ev.storm.clone(),
+            ev.condition.clone(),
+            sig(ev.peak_inflow.unwrap_or(0.0), 4),
+            sig(ev.peak_flow, 4),
+            f(ev.peak_time_h, 2),
+            opt(ev.peak_stage, 2),
+            sig(ev.peak_storage.unwrap_or(0.0), 5),
+            match (ev.freeboard, ev.overtopped) {
+                (_, Some(true)) => "**overtops**".to_string(),
+                (Some(fb), _) => f(fb, 2),
+                _ => "-".into(),
+            },
+            ev.drain_time_h
+                .flatten()
+                .map(|d| f(d, 1))
+                .unwrap_or_else(|| "not within run".into()),
+            ev.mass_balance_error
+                .map(|x| {
+                    // Rounding noise on either side of zero prints as 0.
+                    let pct = x * 100.0;
+                    let pct = if pct.abs() < 0.00005 { 0.0 } else { pct };
+                    format!("{pct:.4} %")
+                })
+                .unwrap_or_default(),
+        ]);
+    }
+    m.push_str(&t.markdown());
+    let _ = writeln!(m);
+}
+
+/// The sized outlet dimensions and why any range is infeasible.
+fn sizing(m: &mut String, s: &Summary) {
+    if s.sized.is_empty() {
+        return;
+    }
+    let _ = writeln!(m, "## Outlet sizing\n");
+    let _ = writeln!(
+        m,
+        "Each range was given the largest opening (for an elevation, the lowest) that keeps every downstream limit and pond limit for every storm, lowest outlet first, sweeping until no value moves by more than 0.1 %.\n"
+    );
+    let mut t = Table::new(vec![
+        Column::text("pond"),
+        Column::text("outlet"),
+        Column::text("field"),
+        Column::text("range"),
+        Column::number("chosen"),
+        Column::text("governing storm"),
+        Column::text("governing check"),
+        Column::number("margin"),
+    ]);
+    for z in &s.sized {
+        let unit = z.unit;
+        let chosen = if z.feasible {
+            format!("{} {unit}", sig(z.value, 4))
         } else {
-            let _ = writeln!(m, "| outlet | device |\n|---:|---|");
-        }
-        for (i, d) in p.outlets.iter().enumerate() {
-            if named {
-                let _ = writeln!(
-                    m,
-                    "| {} | {} | {} |",
-                    i + 1,
-                    p.outlet_names.get(i).cloned().flatten().unwrap_or_default(),
-                    describe_outlet(d, o)
-                );
-            } else {
-                let _ = writeln!(m, "| {} | {} |", i + 1, describe_outlet(d, o));
-            }
-        }
-        let _ = writeln!(m);
-        let _ = writeln!(
-            m,
-            "| stage [{lu}] | storage [{vu}] | outflow [{fu}] |\n|---:|---:|---:|"
-        );
-        for (h, v, q) in network::rating_rows(p) {
-            let _ = writeln!(
-                m,
-                "| {} | {} | {} |",
-                f(o.length(h), 2),
-                sig(o.volume(v), 5),
-                sig(o.flow(q), 4)
-            );
-        }
-        let _ = writeln!(m);
-        let _ = writeln!(
-            m,
-            "| storm | condition | peak in [{fu}] | peak out [{fu}] | at [h] | peak stage [{lu}] | peak storage [{vu}] | freeboard [{lu}] | drain time [h] | mass balance |\n|---|---|---:|---:|---:|---:|---:|---:|---:|---:|"
-        );
-        for ev in s
-            .events
-            .iter()
-            .filter(|ev| ev.kind == "pond" && ev.element == cell(&e.name))
-        {
-            let _ = writeln!(
-                m,
-                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
-                ev.storm,
-                ev.condition,
-                sig(ev.peak_inflow.unwrap_or(0.0), 4),
-                sig(ev.peak_flow, 4),
-                f(ev.peak_time_h, 2),
-                opt(ev.peak_stage, 2),
-                sig(ev.peak_storage.unwrap_or(0.0), 5),
-                match (ev.freeboard, ev.overtopped) {
-                    (_, Some(true)) => "**overtops**".to_string(),
-                    (Some(fb), _) => f(fb, 2),
-                    _ => "-".into(),
-                },
-                ev.drain_time_h
-                    .flatten()
-                    .map(|d| f(d, 1))
-                    .unwrap_or_else(|| "not within run".into()),
-                ev.mass_balance_error
-                    .map(|x| {
-                        // Rounding noise on either side of zero prints as 0.
-                        let pct = x * 100.0;
-                        let pct = if pct.abs() < 0.00005 { 0.0 } else { pct };
-                        format!("{pct:.4} %")
-                    })
-                    .unwrap_or_default()
-            );
-        }
-        let _ = writeln!(m);
+            format!("{} {unit} (**infeasible**)", sig(z.value, 4))
+        };
+        t.row([
+            z.pond.clone(),
+            crate::engine::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
+            z.field.to_string(),
+            format!("{} to {} {unit}", sig(z.min, 4), sig(z.max, 4)),
+            chosen,
+            z.governing_storm.clone().unwrap_or_else(|| "-".into()),
+            z.governing_check.clone().unwrap_or_else(|| "-".into()),
+            z.margin
+                .map(|x| format!("{:.2} %", x * 100.0))
+                .unwrap_or_else(|| "-".into()),
+        ]);
     }
-
-    if !s.sized.is_empty() {
-        let _ = writeln!(m, "## Outlet sizing\n");
+    m.push_str(&t.markdown());
+    for z in s.sized.iter().filter(|z| !z.feasible) {
         let _ = writeln!(
             m,
-            "Each range was given the largest opening (for an elevation, the lowest) that keeps every downstream limit and pond limit for every storm, lowest outlet first, sweeping until no value moves by more than 0.1 %.\n"
-        );
-        let _ = writeln!(
-            m,
-            "| pond | outlet | field | range | chosen | governing storm | governing check | margin |\n|---|---|---|---|---:|---|---|---:|"
-        );
-        for z in &s.sized {
-            let unit = z.unit;
-            let chosen = if z.feasible {
-                format!("{} {unit}", sig(z.value, 4))
-            } else {
-                format!("{} {unit} (**infeasible**)", sig(z.value, 4))
-            };
-            let _ = writeln!(
-                m,
-                "| {} | {} | {} | {} to {} {unit} | {} | {} | {} | {} |",
-                z.pond,
-                crate::engine::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
-                z.field,
-                sig(z.min, 4),
-                sig(z.max, 4),
-                chosen,
-                z.governing_storm.clone().unwrap_or_else(|| "-".into()),
-                z.governing_check.clone().unwrap_or_else(|| "-".into()),
-                z.margin
-                    .map(|x| format!("{:.2} %", x * 100.0))
-                    .unwrap_or_else(|| "-".into())
-            );
-        }
-        for z in s.sized.iter().filter(|z| !z.feasible) {
-            let _ = writeln!(
-                m,
-                "\n**No value of {}, {} {} from {} to {} {} meets every limit:** {}.",
-                crate::report::summary::kind_and_name("pond", &z.pond),
-                crate::engine::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
-                z.field,
-                sig(z.min, 4),
-                sig(z.max, 4),
-                z.unit,
-                z.reason.clone().unwrap_or_default()
-            );
-        }
-        let _ = writeln!(
-            m,
-            "\nThe sized scenario is written beside this report as `sized-scenario.toml`.\n"
+            "\n**No value of {}, {} {} from {} to {} {} meets every limit:** {}.",
+            crate::report::summary::kind_and_name("pond", &z.pond),
+            crate::engine::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
+            z.field,
+            sig(z.min, 4),
+            sig(z.max, 4),
+            z.unit,
+            z.reason.clone().unwrap_or_default()
         );
     }
+    let _ = writeln!(
+        m,
+        "\nThe sized scenario is written beside this report as `sized-scenario.toml`.\n"
+    );
+}
 
-    if !record_md.is_empty() {
-        m.push_str(record_md);
-    }
-
-    if !plots.is_empty() {
-        let _ = writeln!(m, "## Plots\n");
-        for (cap, file) in plots {
-            let _ = writeln!(m, "![{}]({file})\n", cell(cap));
-        }
-    }
-
+/// The warnings, as a list.
+fn warnings(m: &mut String, s: &Summary) {
     let _ = writeln!(m, "## Warnings\n");
     if s.warnings.is_empty() {
         let _ = writeln!(m, "None.\n");
-    } else {
-        for w in &s.warnings {
-            // Warnings quote names: no raw HTML from them.
-            let w = w
-                .replace('&', "&amp;")
-                .replace('<', "&lt;")
-                .replace('>', "&gt;");
-            let _ = writeln!(m, "- {w}");
-        }
-        let _ = writeln!(m);
+        return;
     }
-    let _ = writeln!(m, "---\n\n*{}*", s.caution);
-    m
+    for w in &s.warnings {
+        // Warnings quote names: no raw HTML from them.
+        let w = w
+            .replace('&', "&amp;")
+            .replace('<', "&lt;")
+            .replace('>', "&gt;");
+        let _ = writeln!(m, "- {w}");
+    }
+    let _ = writeln!(m);
 }
 
 /// The result column of a check.

@@ -6,3 +6,4 @@ pub mod markdown;
 pub mod plot;
 pub mod records;
 pub mod summary;
+pub mod table;

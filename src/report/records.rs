@@ -287,7 +287,7 @@ pub fn pond_check(study: &Study, c: &OvertoppingCheck) -> PondCheckOut {
         pond: c.pond.clone(),
         storm: c.record.clone(),
         condition: c.condition.clone(),
-        check: "overtopping",
+        check: crate::engine::analysis::PondCheckKind::Overtopping,
         value: Some(o.length(c.peak_stage_ft)),
         limit: o.length(c.top_ft),
         pass: c.pass,

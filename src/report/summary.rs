@@ -2,11 +2,28 @@
 //! `summary.json` is this structure, and the Markdown report and plots read
 //! it too.
 
-use crate::engine::analysis::Analysis;
+use crate::engine::analysis::{Analysis, PondCheck, PondCheckKind, PondLimitCheck};
+use crate::engine::catchment_timing::catchment_timing;
 use crate::engine::network;
-use crate::model::{ElementKind, Study};
+use crate::methods::timing::Segment;
+use crate::model::{ElementKind, Kind, Study};
 use crate::util::units::{Quantity, UnitSystem};
 use serde::Serialize;
+
+/// A kind is written as its word ("catchment", "pond", "inflow", "point").
+impl Serialize for Kind {
+    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        serializer.serialize_str(self.word())
+    }
+}
+
+/// A pond check is written as its word ("overtopping", "freeboard",
+/// "drain time").
+impl Serialize for PondCheckKind {
+    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        serializer.serialize_str(self.word())
+    }
+}
 
 /// Units of the numbers in the summary.
 #[derive(Debug, Clone, Serialize)]
@@ -119,7 +136,7 @@ pub struct EventOut {
     /// Element or point.
     pub element: String,
     /// catchment | pond | inflow | point.
-    pub kind: &'static str,
+    pub kind: Kind,
     /// Rain depth (catchments).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub rain_depth: Option<f64>,
@@ -239,7 +256,7 @@ pub struct PondCheckOut {
     /// Condition.
     pub condition: String,
     /// freeboard | drain time | overtopping.
-    pub check: &'static str,
+    pub check: PondCheckKind,
     /// Value found (stage units or h; null when never drained).
     pub value: Option<f64>,
     /// Limit.
@@ -421,188 +438,15 @@ pub fn build(
 ) -> Summary {
     let o = Out(study.units);
     let step_h = study.step_h;
-    let mut catchments = Vec::new();
-    for e in &study.elements {
-        let ElementKind::Catchment(c) = &e.kind else {
-            continue;
-        };
-        let conds: Vec<String> = study
-            .conditions
-            .iter()
-            .zip(&e.conditions)
-            .filter(|(_, m)| **m)
-            .map(|(n, _)| n.clone())
-            .collect();
-        let p2 = study.p2_in.unwrap_or(1.0);
-        let lag = crate::methods::timing::lag_h(c.tc_h);
-        let tp = crate::methods::unit_hydrograph::time_to_peak_h(step_h, lag);
-        let uh = network::catchment_uh(c, step_h);
-        catchments.push(CatchmentOut {
-            name: e.name.clone(),
-            condition: conds.join(", "),
-            conditions: conds,
-            area: o.area(c.area_ac),
-            cn: c.cn,
-            lambda: c.lambda.ratio(),
-            cn_used: crate::methods::runoff::cn_from_retention_in(c.retention_in),
-            retention: o.depth(c.retention_in),
-            tc_h: c.tc_h,
-            lag_h: lag,
-            tp_h: tp,
-            uh_peak_per_depth: o.flow(network::peak(&uh).0) / o.depth(1.0),
-            prf: c.prf,
-            covers: c
-                .covers
-                .iter()
-                .map(|r| CoverOut {
-                    cover: r.label.clone(),
-                    cn: r.cn,
-                    area: o.area(r.area_ac),
-                })
-                .collect(),
-            flow_path: c
-                .segments
-                .iter()
-                .map(|s| {
-                    let t = s.travel(p2);
-                    let (n, surface) = match s {
-                        crate::methods::timing::Segment::Sheet { n, .. }
-                        | crate::methods::timing::Segment::Channel { n, .. } => (Some(*n), None),
-                        crate::methods::timing::Segment::Shallow { surface, .. } => {
-                            (None, Some(surface.clone()))
-                        }
-                    };
-                    SegmentOut {
-                        kind: s.kind(),
-                        length: o.length(s.length_ft()),
-                        slope: s.slope(),
-                        n,
-                        surface,
-                        velocity: o.length(t.velocity_fps),
-                        time_h: t.time_h,
-                    }
-                })
-                .collect(),
-            to: target_name(study, e.to),
-        });
-    }
-
-    let mut events = Vec::new();
-    for s in &a.storms {
-        let sname = &study.storms[s.storm].name;
-        for c in &s.conditions {
-            let cname = &study.conditions[c.condition];
-            for (i, er) in c.elements.iter().enumerate() {
-                let Some(er) = er else { continue };
-                let e = &study.elements[i];
-                let (pk, pi) = network::peak(&er.outflow_cfs);
-                let mut ev = EventOut {
-                    storm: sname.clone(),
-                    condition: cname.clone(),
-                    element: e.name.clone(),
-                    kind: e.kind_word(),
-                    rain_depth: None,
-                    runoff_depth: None,
-                    peak_inflow: None,
-                    peak_flow: o.flow(pk),
-                    peak_time_h: pi as f64 * step_h,
-                    peak_stage: None,
-                    peak_storage: None,
-                    volume: o.volume(network::volume_ft3(&er.outflow_cfs, step_h)),
-                    freeboard: None,
-                    overtopped: None,
-                    mass_balance_error: None,
-                    drain_time_h: None,
-                };
-                if let Some(r) = &er.runoff {
-                    ev.rain_depth = Some(o.depth(r.rain_in));
-                    ev.runoff_depth = Some(o.depth(r.runoff_in));
-                }
-                if let Some(p) = &er.pond {
-                    let sm = &p.summary;
-                    ev.peak_inflow = Some(o.flow(sm.peak_inflow_cfs));
-                    ev.peak_stage = Some(o.length(sm.peak_stage_ft));
-                    ev.peak_storage = Some(o.volume(sm.peak_storage_ft3));
-                    ev.volume = o.volume(sm.outflow_volume_ft3);
-                    ev.freeboard = sm.freeboard_ft.map(|f| o.length(f));
-                    ev.overtopped = Some(sm.overtopped);
-                    ev.mass_balance_error = Some(sm.mass_balance_error);
-                    ev.drain_time_h = Some(sm.drain_time_h);
-                }
-                events.push(ev);
-            }
-            for (pi, q) in c.points.iter().enumerate() {
-                let (pk, k) = network::peak(q);
-                events.push(EventOut {
-                    storm: sname.clone(),
-                    condition: cname.clone(),
-                    element: study.points[pi].name.clone(),
-                    kind: "point",
-                    rain_depth: None,
-                    runoff_depth: None,
-                    peak_inflow: None,
-                    peak_flow: o.flow(pk),
-                    peak_time_h: k as f64 * step_h,
-                    peak_stage: None,
-                    peak_storage: None,
-                    volume: o.volume(network::volume_ft3(q, step_h)),
-                    freeboard: None,
-                    overtopped: None,
-                    mass_balance_error: None,
-                    drain_time_h: None,
-                });
-            }
-        }
-    }
-
-    let mut comparisons: Vec<ComparisonOut> = a
-        .comparisons
-        .iter()
-        .map(|c| ComparisonOut {
-            point: study.points[c.point].name.clone(),
-            storm: Some(study.storms[c.storm].name.clone()),
-            record: None,
-            baseline: study.conditions[study.baseline].clone(),
-            condition: study.conditions[c.condition].clone(),
-            check: "peak",
-            status: match (c.checked, c.pass) {
-                (false, _) => NOT_CHECKED_NO_BASELINE,
-                (true, true) => "meets",
-                (true, false) => "exceeds",
-            },
-            baseline_peak: (c.checked && !study.baseline_empty)
-                .then(|| o.flow(c.baseline_peak_cfs)),
-            peak: Some(o.flow(c.peak_cfs)),
-            limit: c.checked.then(|| o.flow(c.limit_cfs)),
-            limit_text: study.points[c.point]
-                .limit_text
-                .get(c.storm)
-                .cloned()
-                .unwrap_or_default(),
-            pass: c.checked.then_some(c.pass),
-            area: o.area(c.area_ac),
-            baseline_area: c.baseline_area_ac.map(|x| o.area(x)),
-            duration: None,
-        })
-        .collect();
+    let catchments = catchments_out(study);
+    let events = events_out(study, a);
+    let mut comparisons = peak_comparisons_out(study, a);
     comparisons.extend(extra_comparisons);
 
     let pond_checks = a
         .pond_checks
         .iter()
-        .map(|c| {
-            let is_time = c.what == "drain time";
-            let conv = |v: f64| if is_time { v } else { o.length(v) };
-            PondCheckOut {
-                pond: study.elements[c.element].name.clone(),
-                storm: study.storms[c.storm].name.clone(),
-                condition: study.conditions[c.condition].clone(),
-                check: c.what,
-                value: c.value.is_finite().then(|| conv(c.value)),
-                limit: conv(c.limit),
-                pass: c.pass,
-            }
-        })
+        .map(|c| pond_check_out(study, c))
         .collect();
 
     let graphical_checks = a
@@ -679,10 +523,280 @@ pub fn build(
     }
 }
 
+/// Each catchment's derived parameters in output units.
+fn catchments_out(study: &Study) -> Vec<CatchmentOut> {
+    let o = Out(study.units);
+    let step_h = study.step_h;
+    let mut catchments = Vec::new();
+    for e in &study.elements {
+        let ElementKind::Catchment(c) = &e.kind else {
+            continue;
+        };
+        let conds: Vec<String> = study
+            .conditions
+            .iter()
+            .zip(&e.conditions)
+            .filter(|(_, m)| **m)
+            .map(|(n, _)| n.clone())
+            .collect();
+        let timing = catchment_timing(c, study.p2_in, step_h);
+        catchments.push(CatchmentOut {
+            name: e.name.clone(),
+            condition: conds.join(", "),
+            conditions: conds,
+            area: o.area(c.area_ac),
+            cn: c.cn,
+            lambda: c.lambda.ratio(),
+            cn_used: crate::methods::runoff::cn_from_retention_in(c.retention_in),
+            retention: o.depth(c.retention_in),
+            tc_h: timing.tc_h,
+            lag_h: timing.lag_h,
+            tp_h: timing.tp_h,
+            uh_peak_per_depth: o.flow(timing.uh_peak_cfs_per_in) / o.depth(1.0),
+            prf: c.prf,
+            covers: c
+                .covers
+                .iter()
+                .map(|r| CoverOut {
+                    cover: r.label.clone(),
+                    cn: r.cn,
+                    area: o.area(r.area_ac),
+                })
+                .collect(),
+            flow_path: c
+                .segments
+                .iter()
+                .zip(&timing.segments)
+                .map(|(s, t)| {
+                    let (n, surface) = match s {
+                        Segment::Sheet { n, .. } | Segment::Channel { n, .. } => (Some(*n), None),
+                        Segment::Shallow { surface, .. } => (None, Some(surface.clone())),
+                    };
+                    SegmentOut {
+                        kind: s.kind(),
+                        length: o.length(s.length_ft()),
+                        slope: s.slope(),
+                        n,
+                        surface,
+                        velocity: o.length(t.velocity_fps),
+                        time_h: t.time_h,
+                    }
+                })
+                .collect(),
+            to: target_name(study, e.to),
+        });
+    }
+
+    catchments
+}
+
+/// Every element and point in every storm and condition, in output units.
+fn events_out(study: &Study, a: &Analysis) -> Vec<EventOut> {
+    let o = Out(study.units);
+    let step_h = study.step_h;
+    let mut events = Vec::new();
+    for s in &a.storms {
+        let sname = &study.storms[s.storm].name;
+        for c in &s.conditions {
+            let cname = &study.conditions[c.condition];
+            for (i, er) in c.elements.iter().enumerate() {
+                let Some(er) = er else { continue };
+                let e = &study.elements[i];
+                let (pk, pi) = network::peak(&er.outflow_cfs);
+                let mut ev = EventOut {
+                    storm: sname.clone(),
+                    condition: cname.clone(),
+                    element: e.name.clone(),
+                    kind: Kind::of(&e.kind),
+                    rain_depth: None,
+                    runoff_depth: None,
+                    peak_inflow: None,
+                    peak_flow: o.flow(pk),
+                    peak_time_h: pi as f64 * step_h,
+                    peak_stage: None,
+                    peak_storage: None,
+                    volume: o.volume(network::volume_ft3(&er.outflow_cfs, step_h)),
+                    freeboard: None,
+                    overtopped: None,
+                    mass_balance_error: None,
+                    drain_time_h: None,
+                };
+                if let Some(r) = &er.runoff {
+                    ev.rain_depth = Some(o.depth(r.rain_in));
+                    ev.runoff_depth = Some(o.depth(r.runoff_in));
+                }
+                if let Some(p) = &er.pond {
+                    let sm = &p.summary;
+                    ev.peak_inflow = Some(o.flow(sm.peak_inflow_cfs));
+                    ev.peak_stage = Some(o.length(sm.peak_stage_ft));
+                    ev.peak_storage = Some(o.volume(sm.peak_storage_ft3));
+                    ev.volume = o.volume(sm.outflow_volume_ft3);
+                    ev.freeboard = sm.freeboard_ft.map(|f| o.length(f));
+                    ev.overtopped = Some(sm.overtopped);
+                    ev.mass_balance_error = Some(sm.mass_balance_error);
+                    ev.drain_time_h = Some(sm.drain_time_h);
+                }
+                events.push(ev);
+            }
+            for (pi, q) in c.points.iter().enumerate() {
+                let (pk, k) = network::peak(q);
+                events.push(EventOut {
+                    storm: sname.clone(),
+                    condition: cname.clone(),
+                    element: study.points[pi].name.clone(),
+                    kind: Kind::Point,
+                    rain_depth: None,
+                    runoff_depth: None,
+                    peak_inflow: None,
+                    peak_flow: o.flow(pk),
+                    peak_time_h: k as f64 * step_h,
+                    peak_stage: None,
+                    peak_storage: None,
+                    volume: o.volume(network::volume_ft3(q, step_h)),
+                    freeboard: None,
+                    overtopped: None,
+                    mass_balance_error: None,
+                    drain_time_h: None,
+                });
+            }
+        }
+    }
+
+    events
+}
+
+/// The peak checks at the points, in output units.
+fn peak_comparisons_out(study: &Study, a: &Analysis) -> Vec<ComparisonOut> {
+    let o = Out(study.units);
+    a.comparisons
+        .iter()
+        .map(|c| ComparisonOut {
+            point: study.points[c.point].name.clone(),
+            storm: Some(study.storms[c.storm].name.clone()),
+            record: None,
+            baseline: study.conditions[study.baseline].clone(),
+            condition: study.conditions[c.condition].clone(),
+            check: "peak",
+            status: match (c.checked, c.pass) {
+                (false, _) => NOT_CHECKED_NO_BASELINE,
+                (true, true) => "meets",
+                (true, false) => "exceeds",
+            },
+            baseline_peak: (c.checked && !study.baseline_empty)
+                .then(|| o.flow(c.baseline_peak_cfs)),
+            peak: Some(o.flow(c.peak_cfs)),
+            limit: c.checked.then(|| o.flow(c.limit_cfs)),
+            limit_text: study.points[c.point]
+                .limit_text
+                .get(c.storm)
+                .cloned()
+                .unwrap_or_default(),
+            pass: c.checked.then_some(c.pass),
+            area: o.area(c.area_ac),
+            baseline_area: c.baseline_area_ac.map(|x| o.area(x)),
+            duration: None,
+        })
+        .collect()
+}
+
+/// A pond check in output units: stages in the scenario's length unit,
+/// times in hours; a value that is not finite (a pond never drained) is
+/// null.
+fn pond_check_out(study: &Study, c: &PondCheck) -> PondCheckOut {
+    let o = Out(study.units);
+    let (value, limit) = match c.check {
+        PondLimitCheck::Overtopping {
+            peak_stage_ft,
+            top_ft,
+        } => (Some(o.length(peak_stage_ft)), o.length(top_ft)),
+        PondLimitCheck::Freeboard {
+            freeboard_ft,
+            min_freeboard_ft,
+        } => (Some(o.length(freeboard_ft)), o.length(min_freeboard_ft)),
+        PondLimitCheck::DrainTime { hours, max_hours } => (hours, max_hours),
+    };
+    PondCheckOut {
+        pond: study.elements[c.element].name.clone(),
+        storm: study.storms[c.storm].name.clone(),
+        condition: study.conditions[c.condition].clone(),
+        check: c.check.kind(),
+        value: value.filter(|v| v.is_finite()),
+        limit,
+        pass: c.pass,
+    }
+}
+
 /// Name of a target.
 pub fn target_name(study: &Study, t: crate::model::Target) -> String {
     match t {
         crate::model::Target::Element(i) => study.elements[i].name.clone(),
         crate::model::Target::Point(i) => study.points[i].name.clone(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::StorageKind;
+
+    // common practice, no published source: the words summary.json has
+    // always carried (the results contract), unchanged by the enums
+    #[test]
+    fn kinds_serialize_to_their_words() {
+        let words: Vec<String> = [Kind::Catchment, Kind::Pond, Kind::Inflow, Kind::Point]
+            .iter()
+            .map(|k| serde_json::to_string(k).unwrap_or_default())
+            .collect();
+        assert_eq!(
+            words,
+            ["\"catchment\"", "\"pond\"", "\"inflow\"", "\"point\""]
+        );
+    }
+
+    #[test]
+    fn pond_checks_serialize_to_their_words() {
+        let words: Vec<String> = [
+            PondCheckKind::Overtopping,
+            PondCheckKind::Freeboard,
+            PondCheckKind::DrainTime,
+        ]
+        .iter()
+        .map(|k| serde_json::to_string(k).unwrap_or_default())
+        .collect();
+        assert_eq!(
+            words,
+            ["\"overtopping\"", "\"freeboard\"", "\"drain time\""]
+        );
+        assert!(PondCheckKind::DrainTime.is_time());
+        assert!(!PondCheckKind::Freeboard.is_time());
+    }
+
+    #[test]
+    fn pond_check_values_keep_their_units() {
+        let c = PondLimitCheck::DrainTime {
+            hours: None,
+            max_hours: 72.0,
+        };
+        assert_eq!(c.kind(), PondCheckKind::DrainTime);
+        let c = PondLimitCheck::Freeboard {
+            freeboard_ft: 1.0,
+            min_freeboard_ft: 1.0,
+        };
+        assert_eq!(c.kind().word(), "freeboard");
+        // NIST SP 811 (2008): 1 ft = 0.3048 m exactly (from memory)
+        assert!((Out(UnitSystem::Si).length(1.0) - 0.3048).abs() < 1e-12);
+    }
+
+    #[test]
+    fn storage_kinds_read_as_before() {
+        assert_eq!(
+            StorageKind::StageArea.describe(),
+            "stage-area (conic frustum between rows)"
+        );
+        assert_eq!(StorageKind::StageVolume.describe(), "stage-volume");
+        assert_eq!(
+            StorageKind::Basin.describe(),
+            "basin geometry (stage-area, conic frustum)"
+        );
     }
 }

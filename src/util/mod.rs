@@ -3,4 +3,5 @@
 pub mod calendar;
 pub mod interp;
 pub mod suggest;
+pub mod tolerances;
 pub mod units;

@@ -148,7 +148,7 @@ impl Builder<'_> {
         rp: &RawPond,
         span: &std::ops::Range<usize>,
         ctx: &str,
-    ) -> R<(StageStorage, &'static str, Option<f64>)> {
+    ) -> R<(StageStorage, StorageKind, Option<f64>)> {
         let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
         let af = Quantity::SectionArea.bare_factor(self.units).unwrap_or(1.0);
         let vf = Quantity::Volume.bare_factor(self.units).unwrap_or(1.0);
@@ -190,11 +190,7 @@ impl Builder<'_> {
                         "[stage, area] rows with stages increasing and areas >= 0, not decreasing",
                     )
             })?;
-            (
-                s,
-                "stage-area (conic frustum between rows)",
-                rows.last().map(|r| r.0),
-            )
+            (s, StorageKind::StageArea, rows.last().map(|r| r.0))
         } else if let Some(t) = &rp.stage_volume {
             let rows = self.table_rows(t, &format!("{ctx}, stage_volume"), lf, vf)?;
             self.bounded_rows(
@@ -207,7 +203,7 @@ impl Builder<'_> {
                 ],
             )?;
             let s = StageStorage::from_stage_volume(&rows).map_err(|e| self.err(&t.span(), &format!("{ctx}, stage_volume"), e.to_string()).expected("[stage, volume] rows with stages increasing and volumes >= 0, not decreasing"))?;
-            (s, "stage-volume", rows.last().map(|r| r.0))
+            (s, StorageKind::StageVolume, rows.last().map(|r| r.0))
         } else if let Some(b) = &rp.basin {
             let rb = b.get_ref();
             let bctx = format!("{ctx}, basin");
@@ -251,11 +247,7 @@ impl Builder<'_> {
                 .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
             let s = StageStorage::from_stage_area(&rows)
                 .map_err(|e| self.err(&b.span(), &bctx, e.to_string()))?;
-            (
-                s,
-                "basin geometry (stage-area, conic frustum)",
-                Some(bottom + depth),
-            )
+            (s, StorageKind::Basin, Some(bottom + depth))
         } else {
             unreachable_storage()?
         })
