@@ -254,18 +254,21 @@ pub fn estimate_text(study: &Study, a: &analysis::Analysis) -> String {
                         "First-cut storage (TR-55 chapter 6, Figure 6-1 / Table F-2; an approximate method for concept sizing, not a routing):"
                     );
                 }
+                let head = format!(
+                    "  {}, {} ({}): qi {} {fu}, allowed qo {} {fu} (limit {} less bypass {}), qo/qi {:.3}",
+                    summary::kind_and_name("pond", &study.elements[i].name),
+                    storm.name,
+                    study.conditions[c.condition],
+                    sig(o.flow(qi), 4),
+                    sig(o.flow(qo), 4),
+                    sig(o.flow(limit), 4),
+                    sig(o.flow(bypass), 4),
+                    qo / qi,
+                );
                 if !storage_estimate::needs_storage(qo / qi) {
                     let _ = writeln!(
                         t,
-                        "  {}, {} ({}): qi {} {fu}, allowed qo {} {fu} (limit {} less bypass {}), qo/qi {:.3}: the allowed outflow is not below the inflow peak, so this storm needs no storage",
-                        summary::kind_and_name("pond", &study.elements[i].name),
-                        storm.name,
-                        study.conditions[c.condition],
-                        sig(o.flow(qi), 4),
-                        sig(o.flow(qo), 4),
-                        sig(o.flow(limit), 4),
-                        sig(o.flow(bypass), 4),
-                        qo / qi,
+                        "{head}: the allowed outflow is not below the inflow peak, so this storm needs no storage"
                     );
                     continue;
                 }
@@ -275,15 +278,7 @@ pub fn estimate_text(study: &Study, a: &analysis::Analysis) -> String {
                 let stage = stage_for_volume(p, p.storage.volume_ft3(pr.start_ft) + vs);
                 let _ = writeln!(
                     t,
-                    "  {}, {} ({}): qi {} {fu}, allowed qo {} {fu} (limit {} less bypass {}), qo/qi {:.3}{} -> Vs/Vr {:.3}, Vr {} {vu}, Vs {} {vu}, reaching stage {:.2} {lu}",
-                    summary::kind_and_name("pond", &study.elements[i].name),
-                    storm.name,
-                    study.conditions[c.condition],
-                    sig(o.flow(qi), 4),
-                    sig(o.flow(qo), 4),
-                    sig(o.flow(limit), 4),
-                    sig(o.flow(bypass), 4),
-                    qo / qi,
+                    "{head}{} -> Vs/Vr {:.3}, Vr {} {vu}, Vs {} {vu}, reaching stage {:.2} {lu}",
                     if ratio.outside_range {
                         " (outside the figure's 0.1-0.8)"
                     } else {
