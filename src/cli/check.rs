@@ -27,8 +27,7 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
         &study,
         &a,
         Vec::new(),
-        Vec::new(),
-        Vec::new(),
+        &crate::engine::records::RecordsResult::default(),
         String::new(),
     );
     let o = Out(study.units);
@@ -222,9 +221,14 @@ pub fn estimate_text(study: &Study, a: &analysis::Analysis) -> String {
                         Target::Element(j) => at = j,
                     }
                 };
-                let Some(limit) =
-                    analysis::limit_cfs(study, &a.storms, point, st.storm, c.condition)
-                else {
+                let Some(limit) = analysis::limit_cfs(
+                    study,
+                    &a.topology,
+                    &a.storms,
+                    point,
+                    st.storm,
+                    c.condition,
+                ) else {
                     continue;
                 };
                 let qi = pr.summary.peak_inflow_cfs;
@@ -236,7 +240,7 @@ pub fn estimate_text(study: &Study, a: &analysis::Analysis) -> String {
                         *j != i
                             && e.is_some()
                             && study.elements[*j].to == Target::Point(point)
-                            && !analysis::reaches_through(study, *j, i)
+                            && !a.topology.reaches_through(*j, i)
                     })
                     .map(|(_, e)| {
                         e.as_ref()

@@ -144,43 +144,22 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let t_records = t1.elapsed().as_secs_f64();
     let t2 = std::time::Instant::now();
     let run_date = now_utc();
-    let record_entries = report::records::entries(&study, &rec);
-    let record_comparisons = report::records::comparisons(&study, &rec);
-    let mut s = summary::build(
-        &study,
-        &a,
-        sized.outputs.clone(),
-        report::records::json(&record_entries),
-        record_comparisons.clone(),
-        run_date,
-    );
-    // What the long records found: overtopping counts like a storm's.
-    let record_pond_checks = report::records::pond_checks(&study, &rec);
-    s.all_pass &= record_pond_checks.iter().all(|c| c.pass);
-    s.pond_checks.extend(record_pond_checks);
-    for w in &report::records::warnings(&study, &rec) {
-        s.warning_details.push(summary::WarningOut {
-            code: w.code(),
-            message: w.to_string(),
-        });
-        s.warnings.push(w.to_string());
-    }
+    let s = summary::build(&study, &a, sized.outputs.clone(), &rec, run_date);
     let stage = Staging::new(&out_dir, &inputs)?;
     let plots = write_plots(&study, &a, &stage)?;
     let mut all_plots = plots;
-    let record_plots = report::records::plots(&study, &rec, &record_entries);
+    let record_plots = report::records::plots(&study, &rec, &s.records);
     all_plots.extend(write_record_plots(&record_plots, &stage)?);
     for st in &a.storms {
         let name = output::storm_csv_name(&study.storms[st.storm].name);
         stage.write(&name, report::csv::storm_csv(&study, st).as_bytes())?;
     }
-    let json = serde_json::to_string_pretty(&s).map_err(|e| Error::Write {
+    let json = s.to_json().map_err(|e| Error::Write {
         path: out_dir.join("summary.json"),
         message: e.to_string(),
     })?;
     stage.write("summary.json", json.as_bytes())?;
-    let record_md = report::records::markdown(&study, &record_entries, &record_comparisons);
-    let md = report::markdown::render(&study, &s, &all_plots, &record_md);
+    let md = report::markdown::render(&study, &s, &all_plots);
     stage.write("summary.md", md.as_bytes())?;
     if !study.sizing.is_empty() {
         // Paths in the sized copy are written relative to the results
@@ -471,7 +450,9 @@ fn write_plots(
                 .conditions
                 .iter()
                 .filter(|c| c.condition != study.baseline)
-                .find_map(|c| analysis::limit_cfs(study, &a.storms, pi, st.storm, c.condition))
+                .find_map(|c| {
+                    analysis::limit_cfs(study, &a.topology, &a.storms, pi, st.storm, c.condition)
+                })
                 .map(|l| {
                     (
                         format!(

@@ -149,6 +149,8 @@ pub struct Analysis {
     pub graphical: Vec<GraphicalCheck>,
     /// Warnings found while simulating.
     pub warnings: Vec<Warning>,
+    /// The study's network the storms were run on.
+    pub topology: Topology,
 }
 
 impl Analysis {
@@ -181,17 +183,6 @@ pub fn run_storms(
         .collect()
 }
 
-/// Area draining to a point in a condition, ac (see
-/// [`Topology::area_to_point_ac`]; build a [`Topology`] once to ask for several).
-pub fn area_to_point_ac(study: &Study, point: usize, condition: usize) -> f64 {
-    crate::engine::topology::area_to_point_ac(&study.elements, point, condition)
-}
-
-/// Whether element `i` drains (eventually) to point `p` (see [`Topology::reaches`]).
-pub fn reaches(study: &Study, i: usize, p: usize) -> bool {
-    crate::engine::topology::point_of(&study.elements, i) == Some(p)
-}
-
 /// Peak at a point, cfs.
 pub fn point_peak(storms: &[StormResult], storm: usize, condition: usize, point: usize) -> f64 {
     storms
@@ -205,19 +196,6 @@ pub fn point_peak(storms: &[StormResult], storm: usize, condition: usize, point:
 
 /// The limit in cfs for a point, storm and condition, or None when not checked.
 pub fn limit_cfs(
-    study: &Study,
-    storms: &[StormResult],
-    point: usize,
-    storm: usize,
-    condition: usize,
-) -> Option<f64> {
-    limit_with_area(study, storms, point, storm, || {
-        crate::engine::topology::area_to_point_ac(&study.elements, point, condition)
-    })
-}
-
-/// [`limit_cfs`] on the study's [`Topology`].
-pub fn limit_cfs_on(
     study: &Study,
     topology: &Topology,
     storms: &[StormResult],
@@ -287,7 +265,7 @@ pub fn compare(study: &Study, topology: &Topology, storms: &[StormResult]) -> Ve
                     });
                     continue;
                 }
-                let Some(limit) = limit_cfs_on(study, topology, storms, p, s.storm, c.condition)
+                let Some(limit) = limit_cfs(study, topology, storms, p, s.storm, c.condition)
                 else {
                     continue;
                 };
@@ -536,19 +514,8 @@ pub fn finish_on(study: &Study, topology: &Topology, storms: Vec<StormResult>) -
         pond_checks,
         graphical,
         warnings,
+        topology: topology.clone(),
     }
-}
-
-/// Whether element `i`'s flow passes through element `j` on its way down
-/// (see [`Topology::reaches_through`]).
-pub fn reaches_through(study: &Study, i: usize, j: usize) -> bool {
-    crate::engine::topology::passes_through(&study.elements, i, j)
-}
-
-/// Area draining through element `j` in a condition, ac (its own area for
-/// a catchment; see [`Topology::area_to_element_ac`]).
-pub fn area_to_element_ac(study: &Study, j: usize, condition: usize) -> f64 {
-    crate::engine::topology::area_to_element_ac(&study.elements, j, condition)
 }
 
 pub use crate::util::tolerances::AREA_BALANCE_TOLERANCE;

@@ -8,11 +8,12 @@
 //! storm shares one time base: values at `t = k * step`, k = 0..=n.
 
 use crate::engine::topology::Topology;
+use crate::engine::walk::{ElementSim, walk};
 use crate::methods::pond::{self, PondSummary, PondTable, Routed};
 use crate::methods::runoff;
 use crate::methods::timing;
 use crate::methods::unit_hydrograph;
-use crate::model::{Element, ElementKind, Pond, Study, Target};
+use crate::model::{ElementKind, Pond, Study};
 
 /// Hours of simulation allowed after the last rain or inflow (contract: 7 days).
 pub const TAIL_H: f64 = 7.0 * 24.0;
@@ -165,7 +166,13 @@ pub struct PondResult {
 /// (the one peak-of-a-series helper), with `(0.0, 0)` for a series that never
 /// rises above zero.
 pub fn peak(values: &[f64]) -> (f64, usize) {
-    match crate::methods::stats::max_first(values) {
+    floor_peak(crate::methods::stats::max_first(values))
+}
+
+/// A series' highest value and its index as [`peak`] reports it: `(0.0, 0)`
+/// when there is none or it is not above zero.
+pub fn floor_peak(max: Option<(f64, usize)>) -> (f64, usize) {
+    match max {
         Some((v, i)) if v > 0.0 => (v, i),
         _ => (0.0, 0),
     }
@@ -201,12 +208,6 @@ pub fn start_stage_ft(p: &Pond) -> f64 {
     })
 }
 
-/// Elements of a condition in upstream-first order (see
-/// [`Topology::order`]; build a [`Topology`] once to ask for several).
-pub fn order(elements: &[Element], condition: usize) -> Vec<usize> {
-    crate::engine::topology::upstream_first(elements, condition)
-}
-
 /// Adds `src` shifted later by `lag_h` into `dst` (linear interpolation
 /// for shifts that are not whole steps).
 pub fn add_lagged(dst: &mut [f64], src: &[f64], lag_h: f64, step_h: f64) {
@@ -240,12 +241,6 @@ pub fn add_lagged(dst: &mut [f64], src: &[f64], lag_h: f64, step_h: f64) {
 pub fn catchment_uh(c: &crate::model::Catchment, step_h: f64) -> Vec<f64> {
     let tp = unit_hydrograph::time_to_peak_h(step_h, timing::lag_h(c.tc_h));
     unit_hydrograph::ordinates_cfs_per_in(c.shape, c.area_ac, tp, step_h)
-}
-
-/// Sum of the `lag`s (h) from element `i` down to its point, its own
-/// included (see [`Topology::path_lag_h`]).
-pub fn path_lag_h(study: &Study, i: usize) -> f64 {
-    crate::engine::topology::path_lag_h(&study.elements, i)
 }
 
 /// Number of steps simulated before trimming for a storm: the last rain or
@@ -487,7 +482,7 @@ fn check_finite(study: &Study, storm: usize, r: &ConditionResult) -> Result<(), 
 }
 
 /// One condition of a storm: every element in upstream-first order, each
-/// one's outflow lagged into what it drains to.
+/// one's outflow lagged into what it drains to ([`walk`]).
 fn simulate_condition(
     study: &Study,
     topology: &Topology,
@@ -496,37 +491,54 @@ fn simulate_condition(
     rain: &[f64],
     len: usize,
 ) -> Result<ConditionResult, SimulationError> {
-    let step_h = study.step_h;
-    let ne = study.elements.len();
-    let mut inputs: Vec<Vec<f64>> = vec![Vec::new(); ne];
-    let mut elements: Vec<Option<ElementResult>> = vec![None; ne];
-    let mut points = vec![vec![0.0; len]; study.points.len()];
-    let run = StormRun {
-        study,
-        storm,
-        condition: c,
-        rain,
-        len,
+    let mut sim = StormSim {
+        run: StormRun {
+            study,
+            storm,
+            condition: c,
+            rain,
+            len,
+        },
+        elements: vec![None; study.elements.len()],
     };
-    for &i in topology.order(c) {
-        let e = &study.elements[i];
-        let result = run.element_step(i, std::mem::take(&mut inputs[i]))?;
-        match topology.target(i) {
-            Target::Point(pi) => add_lagged(&mut points[pi], &result.outflow_cfs, e.lag_h, step_h),
-            Target::Element(j) => {
-                if inputs[j].is_empty() {
-                    inputs[j] = vec![0.0; len];
-                }
-                add_lagged(&mut inputs[j], &result.outflow_cfs, e.lag_h, step_h);
-            }
+    let mut points = walk(topology, c, study.points.len(), study.step_h, &mut sim)?;
+    for p in &mut points {
+        if p.is_empty() {
+            *p = vec![0.0; len];
         }
-        elements[i] = Some(result);
     }
     Ok(ConditionResult {
         condition: c,
-        elements,
+        elements: sim.elements,
         points,
     })
+}
+
+/// A storm's [`ElementSim`]: each element's result kept whole.
+struct StormSim<'a> {
+    run: StormRun<'a>,
+    elements: Vec<Option<ElementResult>>,
+}
+
+impl ElementSim for StormSim<'_> {
+    type Error = SimulationError;
+
+    fn zeroed(&mut self) -> Vec<f64> {
+        vec![0.0; self.run.len]
+    }
+
+    fn simulate(&mut self, i: usize, inflow_cfs: Vec<f64>) -> Result<Vec<f64>, SimulationError> {
+        let mut result = self.run.element_step(i, inflow_cfs)?;
+        let outflow = std::mem::take(&mut result.outflow_cfs);
+        self.elements[i] = Some(result);
+        Ok(outflow)
+    }
+
+    fn done(&mut self, i: usize, outflow_cfs: Vec<f64>) {
+        if let Some(result) = self.elements.get_mut(i).and_then(Option::as_mut) {
+            result.outflow_cfs = outflow_cfs;
+        }
+    }
 }
 
 /// One storm through one condition: what every element step needs.

@@ -431,7 +431,7 @@ fn checks(study: &Study, topology: &Topology, storms: &[StormResult], pond: usiz
                     continue;
                 }
                 if let Some(limit) =
-                    analysis::limit_cfs_on(study, topology, storms, pi, s.storm, c.condition)
+                    analysis::limit_cfs(study, topology, storms, pi, s.storm, c.condition)
                 {
                     out.push(Check {
                         storm: s.storm,

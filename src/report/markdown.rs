@@ -112,7 +112,14 @@ impl Units {
 }
 
 /// Renders the report. `plots` lists (caption, file name) of the PNGs.
-pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md: &str) -> String {
+pub fn render(study: &Study, s: &Summary, plots: &[(String, String)]) -> String {
+    let record_comparisons: Vec<_> = s
+        .comparisons
+        .iter()
+        .filter(|c| c.record.is_some())
+        .cloned()
+        .collect();
+    let record_md = crate::report::records::markdown(study, &s.records, &record_comparisons);
     let s = &escaped(s);
     let o = Out(study.units);
     let u = Units::of(o);
@@ -137,7 +144,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     }
     sizing(&mut m, s);
     if !record_md.is_empty() {
-        m.push_str(record_md);
+        m.push_str(&record_md);
     }
     if !plots.is_empty() {
         let _ = writeln!(m, "## Plots\n");

@@ -217,14 +217,6 @@ pub fn entries(study: &Study, res: &RecordsResult) -> Vec<RecordOut> {
     res.elements.iter().map(|e| entry(study, e)).collect()
 }
 
-/// The `records` array of `summary.json`.
-pub fn json(entries: &[RecordOut]) -> Vec<serde_json::Value> {
-    entries
-        .iter()
-        .filter_map(|e| serde_json::to_value(e).ok())
-        .collect()
-}
-
 /// A flow-duration rule as the report states it.
 fn duration_rule_text(dc: &DurationControl) -> String {
     format!("durations {} within {:.0} %", dc.text, dc.tolerance * 100.0)

@@ -5,6 +5,7 @@
 use crate::engine::analysis::{Analysis, PondCheck, PondCheckKind, PondLimitCheck};
 use crate::engine::catchment_timing::catchment_timing;
 use crate::engine::network;
+use crate::engine::records::RecordsResult;
 use crate::methods::timing::Segment;
 use crate::model::{ElementKind, Kind, Study};
 use crate::util::units::{Quantity, UnitSystem};
@@ -355,7 +356,7 @@ pub struct Summary {
     /// Sized outlets.
     pub sized: Vec<SizedOut>,
     /// Long-record results.
-    pub records: Vec<serde_json::Value>,
+    pub records: Vec<crate::report::records::RecordOut>,
     /// Warning messages, as printed on stderr.
     pub warnings: Vec<String>,
     /// The same warnings with a short stable code each.
@@ -427,13 +428,23 @@ pub fn kind_and_name(kind: &str, name: &str) -> String {
     }
 }
 
-/// Builds the summary from a study and its analysis.
+impl Summary {
+    /// `summary.json`'s text.
+    ///
+    /// # Errors
+    /// A value serde cannot write (not expected: every field is plain data).
+    pub fn to_json(&self) -> Result<String, serde_json::Error> {
+        serde_json::to_string_pretty(self)
+    }
+}
+
+/// Builds the summary from a study, its design-storm analysis, its sized
+/// outlets and its long records.
 pub fn build(
     study: &Study,
     a: &Analysis,
     sized: Vec<SizedOut>,
-    records: Vec<serde_json::Value>,
-    extra_comparisons: Vec<ComparisonOut>,
+    rec: &RecordsResult,
     run_date: String,
 ) -> Summary {
     let o = Out(study.units);
@@ -441,12 +452,14 @@ pub fn build(
     let catchments = catchments_out(study);
     let events = events_out(study, a);
     let mut comparisons = peak_comparisons_out(study, a);
-    comparisons.extend(extra_comparisons);
+    comparisons.extend(crate::report::records::comparisons(study, rec));
 
-    let pond_checks = a
+    // What the long records found: overtopping counts like a storm's.
+    let pond_checks: Vec<PondCheckOut> = a
         .pond_checks
         .iter()
         .map(|c| pond_check_out(study, c))
+        .chain(crate::report::records::pond_checks(study, rec))
         .collect();
 
     let graphical_checks = a
@@ -467,6 +480,7 @@ pub fn build(
         .warnings
         .iter()
         .chain(&a.warnings)
+        .chain(&crate::report::records::warnings(study, rec))
         .map(|w| WarningOut {
             code: w.code(),
             message: w.to_string(),
@@ -475,7 +489,7 @@ pub fn build(
     let warnings = warning_details.iter().map(|w| w.message.clone()).collect();
 
     let all_pass = !comparisons.iter().any(ComparisonOut::fails)
-        && !a.pond_checks.iter().any(|c| !c.pass)
+        && pond_checks.iter().all(|c| c.pass)
         && sized.iter().all(|s| s.feasible);
     Summary {
         title: study.title.clone(),
@@ -502,7 +516,7 @@ pub fn build(
         pond_checks,
         graphical_checks,
         sized,
-        records,
+        records: crate::report::records::entries(study, rec),
         warnings,
         warning_details,
         provenance: ProvenanceOut {

@@ -13,6 +13,8 @@
 
 use crate::engine::network;
 use crate::engine::network::SimulationError;
+use crate::engine::topology::Topology;
+use crate::engine::walk::{ElementSim, walk};
 use crate::error::Error;
 use crate::methods::moisture;
 use crate::methods::pond;
@@ -112,10 +114,7 @@ struct Stats {
 /// (see [`stats::scan_series`]).
 fn series_stats(values: &[f64], start_s: i64, step_s: i64, step_h: f64) -> Stats {
     let scan = stats::scan_series(start_s, step_s, values);
-    let (peak, peak_index) = match scan.peak {
-        Some((v, i)) if v > 0.0 => (v, i),
-        _ => (0.0, 0),
-    };
+    let (peak, peak_index) = network::floor_peak(scan.peak);
     Stats {
         peak,
         peak_index,
@@ -135,6 +134,8 @@ struct Subject<'a> {
 /// One record's inputs as every element of it reads them.
 struct RecordRun<'a> {
     study: &'a Study,
+    /// The study's network, built once per record.
+    topology: Topology,
     record: &'a Record,
     /// Rain per step, in.
     rain_in: std::borrow::Cow<'a, [f64]>,
@@ -463,6 +464,7 @@ fn run_record(
     res.timings.intervals += steps;
     let run = RecordRun {
         study,
+        topology: Topology::new(study),
         record: r,
         rain_total_in: stats::sum(&rain_in),
         rain_in,
@@ -513,8 +515,8 @@ struct ConditionFlows {
     generated_ft3: Vec<f64>,
 }
 
-/// Simulates every element of condition `c` in network order, adding each
-/// one's outflow into what it drains to.
+/// Simulates every element of condition `c` ([`walk`]), and returns what
+/// arrives at the points and what each catchment generated.
 fn simulate_condition(
     run: &RecordRun<'_>,
     c: usize,
@@ -522,25 +524,62 @@ fn simulate_condition(
     progress: &dyn Progress,
     res: &mut RecordsResult,
 ) -> Result<ConditionFlows, Error> {
-    let study = run.study;
-    let mut inputs: Vec<Vec<f64>> = vec![Vec::new(); study.elements.len()];
-    let mut flows = ConditionFlows {
-        points: vec![Vec::new(); study.points.len()],
-        generated_ft3: vec![0.0; study.elements.len()],
+    let mut sim = RecordSim {
+        run,
+        c,
+        pool,
+        progress,
+        res,
+        generated_ft3: vec![0.0; run.study.elements.len()],
     };
-    for i in network::order(&study.elements, c) {
-        let e = &study.elements[i];
+    let points = walk(
+        &run.topology,
+        c,
+        run.study.points.len(),
+        run.step_h,
+        &mut sim,
+    )?;
+    Ok(ConditionFlows {
+        points,
+        generated_ft3: sim.generated_ft3,
+    })
+}
+
+/// A record's [`ElementSim`]: each element reduced to its entry as soon as
+/// it is simulated, its series buffers reused.
+struct RecordSim<'r, 'a> {
+    run: &'r RecordRun<'a>,
+    c: usize,
+    pool: &'r mut Pool,
+    progress: &'r dyn Progress,
+    res: &'r mut RecordsResult,
+    /// Runoff volume (ft3) each catchment generated over the record.
+    generated_ft3: Vec<f64>,
+}
+
+impl ElementSim for RecordSim<'_, '_> {
+    type Error = Error;
+
+    fn zeroed(&mut self) -> Vec<f64> {
+        self.pool.take(self.run.len)
+    }
+
+    /// The one place where each element kind is simulated over a record:
+    /// a new kind adds its arm here (and in [`network::StormRun::element_step`]).
+    fn simulate(&mut self, i: usize, inflow_cfs: Vec<f64>) -> Result<Vec<f64>, Error> {
+        let (run, c) = (self.run, self.c);
+        let e = &run.study.elements[i];
         // Routing writes a pond's outflow from empty; the others add into zeros.
         let mut out = if matches!(e.kind, ElementKind::Pond(_)) {
-            pool.take_overwritten(0)
+            self.pool.take_overwritten(0)
         } else {
-            pool.take(run.len)
+            self.pool.take(run.len)
         };
         let entry = match &e.kind {
             ElementKind::Catchment(cat) => {
                 let (entry, generated_ft3) =
-                    simulate_catchment(run, c, &e.name, cat, &mut out, &mut res.timings)?;
-                flows.generated_ft3[i] = generated_ft3;
+                    simulate_catchment(run, c, &e.name, cat, &mut out, &mut self.res.timings)?;
+                self.generated_ft3[i] = generated_ft3;
                 entry
             }
             ElementKind::Inflow(_) => {
@@ -555,58 +594,32 @@ fn simulate_condition(
                 element_record(run, who, &out, &st, None)
             }
             ElementKind::Pond(p) => {
-                let inflow = std::mem::take(&mut inputs[i]);
-                route_pond(run, c, i, p, inflow, &mut out, pool, res)?
+                route_pond(run, c, i, p, inflow_cfs, &mut out, self.pool, self.res)?
             }
         };
-        res.elements.push(entry);
-        let target = match e.to {
-            Target::Point(pi) => flows.points.get_mut(pi),
-            Target::Element(j) => inputs.get_mut(j),
-        };
-        pass_downstream(run, c, e, out, target, pool, &mut res.warnings);
-        progress.advance();
+        self.res.elements.push(entry);
+        Ok(out)
     }
-    Ok(flows)
-}
 
-/// Adds an element's outflow into its target (lagged), warning of any
-/// volume lagged past the record's end, and returns the buffer to the pool.
-fn pass_downstream(
-    run: &RecordRun<'_>,
-    c: usize,
-    e: &crate::model::Element,
-    out: Vec<f64>,
-    target: Option<&mut Vec<f64>>,
-    pool: &mut Pool,
-    warnings: &mut Vec<RecordWarning>,
-) {
-    let Some(target) = target else {
-        pool.give(out);
-        return;
-    };
-    if e.lag_h > 0.0 {
-        let lost_ft3 = lagged_past_end_ft3(&out, run.len, e.lag_h, run.step_h);
-        if lost_ft3 > 0.0 {
-            warnings.push(RecordWarning::LagPastEnd {
-                record: run.record.name.clone(),
-                condition: run.study.conditions[c].clone(),
-                element: e.name.clone(),
-                lag_h: e.lag_h,
-                lost_ft3,
-            });
+    /// Warns of any volume lagged past the record's end, and returns the
+    /// buffer to the pool.
+    fn done(&mut self, i: usize, outflow_cfs: Vec<f64>) {
+        let run = self.run;
+        let e = &run.study.elements[i];
+        if e.lag_h > 0.0 {
+            let lost_ft3 = lagged_past_end_ft3(&outflow_cfs, run.len, e.lag_h, run.step_h);
+            if lost_ft3 > 0.0 {
+                self.res.warnings.push(RecordWarning::LagPastEnd {
+                    record: run.record.name.clone(),
+                    condition: run.study.conditions[self.c].clone(),
+                    element: e.name.clone(),
+                    lag_h: e.lag_h,
+                    lost_ft3,
+                });
+            }
         }
-    }
-    if target.is_empty() && e.lag_h == 0.0 && out.len() == run.len {
-        // The first series into a target, unshifted: it becomes the
-        // target's sum as it is.
-        *target = out;
-    } else {
-        if target.is_empty() {
-            *target = pool.take(run.len);
-        }
-        network::add_lagged(target, &out, e.lag_h, run.step_h);
-        pool.give(out);
+        self.pool.give(outflow_cfs);
+        self.progress.advance();
     }
 }
 
@@ -742,7 +755,7 @@ fn route_pond(
         condition: c,
         element: name,
         kind: SubjectKind::Pond,
-        area_ac: crate::engine::analysis::area_to_element_ac(study, index, c),
+        area_ac: run.topology.area_to_element_ac(index, c),
     };
     let mut entry = element_record(run, who, out, &st, None);
     let annual_max = if stage_ft.len() > 1 {
@@ -910,7 +923,7 @@ fn reduce_points(
         // record ends (in ponds, in the falling limbs of the last storms, or
         // lagged past the end).
         let entered_ft3: f64 = (0..study.elements.len())
-            .filter(|&j| crate::engine::analysis::reaches(study, j, pi))
+            .filter(|&j| run.topology.reaches(j, pi))
             .map(|j| generated_ft3[j])
             .sum();
         let missing_ft3 = entered_ft3 - st.volume_ft3;
@@ -935,7 +948,7 @@ fn reduce_points(
             condition: c,
             element: pname,
             kind: SubjectKind::Point,
-            area_ac: crate::engine::analysis::area_to_point_ac(study, pi, c),
+            area_ac: run.topology.area_to_point_ac(pi, c),
         };
         let entry = element_record(run, who, p, &st, Some(table_cfs));
         if let Some(dc) = &study.points[pi].durations {
@@ -1086,7 +1099,7 @@ fn duration_comparisons(
     out: &mut Vec<DurationComparison>,
 ) {
     let study = run.study;
-    let area = |pi: usize, c: usize| crate::engine::analysis::area_to_point_ac(study, pi, c);
+    let area = |pi: usize, c: usize| run.topology.area_to_point_ac(pi, c);
     for (pi, pt) in study.points.iter().enumerate() {
         let Some(dc) = &pt.durations else { continue };
         if let Some(levels) = &durations.levels[pi] {
