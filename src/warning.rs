@@ -2,6 +2,7 @@
 //! loading and simulation, printed on stderr after the results, and written
 //! to `summary.json` and `summary.md`.
 
+use crate::util::units::Shown;
 use std::fmt;
 
 /// A warning with an actionable hint in its `Display`.
@@ -104,10 +105,10 @@ pub enum Warning {
         catchment: String,
         /// Storm.
         storm: String,
-        /// Hydrograph peak (results' units).
-        hydrograph: String,
-        /// Graphical peak (results' units).
-        graphical: String,
+        /// Hydrograph peak.
+        hydrograph: Shown,
+        /// Graphical peak.
+        graphical: Shown,
     },
     /// A routing whose volumes do not balance to 0.1 %.
     MassBalance {
@@ -216,12 +217,12 @@ pub enum Warning {
         point: String,
         /// Condition checked.
         condition: String,
-        /// Its area, with unit.
-        area: String,
+        /// Its area.
+        area: Shown,
         /// Baseline condition.
         baseline: String,
-        /// The baseline's area, with unit.
-        baseline_area: String,
+        /// The baseline's area.
+        baseline_area: Shown,
         /// (area - baseline area) / baseline area, percent.
         difference_pct: f64,
     },

@@ -9,6 +9,7 @@ use crate::methods::rainfall::NrcsType;
 use crate::methods::runoff;
 use crate::model::{ElementKind, Limit, Pond, Study};
 use crate::util::tolerances;
+use crate::util::units::{Quantity, Shown};
 use crate::warning::Warning;
 use rayon::prelude::*;
 
@@ -425,13 +426,12 @@ pub fn finish_on(study: &Study, topology: &Topology, storms: Vec<StormResult>) -
             && gp > 0.0
             && ((h - gp).abs() / gp) > tolerances::GRAPHICAL_PEAK_TOLERANCE
         {
-            let f = crate::util::units::Quantity::Flow.output_factor(study.units);
-            let u = crate::util::units::Quantity::Flow.output_unit(study.units);
+            let flow = |cfs| Shown::new(cfs, Quantity::Flow, study.units, 3);
             warnings.push(Warning::GraphicalPeakDiffers {
                 catchment: study.elements[g.element].name.clone(),
                 storm: study.storms[g.storm].name.clone(),
-                hydrograph: format!("{} {u}", crate::util::units::sig(h * f, 3)),
-                graphical: format!("{} {u}", crate::util::units::sig(gp * f, 3)),
+                hydrograph: flow(h),
+                graphical: flow(gp),
             });
         }
     }
@@ -527,9 +527,7 @@ pub fn area_balance(study: &Study, topology: &Topology) -> Vec<Warning> {
     if study.baseline_empty {
         return out;
     }
-    let au = crate::util::units::Quantity::Area.output_unit(study.units);
-    let af = crate::util::units::Quantity::Area.output_factor(study.units);
-    let show = |ac: f64| format!("{} {au}", crate::util::units::sig(ac * af, 4));
+    let show = |ac: f64| Shown::new(ac, Quantity::Area, study.units, 4);
     for (p, pt) in study.points.iter().enumerate() {
         let base = topology.area_to_point_ac(p, study.baseline);
         for c in study.simulated_conditions() {

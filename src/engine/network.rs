@@ -77,15 +77,6 @@ pub enum SimulationError {
     },
 }
 
-/// Word for an element kind in messages.
-pub fn kind_word(k: &ElementKind) -> &'static str {
-    match k {
-        ElementKind::Catchment(_) => "catchment",
-        ElementKind::Pond(_) => "pond",
-        ElementKind::Inflow(_) => "inflow",
-    }
-}
-
 /// Results of one storm for the conditions simulated.
 #[derive(Debug, Clone)]
 pub struct StormResult {
@@ -346,7 +337,7 @@ pub fn simulate_storm_on(
             return 0;
         }
         s.iter()
-            .rposition(|&v| v >= 0.001 * p)
+            .rposition(|&v| v >= crate::util::tolerances::RUN_TAIL_FRACTION * p)
             .map(|i| i + 1)
             .unwrap_or(0)
     };
@@ -439,7 +430,7 @@ fn check_finite(study: &Study, storm: usize, r: &ConditionResult) -> Result<(), 
     for (i, e) in r.elements.iter().enumerate() {
         let Some(e) = e else { continue };
         let el = &study.elements[i];
-        let kind = kind_word(&el.kind);
+        let kind = el.kind_word();
         if let Some(v) = first_non_finite(&e.outflow_cfs) {
             return Err(err(kind, &el.name, "outflow", v));
         }
@@ -670,11 +661,16 @@ pub fn pond_table(
     start_ft: f64,
 ) -> Result<PondTable, pond::PondError> {
     let inflow_volume: f64 = inflow.iter().sum::<f64>() * dt_s;
-    pond_table_to(
-        p,
-        dt_s,
-        p.storage.volume_ft3(start_ft) + inflow_volume * 1.02 + 1.0,
-    )
+    pond_table_to(p, dt_s, storage_cap_ft3(p, start_ft, inflow_volume))
+}
+
+/// The storage a pond's routing table must reach, ft3: the starting
+/// storage plus all the water that enters (ft3), with 2 % and 1 ft3 to
+/// spare. The water cannot rise above it, and the table's stage spacing
+/// grows with depth far above the outlets, so the table stays small
+/// however high that is.
+pub fn storage_cap_ft3(p: &Pond, start_ft: f64, inflow_ft3: f64) -> f64 {
+    p.storage.volume_ft3(start_ft) + inflow_ft3 * 1.02 + 1.0
 }
 
 /// The stage-storage-discharge table of a pond up to a storage, ft3.

@@ -6,7 +6,7 @@
 
 use crate::engine::network;
 use crate::model::{EMBANKMENT_WEIR_COEFFICIENT, ElementKind, Kind, Pond, Study};
-use crate::report::summary::{CatchmentOut, Out, Summary};
+use crate::report::summary::{CatchmentOut, ComparisonKind, Out, Summary};
 use crate::report::table::{Column, Table};
 use crate::util::units::{Quantity, sig};
 use std::fmt::Write;
@@ -216,8 +216,16 @@ fn provenance(m: &mut String, study: &Study, s: &Summary, u: &Units) {
 /// and flow durations per record.
 fn design_points(m: &mut String, s: &Summary, u: &Units) {
     let _ = writeln!(m, "## Design points\n");
-    let peaks: Vec<_> = s.comparisons.iter().filter(|c| c.check == "peak").collect();
-    let durations: Vec<_> = s.comparisons.iter().filter(|c| c.check != "peak").collect();
+    let peaks: Vec<_> = s
+        .comparisons
+        .iter()
+        .filter(|c| c.check == ComparisonKind::Peak)
+        .collect();
+    let durations: Vec<_> = s
+        .comparisons
+        .iter()
+        .filter(|c| c.check != ComparisonKind::Peak)
+        .collect();
     if s.comparisons.is_empty() {
         let _ = writeln!(
             m,

@@ -10,7 +10,10 @@ use crate::engine::records::{
 use crate::methods::stats;
 use crate::model::{DurationControl, Study};
 use crate::report::plot;
-use crate::report::summary::{ComparisonOut, DurationOut, Out, PondCheckOut};
+use crate::report::summary::{
+    ComparisonKind, ComparisonOut, ComparisonStatus, DurationOut, Out, PondCheckOut,
+};
+use crate::report::table::{Column, Table};
 use crate::util::calendar;
 use crate::util::units::{Quantity, sig};
 use crate::warning::Warning;
@@ -231,18 +234,15 @@ pub fn comparison(study: &Study, d: &DurationComparison) -> ComparisonOut {
         .as_ref()
         .map(duration_rule_text)
         .unwrap_or_default();
-    let (status, pass) = match &d.check {
-        Some(c) => (if c.pass { "meets" } else { "exceeds" }, Some(c.pass)),
-        None => (crate::report::summary::NOT_CHECKED_NO_BASELINE, None),
-    };
+    let pass = d.check.map(|c| c.pass);
     ComparisonOut {
         point: pt.name.clone(),
         storm: None,
         record: Some(d.record.clone()),
         baseline: study.conditions[study.baseline].clone(),
         condition: study.conditions[d.condition].clone(),
-        check: "flow duration",
-        status,
+        check: ComparisonKind::FlowDuration,
+        status: ComparisonStatus::of(pass),
         baseline_peak: None,
         peak: None,
         limit: None,
@@ -472,10 +472,20 @@ pub fn markdown(study: &Study, entries: &[RecordOut], comparisons: &[ComparisonO
     );
     for r in &study.records {
         let _ = writeln!(m, "### Record \"{}\"\n", r.name);
-        let _ = writeln!(
-            m,
-            "| condition | element | kind | rain [{du}] | runoff [{du}] | peak [{fu}] | when | Q2 | Q10 | Q100 | 1 % time | 0.1 % time |\n|---|---|---|---:|---:|---:|---|---:|---:|---:|---:|---:|"
-        );
+        let mut t = Table::new(vec![
+            Column::text("condition"),
+            Column::text("element"),
+            Column::text("kind"),
+            Column::quantity("rain", du),
+            Column::quantity("runoff", du),
+            Column::quantity("peak", fu),
+            Column::text("when"),
+            Column::number("Q2"),
+            Column::number("Q10"),
+            Column::number("Q100"),
+            Column::number("1 % time"),
+            Column::number("0.1 % time"),
+        ]);
         for e in entries.iter().filter(|e| e.record == r.name) {
             let q = |t: f64| {
                 e.frequency
@@ -491,23 +501,22 @@ pub fn markdown(study: &Study, entries: &[RecordOut], comparisons: &[ComparisonO
                     .map(|f| sig(f.flow, 4))
                     .unwrap_or_else(|| "-".into())
             };
-            let _ = writeln!(
-                m,
-                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
-                e.condition,
-                e.element,
-                e.kind,
+            t.row([
+                e.condition.clone(),
+                e.element.clone(),
+                e.kind.to_string(),
                 sig(e.rain_depth, 5),
                 sig(e.runoff_depth, 5),
                 sig(e.peak_flow, 4),
-                e.peak_time,
+                e.peak_time.clone(),
                 q(2.0),
                 q(10.0),
                 q(100.0),
                 d(0.01),
-                d(0.001)
-            );
+                d(0.001),
+            ]);
         }
+        m.push_str(&t.markdown());
         let _ = writeln!(m);
         if comparisons
             .iter()
@@ -675,7 +684,7 @@ mod tests {
                 }),
             },
         )];
-        assert_eq!(comparisons[0].status, "meets");
+        assert_eq!(comparisons[0].status, ComparisonStatus::Meets);
         let md = markdown(&s, &entries, &comparisons);
         assert!(md.starts_with("## Long records\n"));
         assert!(md.contains("### Record \"twenty years\""));

@@ -194,9 +194,9 @@ pub struct ComparisonOut {
     /// Condition checked.
     pub condition: String,
     /// What is checked: "peak" or "flow duration".
-    pub check: &'static str,
+    pub check: ComparisonKind,
     /// "meets", "exceeds", or "not checked: no baseline".
-    pub status: &'static str,
+    pub status: ComparisonStatus,
     /// Baseline peak (peak checks with a baseline; null otherwise).
     pub baseline_peak: Option<f64>,
     /// Condition's peak (peak checks; null for flow durations).
@@ -214,6 +214,57 @@ pub struct ComparisonOut {
     /// The flow-duration result (flow-duration checks that are checked).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub duration: Option<DurationOut>,
+}
+
+/// What a comparison at a point checks.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+pub enum ComparisonKind {
+    /// A design storm's peak flow against its limit.
+    #[serde(rename = "peak")]
+    Peak,
+    /// A long record's flow durations against the baseline's.
+    #[serde(rename = "flow duration")]
+    FlowDuration,
+}
+
+/// How a comparison at a point came out.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+pub enum ComparisonStatus {
+    /// The limit holds.
+    #[serde(rename = "meets")]
+    Meets,
+    /// The limit is exceeded.
+    #[serde(rename = "exceeds")]
+    Exceeds,
+    /// The limit needs a baseline the scenario does not have.
+    #[serde(rename = "not checked: no baseline")]
+    NoBaseline,
+}
+
+impl ComparisonStatus {
+    /// The status of a check that passed, failed, or was not made (None).
+    pub fn of(pass: Option<bool>) -> Self {
+        match pass {
+            Some(true) => Self::Meets,
+            Some(false) => Self::Exceeds,
+            None => Self::NoBaseline,
+        }
+    }
+
+    /// The words the reports print.
+    pub fn text(self) -> &'static str {
+        match self {
+            Self::Meets => "meets",
+            Self::Exceeds => "exceeds",
+            Self::NoBaseline => NOT_CHECKED_NO_BASELINE,
+        }
+    }
+}
+
+impl std::fmt::Display for ComparisonStatus {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.text())
+    }
 }
 
 impl ComparisonOut {
@@ -690,12 +741,8 @@ fn peak_comparisons_out(study: &Study, a: &Analysis) -> Vec<ComparisonOut> {
             record: None,
             baseline: study.conditions[study.baseline].clone(),
             condition: study.conditions[c.condition].clone(),
-            check: "peak",
-            status: match (c.checked, c.pass) {
-                (false, _) => NOT_CHECKED_NO_BASELINE,
-                (true, true) => "meets",
-                (true, false) => "exceeds",
-            },
+            check: ComparisonKind::Peak,
+            status: ComparisonStatus::of(c.checked.then_some(c.pass)),
             baseline_peak: (c.checked && !study.baseline_empty)
                 .then(|| o.flow(c.baseline_peak_cfs)),
             peak: Some(o.flow(c.peak_cfs)),

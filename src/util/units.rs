@@ -411,6 +411,46 @@ pub fn short(value: f64, digits: usize) -> String {
     }
 }
 
+/// A quantity held in internal units and shown in a unit system's output
+/// units with `digits` significant digits and its unit, e.g. "12.35 ac".
+/// Messages built below the report layer carry these, so the conversion
+/// happens only when the text is written.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Shown {
+    /// The value in internal units (ft, ac, cfs, ...).
+    pub internal: f64,
+    /// What it is.
+    pub quantity: Quantity,
+    /// The output units to show it in.
+    pub units: UnitSystem,
+    /// Significant digits.
+    pub digits: usize,
+}
+
+impl Shown {
+    /// `internal` (in internal units) as `quantity`, shown in `units`.
+    pub fn new(internal: f64, quantity: Quantity, units: UnitSystem, digits: usize) -> Self {
+        Shown {
+            internal,
+            quantity,
+            units,
+            digits,
+        }
+    }
+}
+
+impl fmt::Display for Shown {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let v = self.internal * self.quantity.output_factor(self.units);
+        write!(
+            f,
+            "{} {}",
+            sig(v, self.digits),
+            self.quantity.output_unit(self.units)
+        )
+    }
+}
+
 impl fmt::Display for UnitSystem {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         f.write_str(match self {

@@ -727,14 +727,11 @@ fn route_pond(
     };
     let dt_s = run.step_h * 3600.0;
     let start_ft = network::start_stage_ft(p);
-    // Table up to the start storage plus all the water that enters: the
-    // water cannot rise above it, and the grid's spacing grows with depth
-    // far above the outlets, so the table stays small however high that is.
     let total = stats::sum(&inflow);
     if !total.is_finite() {
         return Err(run.not_finite(c, "pond", name, "inflow volume", total));
     }
-    let max_storage_ft3 = p.storage.volume_ft3(start_ft) + total * dt_s * 1.02 + 1.0;
+    let max_storage_ft3 = network::storage_cap_ft3(p, start_ft, total * dt_s);
     let table = network::pond_table_to(p, dt_s, max_storage_ft3).map_err(|source| {
         Error::Simulation(SimulationError::PondTable {
             pond: name.clone(),
