@@ -593,6 +593,8 @@ fn kind_word(d: &crate::methods::hydraulics::Outlet) -> &'static str {
         D::BroadCrestedWeir { .. } => "spillway crest",
         D::Riser { .. } => "riser rim",
         D::Rating { .. } => "rating start",
+        D::PerforatedRiser { .. } => "lowest row of holes",
+        D::VaryingWeir { .. } => "weir crest",
     }
 }
 

@@ -806,6 +806,36 @@ pub fn describe_outlet(d: &crate::methods::hydraulics::Outlet, o: Out) -> String
                 .map(|r| f(o.length(r.0), 2))
                 .unwrap_or_default()
         ),
+        D::PerforatedRiser {
+            invert_ft,
+            height_ft,
+            area_ft2,
+            cd,
+            form,
+        } => format!(
+            "perforated riser, {} {lu}2 of holes over {} {lu} from {} {lu}, Cd {}, {}",
+            f(o.length(o.length(*area_ft2)), 3),
+            l(*height_ft),
+            f(o.length(*invert_ft), 2),
+            f(*cd, 2),
+            match form {
+                crate::methods::hydraulics::Perforation::Slot => "continuous-slot form",
+                crate::methods::hydraulics::Perforation::Approximation => "closed-form approximation",
+            }
+        ),
+        D::VaryingWeir {
+            crest_ft,
+            length_ft,
+            coefficients,
+            contractions,
+        } => format!(
+            "weir {} {lu} long, crest {} {lu}, C from {} to {} over {} heads, {contractions} end contraction(s)",
+            l(*length_ft),
+            f(o.length(*crest_ft), 2),
+            f(o.weir_coefficient(coefficients.first().map_or(0.0, |r| r.1)), 2),
+            f(o.weir_coefficient(coefficients.last().map_or(0.0, |r| r.1)), 2),
+            coefficients.len()
+        ),
     }
 }
 
