@@ -149,12 +149,18 @@ pub struct Analysis {
     pub graphical: Vec<GraphicalCheck>,
     /// Warnings found while simulating.
     pub warnings: Vec<Warning>,
+    /// Every device's flow at each pond's routed peak.
+    pub device_peaks: Vec<crate::engine::structure::DevicePeak>,
+    /// Clogged-outlet checks (`[[pond.failure]]`).
+    pub failures: Vec<crate::engine::structure::FailureResult>,
 }
 
 impl Analysis {
     /// Whether any limit failed or a pond overtopped.
     pub fn any_failure(&self) -> bool {
-        self.comparisons.iter().any(|c| !c.pass) || self.pond_checks.iter().any(|c| !c.pass)
+        self.comparisons.iter().any(|c| !c.pass)
+            || self.pond_checks.iter().any(|c| !c.pass)
+            || self.failures.iter().any(|f| !f.pass)
     }
 }
 
@@ -530,12 +536,17 @@ pub fn finish_on(study: &Study, topology: &Topology, storms: Vec<StormResult>) -
             }
         }
     }
+    let device_peaks = crate::engine::structure::device_peaks(study, &storms);
+    let failures = crate::engine::structure::failure_checks(study, &storms);
+    warnings.extend(crate::engine::structure::structure_warnings(study, &failures));
     Analysis {
         storms,
         comparisons,
         pond_checks,
         graphical,
         warnings,
+        device_peaks,
+        failures,
     }
 }
 

@@ -11,4 +11,5 @@ pub mod catchment_timing;
 pub mod network;
 pub mod records;
 pub mod sizing;
+pub mod structure;
 pub mod topology;
