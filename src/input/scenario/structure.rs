@@ -250,19 +250,18 @@ impl Builder<'_> {
                 blocked_barrels.push(j);
             } else {
                 let all: Vec<String> = outlet_names.iter().chain(barrels).cloned().collect();
-                let e = self.unknown_word(
+                return Err(self.unknown_word(
                     &n.span(),
                     &format!("{ctx}, blocked"),
                     format!("no outlet or barrel of this pond is named \"{w}\""),
                     if all.is_empty() {
-                        "an outlet name (give the outlet a `name`)".to_string()
+                        "an outlet's `name` (this pond's outlets have none: give the outlet one)".to_string()
                     } else {
-                        format!("one of: {}", quoted(&all))
+                        format!("the `name` of an outlet or barrel: {}", quoted(&all))
                     },
                     w,
                     all.iter().map(String::as_str),
-                );
-                return Err(e.hint("blocked devices are named by their `name`; give the outlet one"));
+                ));
             }
             blocked_names.push(w.to_string());
         }
