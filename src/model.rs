@@ -308,7 +308,7 @@ pub struct Pond {
     /// Stage grid spacing for the routing table, ft.
     pub grid_step_ft: f64,
     /// Barrels, tailwater, counts and the clogged-outlet checks.
-    pub structure: Structure,
+    pub structure: Box<Structure>,
 }
 
 /// The parts of a pond's outlet works beyond its outlets: how many of

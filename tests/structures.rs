@@ -14,7 +14,7 @@ fn structure<'a>(s: &'a Value, pond: &str) -> &'a Value {
         .unwrap_or_else(|| panic!("no structure for {pond}"))
 }
 
-fn row_at<'a>(st: &'a Value, stage: f64) -> &'a Value {
+fn row_at(st: &Value, stage: f64) -> &Value {
     st["rating"]
         .as_array()
         .and_then(|a| a.iter().find(|r| (num(&r["stage"]) - stage).abs() < 1e-9))
@@ -35,25 +35,47 @@ fn a_riser_through_a_too_small_barrel_is_limited_by_the_barrel_and_the_pond_rise
         .position(|r| r["governs"][0] != "openings" && r["governs"][0] != "dry")
         .expect("the barrel governs somewhere");
     let switch = num(&rows[first_barrel]["stage"]);
-    assert!(switch > 102.0 && switch < 103.0, "barrel takes over at {switch}");
+    assert!(
+        switch > 102.0 && switch < 103.0,
+        "barrel takes over at {switch}"
+    );
     for r in &rows[first_barrel..] {
-        assert!(r["governs"][0] == "inlet" || r["governs"][0] == "outlet", "{r}");
+        assert!(
+            r["governs"][0] == "inlet" || r["governs"][0] == "outlet",
+            "{r}"
+        );
         let h = num(&r["stage"]);
-        if let Some(f) = free["rating"].as_array().unwrap().iter().find(|x| num(&x["stage"]) == h) {
+        if let Some(f) = free["rating"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|x| num(&x["stage"]) == h)
+        {
             assert!(num(&r["outflow"]) < num(&f["outflow"]), "stage {h}");
         }
     }
     for r in &rows[..first_barrel] {
         let h = num(&r["stage"]);
-        if let Some(f) = free["rating"].as_array().unwrap().iter().find(|x| num(&x["stage"]) == h) {
+        if let Some(f) = free["rating"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|x| num(&x["stage"]) == h)
+        {
             let q = num(&f["outflow"]);
-            assert!((num(&r["outflow"]) - q).abs() <= 1e-9 * (1.0 + q), "stage {h}");
+            assert!(
+                (num(&r["outflow"]) - q).abs() <= 1e-9 * (1.0 + q),
+                "stage {h}"
+            );
         }
     }
     // the routed peak stage rises against free outfall
     let free_peak = num(&event(&s, "design", "existing", "free")["peak_stage"]);
     let barrel_peak = num(&event(&s, "design", "existing", "barrel")["peak_stage"]);
-    assert!(barrel_peak > free_peak + 0.5, "{barrel_peak} vs {free_peak}");
+    assert!(
+        barrel_peak > free_peak + 0.5,
+        "{barrel_peak} vs {free_peak}"
+    );
     // the rating is continuous where the barrel takes over (0.1-ft rows)
     for w in rows.windows(2) {
         let (a, b) = (num(&w[0]["outflow"]), num(&w[1]["outflow"]));
@@ -135,7 +157,11 @@ fn clogged_outlet_checks_report_peak_freeboard_and_verdict_and_count_in_the_exit
     assert_eq!(f.len(), 2);
     assert_eq!(f[0]["pass"], true);
     assert_eq!(f[0]["start_kind"], "full");
-    assert_eq!(num(&f[0]["start"]), 102.0, "full: at the riser crest, the lowest open device");
+    assert_eq!(
+        num(&f[0]["start"]),
+        102.0,
+        "full: at the riser crest, the lowest open device"
+    );
     assert_eq!(f[1]["pass"], false);
     assert_eq!(num(&f[1]["start"]), 101.0);
     for c in f {

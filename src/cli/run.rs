@@ -598,7 +598,10 @@ fn structure_references(pond: &crate::model::Pond, o: summary::Out) -> Vec<(Stri
         Some(crate::methods::hydraulics::Tailwater::Fixed(x)) => {
             v.push(("tailwater".to_string(), o.length(*x)))
         }
-        Some(t) => v.push(("tailwater at no outflow".to_string(), o.length(t.still_ft()))),
+        Some(t) => v.push((
+            "tailwater at no outflow".to_string(),
+            o.length(t.still_ft()),
+        )),
         None => {}
     }
     v

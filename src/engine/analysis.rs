@@ -538,7 +538,9 @@ pub fn finish_on(study: &Study, topology: &Topology, storms: Vec<StormResult>) -
     }
     let device_peaks = crate::engine::structure::device_peaks(study, &storms);
     let failures = crate::engine::structure::failure_checks(study, &storms);
-    warnings.extend(crate::engine::structure::structure_warnings(study, &failures));
+    warnings.extend(crate::engine::structure::structure_warnings(
+        study, &failures,
+    ));
     Analysis {
         storms,
         comparisons,

@@ -713,12 +713,6 @@ pub fn rating_rows(p: &Pond) -> Vec<(f64, f64, f64)> {
     stages.dedup_by(|a, b| (*a - *b).abs() < 1e-6);
     stages
         .into_iter()
-        .map(|h| {
-            (
-                h,
-                p.storage.volume_ft3(h),
-                works.total_cfs(h),
-            )
-        })
+        .map(|h| (h, p.storage.volume_ft3(h), works.total_cfs(h)))
         .collect()
 }

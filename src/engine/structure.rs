@@ -43,7 +43,11 @@ pub const MAX_RATING_ROWS: usize = 400;
 pub fn structure_rating(p: &Pond, step_ft: f64) -> Vec<StructureRow> {
     let bottom = p.storage.bottom_ft();
     let table_top = p.storage.rows().last().map(|r| r.0).unwrap_or(bottom + 1.0);
-    let top = p.top_ft.unwrap_or(table_top).max(table_top).max(bottom + step_ft);
+    let top = p
+        .top_ft
+        .unwrap_or(table_top)
+        .max(table_top)
+        .max(bottom + step_ft);
     let mut step = step_ft;
     while (top - bottom) / step > MAX_RATING_ROWS as f64 {
         step *= 2.0;
@@ -51,7 +55,12 @@ pub fn structure_rating(p: &Pond, step_ft: f64) -> Vec<StructureRow> {
     let n = ((top - bottom) / step + 1e-9).floor() as usize;
     let works = p.works();
     let mut stages: Vec<f64> = (0..=n).map(|i| bottom + i as f64 * step).collect();
-    stages.extend(works.key_stages_ft().into_iter().filter(|&s| s > bottom && s < top));
+    stages.extend(
+        works
+            .key_stages_ft()
+            .into_iter()
+            .filter(|&s| s > bottom && s < top),
+    );
     stages.push(top);
     stages.sort_by(f64::total_cmp);
     stages.dedup_by(|a, b| (*a - *b).abs() < 1e-6);
@@ -88,9 +97,10 @@ pub fn device_peaks(study: &Study, storms: &[StormResult]) -> Vec<DevicePeak> {
     for s in storms {
         for c in &s.conditions {
             for (i, e) in c.elements.iter().enumerate() {
-                let (Some(pr), ElementKind::Pond(p)) =
-                    (e.as_ref().and_then(|e| e.pond.as_ref()), &study.elements[i].kind)
-                else {
+                let (Some(pr), ElementKind::Pond(p)) = (
+                    e.as_ref().and_then(|e| e.pond.as_ref()),
+                    &study.elements[i].kind,
+                ) else {
                     continue;
                 };
                 let h = pr.summary.peak_stage_ft;
@@ -168,7 +178,11 @@ pub fn failure_checks(study: &Study, storms: &[StormResult]) -> Vec<FailureResul
                 continue;
             };
             for c in &s.conditions {
-                let Some(pr) = c.elements.get(i).and_then(|e| e.as_ref()).and_then(|e| e.pond.as_ref())
+                let Some(pr) = c
+                    .elements
+                    .get(i)
+                    .and_then(|e| e.as_ref())
+                    .and_then(|e| e.pond.as_ref())
                 else {
                     continue;
                 };
@@ -244,7 +258,10 @@ fn one_failure(
 
 /// Warnings from the clogged-outlet checks: a check that fails, and a
 /// routing whose mass balance is off by more than 0.1 %.
-pub fn structure_warnings(study: &Study, failures: &[FailureResult]) -> Vec<crate::warning::Warning> {
+pub fn structure_warnings(
+    study: &Study,
+    failures: &[FailureResult],
+) -> Vec<crate::warning::Warning> {
     use crate::util::units::{Quantity, sig};
     use crate::warning::Warning;
     let lf = Quantity::Length.output_factor(study.units);

@@ -837,7 +837,8 @@ pub fn describe_outlet(d: &crate::methods::hydraulics::Outlet, o: Out) -> String
             f(*cd, 2),
             match form {
                 crate::methods::hydraulics::Perforation::Slot => "continuous-slot form",
-                crate::methods::hydraulics::Perforation::Approximation => "closed-form approximation",
+                crate::methods::hydraulics::Perforation::Approximation =>
+                    "closed-form approximation",
             }
         ),
         D::VaryingWeir {
@@ -849,8 +850,14 @@ pub fn describe_outlet(d: &crate::methods::hydraulics::Outlet, o: Out) -> String
             "weir {} {lu} long, crest {} {lu}, C from {} to {} over {} heads, {contractions} end contraction(s)",
             l(*length_ft),
             f(o.length(*crest_ft), 2),
-            f(o.weir_coefficient(coefficients.first().map_or(0.0, |r| r.1)), 2),
-            f(o.weir_coefficient(coefficients.last().map_or(0.0, |r| r.1)), 2),
+            f(
+                o.weir_coefficient(coefficients.first().map_or(0.0, |r| r.1)),
+                2
+            ),
+            f(
+                o.weir_coefficient(coefficients.last().map_or(0.0, |r| r.1)),
+                2
+            ),
             coefficients.len()
         ),
     }

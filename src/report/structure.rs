@@ -135,7 +135,12 @@ fn devices(p: &Pond, o: Out) -> Vec<DeviceOut> {
         .map(|(i, d)| DeviceOut {
             label: crate::engine::sizing::outlet_label(i, p.outlet_names[i].as_deref()),
             kind: "outlet",
-            into: st.into.get(i).copied().flatten().map(|b| st.barrel_names[b].clone()),
+            into: st
+                .into
+                .get(i)
+                .copied()
+                .flatten()
+                .map(|b| st.barrel_names[b].clone()),
             count: st.counts.get(i).copied().filter(|&c| c > 1),
             description: crate::report::markdown::describe_outlet(d, o),
         })
@@ -292,7 +297,12 @@ pub fn structure_sentence(p: &Pond, o: Out) -> String {
 
 /// The pond's structure: barrels (if any), then the stage-storage-discharge
 /// table with one column per device.
-pub fn markdown_rating(m: &mut String, s: &crate::report::summary::Summary, escaped_name: &str, o: Out) {
+pub fn markdown_rating(
+    m: &mut String,
+    s: &crate::report::summary::Summary,
+    escaped_name: &str,
+    o: Out,
+) {
     let Some(st) = s.structures.iter().find(|x| x.pond == escaped_name) else {
         return;
     };
@@ -301,7 +311,11 @@ pub fn markdown_rating(m: &mut String, s: &crate::report::summary::Summary, esca
         o.unit(Quantity::Flow),
         o.unit(Quantity::Volume),
     );
-    if st.devices.iter().any(|d| d.kind == "barrel" || d.into.is_some() || d.count.is_some()) {
+    if st
+        .devices
+        .iter()
+        .any(|d| d.kind == "barrel" || d.into.is_some() || d.count.is_some())
+    {
         let mut t = Table::new(vec![
             Column::text("device"),
             Column::text("drains into"),
@@ -325,8 +339,16 @@ pub fn markdown_rating(m: &mut String, s: &crate::report::summary::Summary, esca
         m,
         "Stage-storage-discharge table every {} {lu} and at each device's invert or crest; one column per device ({fu}){}{}.\n",
         sig(st.rating_step, 3),
-        if barrels.is_empty() { "" } else { "; \"governs\" names what sets each barrel's flow: its openings, inlet control or outlet control" },
-        if has_tw { "; * marks stages where the tailwater reduces some device's flow" } else { "" }
+        if barrels.is_empty() {
+            ""
+        } else {
+            "; \"governs\" names what sets each barrel's flow: its openings, inlet control or outlet control"
+        },
+        if has_tw {
+            "; * marks stages where the tailwater reduces some device's flow"
+        } else {
+            ""
+        }
     );
     let mut cols = vec![
         Column::quantity("stage", lu),
@@ -334,14 +356,22 @@ pub fn markdown_rating(m: &mut String, s: &crate::report::summary::Summary, esca
         Column::quantity("outflow", fu),
     ];
     cols.extend(st.devices.iter().map(|d| Column::number(&d.label)));
-    cols.extend(barrels.iter().map(|d| Column::text(&format!("{} governs", d.label))));
+    cols.extend(
+        barrels
+            .iter()
+            .map(|d| Column::text(format!("{} governs", d.label))),
+    );
     if has_tw {
         cols.push(Column::quantity("tailwater", lu));
     }
     let mut t = Table::new(cols);
     for r in &st.rating {
         let mut row = vec![
-            format!("{}{}", fx(r.stage, 2), if r.tailwater_acts { "*" } else { "" }),
+            format!(
+                "{}{}",
+                fx(r.stage, 2),
+                if r.tailwater_acts { "*" } else { "" }
+            ),
             sig(r.storage, 5),
             sig(r.outflow, 4),
         ];
@@ -367,7 +397,11 @@ pub fn markdown_peaks_and_failures(
         return;
     };
     let (lu, fu) = (o.unit(Quantity::Length), o.unit(Quantity::Flow));
-    let peaks: Vec<&DevicePeakOut> = s.device_peaks.iter().filter(|d| d.pond == escaped_name).collect();
+    let peaks: Vec<&DevicePeakOut> = s
+        .device_peaks
+        .iter()
+        .filter(|d| d.pond == escaped_name)
+        .collect();
     if !peaks.is_empty() {
         let _ = writeln!(m, "Each device's flow at the routed peak stage ({fu}):\n");
         let barrels: Vec<&DeviceOut> = st.devices.iter().filter(|d| d.kind == "barrel").collect();
@@ -377,7 +411,11 @@ pub fn markdown_peaks_and_failures(
             Column::quantity("peak stage", lu),
         ];
         cols.extend(st.devices.iter().map(|d| Column::number(&d.label)));
-        cols.extend(barrels.iter().map(|d| Column::text(&format!("{} governs", d.label))));
+        cols.extend(
+            barrels
+                .iter()
+                .map(|d| Column::text(format!("{} governs", d.label))),
+        );
         if st.tailwater.is_some() {
             cols.push(Column::quantity("tailwater", lu));
             cols.push(Column::text("tailwater acts"));
@@ -396,7 +434,11 @@ pub fn markdown_peaks_and_failures(
         m.push_str(&t.markdown());
         let _ = writeln!(m);
     }
-    let fails: Vec<&FailureOut> = s.failure_checks.iter().filter(|f| f.pond == escaped_name).collect();
+    let fails: Vec<&FailureOut> = s
+        .failure_checks
+        .iter()
+        .filter(|f| f.pond == escaped_name)
+        .collect();
     if fails.is_empty() {
         return;
     }
@@ -420,12 +462,24 @@ pub fn markdown_peaks_and_failures(
             f.storm.clone(),
             f.condition.clone(),
             f.blocked.join(", "),
-            format!("{}{}", fx(f.start, 2), if f.start_kind == "full" { " (full)" } else { "" }),
+            format!(
+                "{}{}",
+                fx(f.start, 2),
+                if f.start_kind == "full" {
+                    " (full)"
+                } else {
+                    ""
+                }
+            ),
             f.peak_stage.map(|h| fx(h, 2)).unwrap_or_else(|| "-".into()),
             sig(f.peak_outflow, 4),
             f.freeboard.map(|h| fx(h, 2)).unwrap_or_else(|| "-".into()),
             fx(f.min_freeboard, 2),
-            if f.pass { "meets".into() } else { "**FAILS**".to_string() },
+            if f.pass {
+                "meets".into()
+            } else {
+                "**FAILS**".to_string()
+            },
         ]);
     }
     m.push_str(&t.markdown());

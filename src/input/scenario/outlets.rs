@@ -58,9 +58,7 @@ impl OutletKind {
     pub(super) fn keys(self) -> &'static [&'static str] {
         match self {
             OutletKind::Orifice => &["invert", "diameter", "cd", "count", "into"],
-            OutletKind::RectangularOrifice => {
-                &["invert", "width", "height", "cd", "count", "into"]
-            }
+            OutletKind::RectangularOrifice => &["invert", "width", "height", "cd", "count", "into"],
             OutletKind::Weir => &[
                 "crest",
                 "length",
@@ -489,7 +487,11 @@ impl Builder<'_> {
         let key = format!("{ctx}, coefficient_table");
         if let Some(c) = &r.coefficient {
             return Err(self
-                .err(&c.span(), &format!("{ctx}, coefficient"), "both `coefficient` and `coefficient_table` are given")
+                .err(
+                    &c.span(),
+                    &format!("{ctx}, coefficient"),
+                    "both `coefficient` and `coefficient_table` are given",
+                )
                 .expected("one of them: a fixed C, or C against head"));
         }
         let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
@@ -499,7 +501,9 @@ impl Builder<'_> {
         };
         let rows = self.table_rows(t, &key, lf, cf)?;
         let bad = rows.is_empty()
-            || rows.iter().any(|&(h, c)| h < 0.0 || c <= 0.0 || c / cf > MAX_WEIR_COEFFICIENT)
+            || rows
+                .iter()
+                .any(|&(h, c)| h < 0.0 || c <= 0.0 || c / cf > MAX_WEIR_COEFFICIENT)
             || rows.windows(2).any(|w| w[1].0 <= w[0].0);
         if bad {
             return Err(self
@@ -515,12 +519,22 @@ impl Builder<'_> {
         let r = o.get_ref();
         let h = self.req(&r.height, &o.span(), ctx, "height", "\"2 ft\"")?;
         let height_ft = self.positive(h, Quantity::Length, &format!("{ctx}, height"))?;
-        let d = self.req(&r.hole_diameter, &o.span(), ctx, "hole_diameter", "\"1 in\"")?;
+        let d = self.req(
+            &r.hole_diameter,
+            &o.span(),
+            ctx,
+            "hole_diameter",
+            "\"1 in\"",
+        )?;
         let hole_ft = self.positive(d, Quantity::Length, &format!("{ctx}, hole_diameter"))?;
         let n = self.req(&r.holes, &o.span(), ctx, "holes", "24")?;
         if !(1..=MAX_OUTLET_COUNT).contains(n.get_ref()) {
             return Err(self
-                .err(&n.span(), &format!("{ctx}, holes"), format!("{} holes", n.get_ref()))
+                .err(
+                    &n.span(),
+                    &format!("{ctx}, holes"),
+                    format!("{} holes", n.get_ref()),
+                )
                 .expected(format!("a whole number from 1 to {MAX_OUTLET_COUNT}")));
         }
         let form = match &r.form {

@@ -148,7 +148,7 @@ impl Builder<'_> {
                 min_freeboard_ft,
                 max_drain_time_h,
                 grid_step_ft,
-                structure,
+                structure: Box::new(structure),
             },
             sized,
         ))

@@ -28,7 +28,11 @@ impl Builder<'_> {
             if st.barrel_names.contains(&name) {
                 let sp = b.get_ref().name.as_ref().map_or(b.span(), |n| n.span());
                 return Err(self
-                    .err(&sp, &format!("{}, barrel \"{name}\"", c.ctx), format!("two barrels are named \"{name}\""))
+                    .err(
+                        &sp,
+                        &format!("{}, barrel \"{name}\"", c.ctx),
+                        format!("two barrels are named \"{name}\""),
+                    )
                     .expected("each barrel of a pond named once"));
             }
             st.barrel_names.push(name);
@@ -41,7 +45,9 @@ impl Builder<'_> {
             st.counts.push(self.outlet_count(o.get_ref(), &octx)?);
             st.into.push(match &o.get_ref().into {
                 None => None,
-                Some(n) => Some(self.barrel_named(n, &format!("{octx}, into"), &st.barrel_names)?),
+                Some(n) => {
+                    Some(self.barrel_named(n, &format!("{octx}, into"), &st.barrel_names)?)
+                }
             });
         }
         st.tailwater = match &rp.tailwater {
@@ -76,13 +82,22 @@ impl Builder<'_> {
     }
 
     /// One `[[pond.barrel]]`: its name, the barrel and its entrance keyword.
-    fn barrel(&self, b: &Spanned<RawBarrel>, c: &StructureCtx<'_>, j: usize) -> R<(String, Barrel, String)> {
+    fn barrel(
+        &self,
+        b: &Spanned<RawBarrel>,
+        c: &StructureCtx<'_>,
+        j: usize,
+    ) -> R<(String, Barrel, String)> {
         let r = b.get_ref();
         let name = match &r.name {
             Some(n) if !n.get_ref().trim().is_empty() => n.get_ref().trim().to_string(),
             Some(n) => {
                 return Err(self
-                    .err(&n.span(), &format!("{}, barrel {}, name", c.ctx, j + 1), "the barrel name is empty")
+                    .err(
+                        &n.span(),
+                        &format!("{}, barrel {}, name", c.ctx, j + 1),
+                        "the barrel name is empty",
+                    )
                     .expected("a name such as \"outlet pipe\""));
             }
             None => format!("barrel {}", j + 1),
@@ -98,7 +113,11 @@ impl Builder<'_> {
             },
             _ => {
                 return Err(self
-                    .err(&b.span(), &ctx, "a barrel needs a diameter, or a width and a height (not both)")
+                    .err(
+                        &b.span(),
+                        &ctx,
+                        "a barrel needs a diameter, or a width and a height (not both)",
+                    )
                     .expected("diameter = \"24 in\", or width = \"4 ft\" and height = \"3 ft\""));
             }
         };
@@ -109,7 +128,11 @@ impl Builder<'_> {
                 let x = self.elevation(v, &format!("{ctx}, invert"))?;
                 if x < c.bottom - 1e-9 {
                     return Err(self
-                        .err(&v.span(), &format!("{ctx}, invert"), "the barrel's inlet is below the pond bottom")
+                        .err(
+                            &v.span(),
+                            &format!("{ctx}, invert"),
+                            "the barrel's inlet is below the pond bottom",
+                        )
                         .expected("an inlet invert at or above the lowest stage of the storage"));
                 }
                 x
@@ -118,18 +141,27 @@ impl Builder<'_> {
         };
         let outlet_invert_ft = match (&r.slope, &r.outlet_invert) {
             (Some(s), None) => {
-                inlet_invert_ft - length_ft * self.qty(s, Quantity::Slope, &format!("{ctx}, slope"))?
+                inlet_invert_ft
+                    - length_ft * self.qty(s, Quantity::Slope, &format!("{ctx}, slope"))?
             }
             (None, Some(v)) => self.elevation(v, &format!("{ctx}, outlet_invert"))?,
             _ => {
                 return Err(self
-                    .err(&b.span(), &ctx, "a barrel needs its slope or its outlet invert (one of them)")
+                    .err(
+                        &b.span(),
+                        &ctx,
+                        "a barrel needs its slope or its outlet invert (one of them)",
+                    )
                     .expected("slope = \"1 %\", or outlet_invert = 99.4"));
             }
         };
         if (inlet_invert_ft - outlet_invert_ft).abs() > length_ft {
             return Err(self
-                .err(&b.span(), &ctx, "the barrel falls (or rises) more than its length")
+                .err(
+                    &b.span(),
+                    &ctx,
+                    "the barrel falls (or rises) more than its length",
+                )
                 .expected("a slope under 100 %"));
         }
         let n = match &r.n {
@@ -148,7 +180,14 @@ impl Builder<'_> {
         let (word, entrance) = self.entrance(r, &ctx, is_box)?;
         Ok((
             name,
-            Barrel { shape, length_ft, inlet_invert_ft, outlet_invert_ft, n, entrance },
+            Barrel {
+                shape,
+                length_ft,
+                inlet_invert_ft,
+                outlet_invert_ft,
+                n,
+                entrance,
+            },
             word,
         ))
     }
@@ -156,17 +195,36 @@ impl Builder<'_> {
     /// The entrance keyword (default by shape), checked against the shape.
     fn entrance(&self, r: &RawBarrel, ctx: &str, is_box: bool) -> R<(String, culvert::Entrance)> {
         let fits = |e: &culvert::Entrance| e.for_box == is_box;
-        let words = || culvert::ENTRANCES.iter().filter(|e| fits(&e.1)).map(|e| e.0);
+        let words = || {
+            culvert::ENTRANCES
+                .iter()
+                .filter(|e| fits(&e.1))
+                .map(|e| e.0)
+        };
         let Some(w) = &r.entrance else {
-            let d = if is_box { "box-wingwall-30-75" } else { "concrete-square-edge" };
-            return Ok((d.to_string(), culvert::entrance(d).unwrap_or(culvert::ENTRANCES[0].1)));
+            let d = if is_box {
+                "box-wingwall-30-75"
+            } else {
+                "concrete-square-edge"
+            };
+            return Ok((
+                d.to_string(),
+                culvert::entrance(d).unwrap_or(culvert::ENTRANCES[0].1),
+            ));
         };
         let word = w.get_ref().trim().to_ascii_lowercase();
         let key = format!("{ctx}, entrance");
         match culvert::entrance(&word) {
             Some(e) if fits(&e) => Ok((word, e)),
             Some(_) => Err(self
-                .err(&w.span(), &key, format!("\"{word}\" is an entrance for a {}", if is_box { "circular pipe" } else { "box" }))
+                .err(
+                    &w.span(),
+                    &key,
+                    format!(
+                        "\"{word}\" is an entrance for a {}",
+                        if is_box { "circular pipe" } else { "box" }
+                    ),
+                )
                 .expected(words().collect::<Vec<_>>().join(" | "))),
             None => Err(self.unknown_word(
                 &w.span(),
@@ -195,7 +253,10 @@ impl Builder<'_> {
                     &rows,
                     &t.span(),
                     ctx,
-                    [(Quantity::Flow, "flow", None), (Quantity::Length, "elevation", None)],
+                    [
+                        (Quantity::Flow, "flow", None),
+                        (Quantity::Length, "elevation", None),
+                    ],
                 )?;
                 let bad = rows.len() < 2
                     || rows[0].0 < 0.0
@@ -211,7 +272,12 @@ impl Builder<'_> {
     }
 
     /// One `[[pond.failure]]` check.
-    fn failure(&self, f: &Spanned<RawFailure>, c: &StructureCtx<'_>, barrels: &[String]) -> R<FailureCheck> {
+    fn failure(
+        &self,
+        f: &Spanned<RawFailure>,
+        c: &StructureCtx<'_>,
+        barrels: &[String],
+    ) -> R<FailureCheck> {
         let r = f.get_ref();
         let ctx = format!("{}, failure", c.ctx);
         let s = self.req(&r.storm, &f.span(), &ctx, "storm", "\"100-yr\"")?;
@@ -231,17 +297,34 @@ impl Builder<'_> {
         };
         let Some(top) = c.top_ft else {
             return Err(self
-                .err(&f.span(), &ctx, "a failure check needs a top of embankment to measure freeboard from")
+                .err(
+                    &f.span(),
+                    &ctx,
+                    "a failure check needs a top of embankment to measure freeboard from",
+                )
                 .expected("`top = ...` on the pond"));
         };
-        let bl = self.req(&r.blocked, &f.span(), &ctx, "blocked", "[\"low-flow orifice\"]")?;
+        let bl = self.req(
+            &r.blocked,
+            &f.span(),
+            &ctx,
+            "blocked",
+            "[\"low-flow orifice\"]",
+        )?;
         if bl.get_ref().is_empty() {
             return Err(self
-                .err(&bl.span(), &format!("{ctx}, blocked"), "no outlet is blocked")
-                .expected("the names of the outlets (or barrels) blocked, e.g. [\"low-flow orifice\"]"));
+                .err(
+                    &bl.span(),
+                    &format!("{ctx}, blocked"),
+                    "no outlet is blocked",
+                )
+                .expected(
+                    "the names of the outlets (or barrels) blocked, e.g. [\"low-flow orifice\"]",
+                ));
         }
         let outlet_names: Vec<String> = c.outlet_names.iter().flatten().cloned().collect();
-        let (mut blocked_outlets, mut blocked_barrels, mut blocked_names) = (vec![], vec![], vec![]);
+        let (mut blocked_outlets, mut blocked_barrels, mut blocked_names) =
+            (vec![], vec![], vec![]);
         for n in bl.get_ref() {
             let w = n.get_ref().trim();
             if let Some(i) = c.outlet_names.iter().position(|x| x.as_deref() == Some(w)) {
@@ -255,7 +338,8 @@ impl Builder<'_> {
                     &format!("{ctx}, blocked"),
                     format!("no outlet or barrel of this pond is named \"{w}\""),
                     if all.is_empty() {
-                        "an outlet's `name` (this pond's outlets have none: give the outlet one)".to_string()
+                        "an outlet's `name` (this pond's outlets have none: give the outlet one)"
+                            .to_string()
                     } else {
                         format!("the `name` of an outlet or barrel: {}", quoted(&all))
                     },
@@ -270,7 +354,11 @@ impl Builder<'_> {
                 let x = self.qty(v, Quantity::Length, &format!("{ctx}, min_freeboard"))?;
                 if x < 0.0 {
                     return Err(self
-                        .err(&v.span(), &format!("{ctx}, min_freeboard"), "a negative freeboard")
+                        .err(
+                            &v.span(),
+                            &format!("{ctx}, min_freeboard"),
+                            "a negative freeboard",
+                        )
                         .expected("a freeboard of zero or more, such as \"0.5 ft\""));
                 }
                 x
@@ -282,18 +370,32 @@ impl Builder<'_> {
             None => None,
             Some(v) => self.failure_start(v, c, top, &ctx)?,
         };
-        Ok(FailureCheck { storm, blocked_outlets, blocked_barrels, blocked_names, min_freeboard_ft, start_ft })
+        Ok(FailureCheck {
+            storm,
+            blocked_outlets,
+            blocked_barrels,
+            blocked_names,
+            min_freeboard_ft,
+            start_ft,
+        })
     }
 
     /// A failure check's `start`: `"full"` (None) or an elevation in the pond.
-    fn failure_start(&self, v: &Spanned<RawValue>, c: &StructureCtx<'_>, top: f64, ctx: &str) -> R<Option<f64>> {
+    fn failure_start(
+        &self,
+        v: &Spanned<RawValue>,
+        c: &StructureCtx<'_>,
+        top: f64,
+        ctx: &str,
+    ) -> R<Option<f64>> {
         let key = format!("{ctx}, start");
         if let RawValue::Text(t) = v.get_ref() {
             let w = t.trim();
             if w.eq_ignore_ascii_case("full") {
                 return Ok(None);
             }
-            if !w.starts_with(|ch: char| ch.is_ascii_digit() || ch == '-' || ch == '.' || ch == '+') {
+            if !w.starts_with(|ch: char| ch.is_ascii_digit() || ch == '-' || ch == '.' || ch == '+')
+            {
                 return Err(self.unknown_word(
                     &v.span(),
                     &key,
@@ -307,7 +409,11 @@ impl Builder<'_> {
         let x = self.elevation(v, &key)?;
         if x < c.bottom - 1e-9 || x > top + 1e-9 {
             return Err(self
-                .err(&v.span(), &key, "the failure check's start is outside the pond")
+                .err(
+                    &v.span(),
+                    &key,
+                    "the failure check's start is outside the pond",
+                )
                 .expected("an elevation between the pond bottom and its top, or \"full\""));
         }
         Ok(Some(x))

@@ -15,6 +15,7 @@
 //! coefficients ke are from memory (HDS-5 Table C.2, not seen).
 
 use super::G_FT_PER_S2;
+use super::not_positive;
 use std::f64::consts::PI;
 
 /// Cross-section of a barrel.
@@ -88,7 +89,7 @@ impl BarrelShape {
     /// bisection for the circle (the left side falls with depth).
     pub fn critical_depth_ft(&self, q_cfs: f64) -> f64 {
         let d = self.rise_ft();
-        if !(q_cfs > 0.0) {
+        if not_positive(q_cfs) {
             return 0.0;
         }
         match *self {
@@ -158,47 +159,119 @@ pub struct Entrance {
 pub const ENTRANCES: [(&str, Entrance, &str); 9] = [
     (
         "concrete-square-edge",
-        Entrance { k: 0.0098, m: 2.0, c: 0.0398, y: 0.67, ks: -0.5, ke: 0.5, for_box: false },
+        Entrance {
+            k: 0.0098,
+            m: 2.0,
+            c: 0.0398,
+            y: 0.67,
+            ks: -0.5,
+            ke: 0.5,
+            for_box: false,
+        },
         "circular concrete, square edge with headwall",
     ),
     (
         "concrete-groove-headwall",
-        Entrance { k: 0.0018, m: 2.0, c: 0.0292, y: 0.74, ks: -0.5, ke: 0.2, for_box: false },
+        Entrance {
+            k: 0.0018,
+            m: 2.0,
+            c: 0.0292,
+            y: 0.74,
+            ks: -0.5,
+            ke: 0.2,
+            for_box: false,
+        },
         "circular concrete, groove end with headwall",
     ),
     (
         "concrete-groove-projecting",
-        Entrance { k: 0.0045, m: 2.0, c: 0.0317, y: 0.69, ks: -0.5, ke: 0.2, for_box: false },
+        Entrance {
+            k: 0.0045,
+            m: 2.0,
+            c: 0.0317,
+            y: 0.69,
+            ks: -0.5,
+            ke: 0.2,
+            for_box: false,
+        },
         "circular concrete, groove end projecting",
     ),
     (
         "metal-headwall",
-        Entrance { k: 0.0078, m: 2.0, c: 0.0379, y: 0.69, ks: -0.5, ke: 0.5, for_box: false },
+        Entrance {
+            k: 0.0078,
+            m: 2.0,
+            c: 0.0379,
+            y: 0.69,
+            ks: -0.5,
+            ke: 0.5,
+            for_box: false,
+        },
         "circular corrugated metal, headwall",
     ),
     (
         "metal-mitered",
-        Entrance { k: 0.0210, m: 1.33, c: 0.0463, y: 0.75, ks: 0.7, ke: 0.7, for_box: false },
+        Entrance {
+            k: 0.0210,
+            m: 1.33,
+            c: 0.0463,
+            y: 0.75,
+            ks: 0.7,
+            ke: 0.7,
+            for_box: false,
+        },
         "circular corrugated metal, mitered to the slope",
     ),
     (
         "metal-projecting",
-        Entrance { k: 0.0340, m: 1.50, c: 0.0553, y: 0.54, ks: -0.5, ke: 0.9, for_box: false },
+        Entrance {
+            k: 0.0340,
+            m: 1.50,
+            c: 0.0553,
+            y: 0.54,
+            ks: -0.5,
+            ke: 0.9,
+            for_box: false,
+        },
         "circular corrugated metal, projecting",
     ),
     (
         "box-wingwall-30-75",
-        Entrance { k: 0.026, m: 1.0, c: 0.0347, y: 0.81, ks: -0.5, ke: 0.4, for_box: true },
+        Entrance {
+            k: 0.026,
+            m: 1.0,
+            c: 0.0347,
+            y: 0.81,
+            ks: -0.5,
+            ke: 0.4,
+            for_box: true,
+        },
         "concrete box, wingwalls flared 30 to 75 degrees",
     ),
     (
         "box-wingwall-90-15",
-        Entrance { k: 0.061, m: 0.75, c: 0.0400, y: 0.80, ks: -0.5, ke: 0.5, for_box: true },
+        Entrance {
+            k: 0.061,
+            m: 0.75,
+            c: 0.0400,
+            y: 0.80,
+            ks: -0.5,
+            ke: 0.5,
+            for_box: true,
+        },
         "concrete box, wingwalls flared 90 or 15 degrees",
     ),
     (
         "box-wingwall-0",
-        Entrance { k: 0.061, m: 0.75, c: 0.0423, y: 0.82, ks: -0.5, ke: 0.7, for_box: true },
+        Entrance {
+            k: 0.061,
+            m: 0.75,
+            c: 0.0423,
+            y: 0.82,
+            ks: -0.5,
+            ke: 0.7,
+            for_box: true,
+        },
         "concrete box, wingwalls parallel (0 degrees)",
     ),
 ];
@@ -276,7 +349,7 @@ impl Barrel {
     /// `Hc` the specific head at critical depth (ft), D the rise (ft), A
     /// the full area (ft2), S the barrel slope.
     pub fn inlet_headwater_ft(&self, q_cfs: f64) -> f64 {
-        if !(q_cfs > 0.0) {
+        if not_positive(q_cfs) {
             return 0.0;
         }
         let d = self.shape.rise_ft();
@@ -358,7 +431,7 @@ impl Barrel {
     /// the inlet invert and at or below the tailwater (no reverse flow).
     pub fn flow_cfs(&self, stage_ft: f64, tailwater_ft: Option<f64>) -> (f64, Control) {
         let depth = stage_ft - self.inlet_invert_ft;
-        if !(depth > 0.0) || tailwater_ft.is_some_and(|t| stage_ft <= t) || !self.valid() {
+        if not_positive(depth) || tailwater_ft.is_some_and(|t| stage_ft <= t) || !self.valid() {
             return (0.0, Control::Dry);
         }
         let hw = |q: f64| self.headwater_ft(q, tailwater_ft).0;
@@ -436,7 +509,10 @@ mod tests {
         for x in [UNSUBMERGED_MAX, SUBMERGED_MIN] {
             let below = b.inlet_headwater_ft(scale * (x - 1e-9));
             let above = b.inlet_headwater_ft(scale * (x + 1e-9));
-            assert!((below - above).abs() < 1e-6, "jump at x = {x}: {below} vs {above}");
+            assert!(
+                (below - above).abs() < 1e-6,
+                "jump at x = {x}: {below} vs {above}"
+            );
         }
     }
 
@@ -457,7 +533,10 @@ mod tests {
     fn critical_depth_of_a_box_and_of_a_circle() {
         // Critical flow Q^2 T = g A^3 (elementary open-channel hydraulics; hand computation):
         // box 4 ft wide, 40 cfs: q = 10, dc = (100/32.174)^(1/3) = 1.4594 ft.
-        let bx = BarrelShape::Box { width_ft: 4.0, height_ft: 3.0 };
+        let bx = BarrelShape::Box {
+            width_ft: 4.0,
+            height_ft: 3.0,
+        };
         assert_relative_eq!(bx.critical_depth_ft(40.0), 1.4594, max_relative = 1e-4);
         // circle half full (D = 2): A = pi/2, T = 2 -> Q = sqrt(g A^3 / T) = 7.8927 cfs.
         let c = BarrelShape::Circular { diameter_ft: 2.0 };

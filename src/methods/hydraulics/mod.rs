@@ -244,6 +244,11 @@ pub(crate) fn clean(q: f64) -> f64 {
     if q > 0.0 { q } else { 0.0 }
 }
 
+/// True when `x` is NaN or not above 0 (the negation of `x > 0.0`).
+pub(crate) fn not_positive(x: f64) -> bool {
+    x.is_nan() || x <= 0.0
+}
+
 /// True when `x` is finite and strictly positive.
 fn positive(x: f64) -> bool {
     x.is_finite() && x > 0.0
@@ -525,7 +530,8 @@ impl Outlet {
             Outlet::CircularOrifice { invert_ft, .. }
             | Outlet::RectangularOrifice { invert_ft, .. }
             | Outlet::PerforatedRiser { invert_ft, .. } => *invert_ft,
-            Outlet::VaryingWeir { crest_ft, .. } | Outlet::SharpCrestedWeir { crest_ft, .. }
+            Outlet::VaryingWeir { crest_ft, .. }
+            | Outlet::SharpCrestedWeir { crest_ft, .. }
             | Outlet::VNotchWeir { crest_ft, .. }
             | Outlet::BroadCrestedWeir { crest_ft, .. }
             | Outlet::Riser { crest_ft, .. } => *crest_ft,

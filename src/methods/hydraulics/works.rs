@@ -16,6 +16,7 @@
 //! tailwater rises, so the root is unique).
 
 use super::culvert::{Barrel, Control};
+use super::not_positive;
 use super::{Outlet, solve_rising, submerged};
 
 /// The water surface downstream of a pond.
@@ -138,7 +139,7 @@ impl<'a> Works<'a> {
         f64::from(self.counts.get(i).copied().unwrap_or(1))
     }
 
-    fn into_of(&self, i: usize) -> Option<usize> {
+    fn drains_into(&self, i: usize) -> Option<usize> {
         self.into.get(i).copied().flatten()
     }
 
@@ -152,7 +153,7 @@ impl<'a> Works<'a> {
 
     /// True when some outlet drains into barrel `b`.
     pub fn barrel_has_openings(&self, b: usize) -> bool {
-        (0..self.outlets.len()).any(|i| self.into_of(i) == Some(b))
+        (0..self.outlets.len()).any(|i| self.drains_into(i) == Some(b))
     }
 
     /// Every device's flow at `stage_ft` with the tailwater at
@@ -163,7 +164,7 @@ impl<'a> Works<'a> {
         for (i, o) in self.outlets.iter().enumerate() {
             let q = if self.outlet_blocked(i) {
                 0.0
-            } else if self.into_of(i).is_some() {
+            } else if self.drains_into(i).is_some() {
                 o.flow_cfs(stage_ft)
             } else {
                 let (q, a) = submerged::flow_under_tailwater(o, stage_ft, tailwater_ft);
@@ -176,7 +177,7 @@ impl<'a> Works<'a> {
         let mut governs = Vec::with_capacity(self.barrels.len());
         for (b, barrel) in self.barrels.iter().enumerate() {
             let members: Vec<usize> = (0..self.outlets.len())
-                .filter(|&i| self.into_of(i) == Some(b))
+                .filter(|&i| self.drains_into(i) == Some(b))
                 .collect();
             let openings: f64 = members.iter().map(|&i| outlets_cfs[i]).sum();
             if self.barrel_blocked(b) || (!members.is_empty() && openings <= 0.0) {
@@ -206,7 +207,7 @@ impl<'a> Works<'a> {
             governs.push(g);
         }
         let free: f64 = (0..self.outlets.len())
-            .filter(|&i| self.into_of(i).is_none())
+            .filter(|&i| self.drains_into(i).is_none())
             .map(|i| outlets_cfs[i])
             .sum();
         let total_cfs = free + barrels_cfs.iter().sum::<f64>();
@@ -233,7 +234,7 @@ impl<'a> Works<'a> {
                         .total_cfs
                 };
                 let q_max = total(0.0);
-                if !(q_max > 0.0) || !q_max.is_finite() {
+                if not_positive(q_max) || !q_max.is_finite() {
                     return self.flows_with_tailwater(stage_ft, Some(tw.still_ft()));
                 }
                 // g(q) = q - F(TW(q)) rises from -F(TW(0)) < 0 to >= 0 at q_max
@@ -284,7 +285,11 @@ impl<'a> Works<'a> {
     /// key stages, each barrel's inlet invert and crown, and a fixed
     /// tailwater.
     pub fn key_stages_ft(&self) -> Vec<f64> {
-        let mut v: Vec<f64> = self.outlets.iter().flat_map(Outlet::key_stages_ft).collect();
+        let mut v: Vec<f64> = self
+            .outlets
+            .iter()
+            .flat_map(Outlet::key_stages_ft)
+            .collect();
         for b in self.barrels {
             v.push(b.inlet_invert_ft);
             v.push(b.inlet_invert_ft + b.shape.rise_ft());
@@ -355,7 +360,10 @@ mod tests {
         for i in 0..3000 {
             let s = 104.0 + i as f64 * 0.001;
             let q = w.total_cfs(s);
-            assert!(q >= last - 1e-9 && q - last < 0.2, "stage {s}: {last} -> {q}");
+            assert!(
+                q >= last - 1e-9 && q - last < 0.2,
+                "stage {s}: {last} -> {q}"
+            );
             last = q;
         }
     }
