@@ -307,6 +307,46 @@ pub struct Pond {
     pub max_drain_time_h: Option<f64>,
     /// Stage grid spacing for the routing table, ft.
     pub grid_step_ft: f64,
+    /// Barrels, tailwater, counts and the clogged-outlet checks.
+    pub structure: Box<Structure>,
+}
+
+/// The parts of a pond's outlet works beyond its outlets: how many of
+/// each opening, which barrel each drains into, the barrels, the
+/// tailwater, and the clogged-outlet checks.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Structure {
+    /// Identical copies of each outlet (`count`), in the outlets' order.
+    pub counts: Vec<u32>,
+    /// The barrel each outlet drains into (`into`), in the outlets' order.
+    pub into: Vec<Option<usize>>,
+    /// Barrels.
+    pub barrels: Vec<crate::methods::hydraulics::Barrel>,
+    /// Each barrel's name.
+    pub barrel_names: Vec<String>,
+    /// Each barrel's entrance keyword.
+    pub barrel_entrances: Vec<String>,
+    /// Tailwater downstream, if given.
+    pub tailwater: Option<crate::methods::hydraulics::Tailwater>,
+    /// Clogged-outlet checks.
+    pub failures: Vec<FailureCheck>,
+}
+
+/// A `[[pond.failure]]` check: a storm routed with some devices blocked.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FailureCheck {
+    /// Storm index.
+    pub storm: usize,
+    /// Blocked outlets (indices).
+    pub blocked_outlets: Vec<usize>,
+    /// Blocked barrels (indices).
+    pub blocked_barrels: Vec<usize>,
+    /// The names as written, for the reports.
+    pub blocked_names: Vec<String>,
+    /// Least freeboard to keep, ft.
+    pub min_freeboard_ft: f64,
+    /// Starting water surface, ft (None: full, at the lowest unblocked opening).
+    pub start_ft: Option<f64>,
 }
 
 /// How a pond's stage-storage relation was given.
@@ -336,6 +376,19 @@ impl StorageKind {
 pub const EMBANKMENT_WEIR_COEFFICIENT: f64 = 2.6;
 
 impl Pond {
+    /// The pond's outlet works, nothing blocked.
+    pub fn works(&self) -> crate::methods::hydraulics::Works<'_> {
+        crate::methods::hydraulics::Works {
+            outlets: &self.outlets,
+            counts: &self.structure.counts,
+            into: &self.structure.into,
+            barrels: &self.structure.barrels,
+            tailwater: self.structure.tailwater.as_ref(),
+            blocked_outlets: &[],
+            blocked_barrels: &[],
+        }
+    }
+
     /// The embankment as a broad-crested weir above `top`, if there is a top.
     pub fn embankment(&self) -> Option<crate::methods::pond::Embankment> {
         self.top_ft.map(|top| crate::methods::pond::Embankment {

@@ -323,6 +323,32 @@ pub enum Warning {
     },
     /// Anything else, worded in full.
     Note(String),
+    // -- outlet structures (barrels, tailwater, clogged-outlet checks) --
+    /// The tailwater stands above the pond's default start (its lowest
+    /// outlet's invert).
+    TailwaterAboveStart {
+        /// Pond.
+        pond: String,
+        /// Tailwater with no outflow, with its unit.
+        tailwater: String,
+        /// Start used, with its unit.
+        start: String,
+    },
+    /// A clogged-outlet check leaves less freeboard than asked (or overtops).
+    CloggedOutletFails {
+        /// Pond.
+        pond: String,
+        /// Storm.
+        storm: String,
+        /// Condition.
+        condition: String,
+        /// Blocked devices, quoted and joined.
+        blocked: String,
+        /// Freeboard left, with its unit (or why it was not routed).
+        freeboard: String,
+        /// Least freeboard asked for, with its unit.
+        min_freeboard: String,
+    },
 }
 
 impl Warning {
@@ -360,6 +386,8 @@ impl Warning {
             Warning::CoefficientUnusual { .. } => "coefficient-unusual",
             Warning::TcLong { .. } => "tc-long",
             Warning::Note(_) => "note",
+            Warning::TailwaterAboveStart { .. } => "tailwater-above-start",
+            Warning::CloggedOutletFails { .. } => "clogged-outlet-fails",
         }
     }
 }
@@ -398,11 +426,40 @@ impl fmt::Display for Warning {
             | Warning::CoefficientUnusual { .. }
             | Warning::TcLong { .. }
             | Warning::Note(_) => self.fmt_input(f),
+            Warning::TailwaterAboveStart { .. } | Warning::CloggedOutletFails { .. } => {
+                self.fmt_structure(f)
+            }
         }
     }
 }
 
 impl Warning {
+    /// Outlet structures: tailwater and the clogged-outlet checks.
+    fn fmt_structure(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Warning::TailwaterAboveStart {
+                pond,
+                tailwater,
+                start,
+            } => write!(
+                f,
+                "pond \"{pond}\": the tailwater ({tailwater} with no outflow) stands above the pond's start at its lowest outlet ({start}); the routing starts at {start} - if water stands in the pond up to the tailwater between storms, set the pond's `start` to it (a start above the bottom leaves the storage below it out of use)"
+            ),
+            Warning::CloggedOutletFails {
+                pond,
+                storm,
+                condition,
+                blocked,
+                freeboard,
+                min_freeboard,
+            } => write!(
+                f,
+                "pond \"{pond}\" ({condition}, {storm}) with {blocked} blocked: {freeboard} of freeboard left, less than the {min_freeboard} asked for - enlarge the other outlets or the spillway, or raise the embankment"
+            ),
+            _ => Ok(()),
+        }
+    }
+
     /// Catchments: flow paths, Tc, curve numbers, the step and the TR-55 cross-check.
     fn fmt_catchment(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {

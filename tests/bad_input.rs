@@ -131,6 +131,17 @@ const CASES: &[Case] = &[
     case("duration-missing-table", Line(11), &["storm \"burst\"", "`duration`"]),
     case("inflow-times-decreasing", Line(72), &["inflow \"offsite\"", "row 3"]),
     // Ponds and outlets.
+    // Outlet structures: barrels, tailwater, clogged-outlet checks (issue 13).
+    case("barrel-unknown-into", LineCol(68, 8), &["outlet 1 (\"low-flow orifice\"), into", "no barrel", "did you mean \"outlet pipe\""]),
+    case("barrel-entrance-unknown", LineCol(80, 12), &["barrel \"outlet pipe\", entrance", "did you mean \"concrete-square-edge\""]),
+    case("barrel-entrance-for-box", LineCol(80, 12), &["entrance", "is an entrance for a box", "concrete-square-edge"]),
+    case("barrel-no-slope", LineCol(75, 1), &["barrel \"outlet pipe\"", "slope or its outlet invert"]),
+    case("failure-unknown-blocked", LineCol(84, 12), &["failure, blocked", "\"low flow orifice\"", "did you mean \"low-flow orifice\""]),
+    case("failure-unknown-storm", LineCol(83, 9), &["failure, storm", "did you mean \"10-yr\""]),
+    case("failure-start-word", LineCol(85, 9), &["failure, start", "did you mean \"full\""]),
+    case("tailwater-table-falling", LineCol(62, 13), &["pond \"Pond A\", tailwater", "elevations never falling"]),
+    case("perforated-form-unknown", LineCol(69, 8), &["outlet 1, form", "did you mean \"slot\""]),
+    case("outlet-count-zero", LineCol(67, 9), &["outlet 1, count", "a whole number from 1"]),
     case("stage-out-of-order", LineCol(59, 14), &["pond \"Pond A\", stage_area", "row 3", "increase"]),
     case("stage-area-negative", LineCol(59, 14), &["pond \"Pond A\", stage_area", "row 2", "negative"]),
     case("stage-volume-negative", LineCol(59, 16), &["pond \"Pond A\", stage_volume", "row 2", "negative"]),

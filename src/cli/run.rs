@@ -512,6 +512,7 @@ fn write_plots(
                     );
                     references.push((format!("{label} {}", kind_word(d)), o.length(d.lowest_ft())));
                 }
+                references.extend(structure_references(pond, o));
                 if let Some(t) = pond.top_ft {
                     references.push(("top of embankment".to_string(), o.length(t)));
                 }
@@ -564,6 +565,29 @@ fn write_plots(
         .collect()
 }
 
+/// Reference lines of a pond plot for its outlet structure: each barrel's
+/// inlet invert and the tailwater (fixed, or with no outflow).
+fn structure_references(pond: &crate::model::Pond, o: summary::Out) -> Vec<(String, f64)> {
+    let st = &pond.structure;
+    let mut v: Vec<(String, f64)> = st
+        .barrels
+        .iter()
+        .zip(&st.barrel_names)
+        .map(|(b, n)| (format!("barrel \"{n}\" inlet"), o.length(b.inlet_invert_ft)))
+        .collect();
+    match &st.tailwater {
+        Some(crate::methods::hydraulics::Tailwater::Fixed(x)) => {
+            v.push(("tailwater".to_string(), o.length(*x)))
+        }
+        Some(t) => v.push((
+            "tailwater at no outflow".to_string(),
+            o.length(t.still_ft()),
+        )),
+        None => {}
+    }
+    v
+}
+
 fn kind_word(d: &crate::methods::hydraulics::Outlet) -> &'static str {
     use crate::methods::hydraulics::Outlet as D;
     match d {
@@ -574,6 +598,8 @@ fn kind_word(d: &crate::methods::hydraulics::Outlet) -> &'static str {
         D::BroadCrestedWeir { .. } => "spillway crest",
         D::Riser { .. } => "riser rim",
         D::Rating { .. } => "rating start",
+        D::PerforatedRiser { .. } => "lowest row of holes",
+        D::VaryingWeir { .. } => "weir crest",
     }
 }
 

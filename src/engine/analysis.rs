@@ -152,12 +152,18 @@ pub struct Analysis {
     pub warnings: Vec<Warning>,
     /// The study's network the storms were run on.
     pub topology: Topology,
+    /// Every device's flow at each pond's routed peak.
+    pub device_peaks: Vec<crate::engine::structure::DevicePeak>,
+    /// Clogged-outlet checks (`[[pond.failure]]`).
+    pub failures: Vec<crate::engine::structure::FailureResult>,
 }
 
 impl Analysis {
     /// Whether any limit failed or a pond overtopped.
     pub fn any_failure(&self) -> bool {
-        self.comparisons.iter().any(|c| !c.pass) || self.pond_checks.iter().any(|c| !c.pass)
+        self.comparisons.iter().any(|c| !c.pass)
+            || self.pond_checks.iter().any(|c| !c.pass)
+            || self.failures.iter().any(|f| !f.pass)
     }
 }
 
@@ -508,6 +514,11 @@ pub fn finish_on(study: &Study, topology: &Topology, storms: Vec<StormResult>) -
             }
         }
     }
+    let device_peaks = crate::engine::structure::device_peaks(study, &storms);
+    let failures = crate::engine::structure::failure_checks(study, &storms);
+    warnings.extend(crate::engine::structure::structure_warnings(
+        study, &failures,
+    ));
     Analysis {
         storms,
         comparisons,
@@ -515,6 +526,8 @@ pub fn finish_on(study: &Study, topology: &Topology, storms: Vec<StormResult>) -
         graphical,
         warnings,
         topology: topology.clone(),
+        device_peaks,
+        failures,
     }
 }
 

@@ -11,5 +11,6 @@ pub mod catchment_timing;
 pub mod network;
 pub mod records;
 pub mod sizing;
+pub mod structure;
 pub mod topology;
 pub mod walk;

@@ -185,18 +185,8 @@ pub fn volume_from_sum_ft3(sum_cfs: f64, flow_cfs: &[f64], step_h: f64) -> f64 {
 /// The starting stage of a pond: `start`, else the lowest outlet, else the bottom.
 pub fn start_stage_ft(p: &Pond) -> f64 {
     let bottom = p.storage.bottom_ft();
-    p.start_ft.unwrap_or_else(|| {
-        p.outlets
-            .iter()
-            .map(|o| o.lowest_ft())
-            .fold(f64::INFINITY, f64::min)
-            .max(bottom)
-            .min(if p.outlets.is_empty() {
-                bottom
-            } else {
-                f64::INFINITY
-            })
-    })
+    p.start_ft
+        .unwrap_or_else(|| p.works().lowest_ft().map_or(bottom, |l| l.max(bottom)))
 }
 
 /// Adds `src` shifted later by `lag_h` into `dst` (linear interpolation
@@ -682,9 +672,9 @@ pub fn pond_table_to(
     dt_s: f64,
     max_storage_ft3: f64,
 ) -> Result<PondTable, pond::PondError> {
-    PondTable::build(
+    PondTable::build_works(
         &p.storage,
-        &p.outlets,
+        &p.works(),
         p.embankment().as_ref(),
         dt_s,
         p.grid_step_ft,
@@ -719,24 +709,18 @@ pub fn rating_rows(p: &Pond) -> Vec<(f64, f64, f64)> {
         stages.push(s);
         s += step;
     }
-    for o in &p.outlets {
-        stages.extend(
-            o.key_stages_ft()
-                .into_iter()
-                .filter(|k| *k >= bottom && *k <= top),
-        );
-    }
+    let works = p.works();
+    stages.extend(
+        works
+            .key_stages_ft()
+            .into_iter()
+            .filter(|k| *k >= bottom && *k <= top),
+    );
     stages.push(top);
     stages.sort_by(f64::total_cmp);
     stages.dedup_by(|a, b| (*a - *b).abs() < 1e-6);
     stages
         .into_iter()
-        .map(|h| {
-            (
-                h,
-                p.storage.volume_ft3(h),
-                crate::methods::hydraulics::total_flow_cfs(&p.outlets, h),
-            )
-        })
+        .map(|h| (h, p.storage.volume_ft3(h), works.total_cfs(h)))
         .collect()
 }

@@ -4,7 +4,6 @@
 //! design points, the catchment worksheet, the event table, the ponds, any
 //! sizing and long-record results, the plots and the warnings.
 
-use crate::engine::network;
 use crate::model::{EMBANKMENT_WEIR_COEFFICIENT, ElementKind, Kind, Pond, Study};
 use crate::report::summary::{CatchmentOut, ComparisonKind, Out, Summary};
 use crate::report::table::{Column, Table};
@@ -87,7 +86,32 @@ fn escaped(s: &Summary) -> Summary {
         e(&mut g.catchment);
         e(&mut g.storm);
     }
+    escape_structures(&mut s);
     s
+}
+
+/// [`escaped`] for the outlet-structure parts of the summary.
+fn escape_structures(s: &mut Summary) {
+    let e = |x: &mut String| *x = cell(x);
+    for st in &mut s.structures {
+        e(&mut st.pond);
+        for d in &mut st.devices {
+            e(&mut d.label);
+            e(&mut d.description);
+            d.into.iter_mut().for_each(e);
+        }
+    }
+    for d in &mut s.device_peaks {
+        e(&mut d.pond);
+        e(&mut d.storm);
+        e(&mut d.condition);
+    }
+    for f in &mut s.failure_checks {
+        e(&mut f.pond);
+        e(&mut f.storm);
+        e(&mut f.condition);
+        f.blocked.iter_mut().for_each(e);
+    }
 }
 
 /// The scenario's output unit labels, for table headers.
@@ -563,8 +587,9 @@ fn pond(m: &mut String, s: &Summary, name: &str, p: &Pond, o: Out, u: &Units) {
     );
     let _ = writeln!(
         m,
-        "Storage from {}; outlets in parallel with a free outfall (no tailwater); routed by storage-indication (modified Puls) on a {} {lu} stage grid.{} {DRAIN_TIME_DEFINITION}\n",
+        "Storage from {}; {}; routed by storage-indication (modified Puls) on a {} {lu} stage grid.{} {DRAIN_TIME_DEFINITION}\n",
         p.storage_kind.describe(),
+        crate::report::structure::structure_sentence(p, o),
         f(o.length(p.grid_step_ft), 3),
         match p.top_ft {
             Some(t) => format!(
@@ -596,16 +621,7 @@ fn pond(m: &mut String, s: &Summary, name: &str, p: &Pond, o: Out, u: &Units) {
     }
     m.push_str(&t.markdown());
     let _ = writeln!(m);
-    let mut t = Table::new(vec![
-        Column::quantity("stage", lu),
-        Column::quantity("storage", u.volume),
-        Column::quantity("outflow", u.flow),
-    ]);
-    for (h, v, q) in network::rating_rows(p) {
-        t.row([f(o.length(h), 2), sig(o.volume(v), 5), sig(o.flow(q), 4)]);
-    }
-    m.push_str(&t.markdown());
-    let _ = writeln!(m);
+    crate::report::structure::markdown_rating(m, s, &cell(name), o);
     let mut t = Table::new(vec![
         Column::text("storm"),
         Column::text("condition"),
@@ -653,6 +669,7 @@ fn pond(m: &mut String, s: &Summary, name: &str, p: &Pond, o: Out, u: &Units) {
     }
     m.push_str(&t.markdown());
     let _ = writeln!(m);
+    crate::report::structure::markdown_peaks_and_failures(m, s, &escaped_name, o);
 }
 
 /// The sized outlet dimensions and why any range is infeasible.
@@ -820,6 +837,43 @@ pub fn describe_outlet(d: &crate::methods::hydraulics::Outlet, o: Out) -> String
                 .first()
                 .map(|r| f(o.length(r.0), 2))
                 .unwrap_or_default()
+        ),
+        D::PerforatedRiser {
+            invert_ft,
+            height_ft,
+            area_ft2,
+            cd,
+            form,
+        } => format!(
+            "perforated riser, {} {lu}2 of holes over {} {lu} from {} {lu}, Cd {}, {}",
+            f(o.length(o.length(*area_ft2)), 3),
+            l(*height_ft),
+            f(o.length(*invert_ft), 2),
+            f(*cd, 2),
+            match form {
+                crate::methods::hydraulics::Perforation::Slot => "continuous-slot form",
+                crate::methods::hydraulics::Perforation::Approximation =>
+                    "closed-form approximation",
+            }
+        ),
+        D::VaryingWeir {
+            crest_ft,
+            length_ft,
+            coefficients,
+            contractions,
+        } => format!(
+            "weir {} {lu} long, crest {} {lu}, C from {} to {} over {} heads, {contractions} end contraction(s)",
+            l(*length_ft),
+            f(o.length(*crest_ft), 2),
+            f(
+                o.weir_coefficient(coefficients.first().map_or(0.0, |r| r.1)),
+                2
+            ),
+            f(
+                o.weir_coefficient(coefficients.last().map_or(0.0, |r| r.1)),
+                2
+            ),
+            coefficients.len()
         ),
     }
 }

@@ -414,6 +414,13 @@ pub struct Summary {
     pub warning_details: Vec<WarningOut>,
     /// Provenance.
     pub provenance: ProvenanceOut,
+    /// Each pond's outlet structure and its rating, one column per device.
+    pub structures: Vec<crate::report::structure::StructureOut>,
+    /// Every device's flow at each pond's routed peak.
+    pub device_peaks: Vec<crate::report::structure::DevicePeakOut>,
+    /// Clogged-outlet checks.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub failure_checks: Vec<crate::report::structure::FailureOut>,
     /// Whether every limit holds and no pond overtops.
     pub all_pass: bool,
     /// The caution every report carries.
@@ -541,7 +548,8 @@ pub fn build(
 
     let all_pass = !comparisons.iter().any(ComparisonOut::fails)
         && pond_checks.iter().all(|c| c.pass)
-        && sized.iter().all(|s| s.feasible);
+        && sized.iter().all(|s| s.feasible)
+        && a.failures.iter().all(|f| f.pass);
     Summary {
         title: study.title.clone(),
         unit_system: study.units.to_string(),
@@ -583,6 +591,9 @@ pub fn build(
                 .map(|p| p.display().to_string())
                 .collect(),
         },
+        structures: crate::report::structure::structures_out(study),
+        device_peaks: crate::report::structure::device_peaks_out(study, a),
+        failure_checks: crate::report::structure::failures_out(study, a),
         all_pass,
         caution: CAUTION,
     }

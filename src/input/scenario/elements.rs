@@ -111,7 +111,7 @@ impl Builder<'_> {
                     ElementKind::Catchment(self.catchment(c.get_ref(), &c.span(), &ctx, p2_in)?)
                 }
                 RawElement::Pond(p) => {
-                    let (pond, sized) = self.pond(p.get_ref(), &p.span(), &ctx)?;
+                    let (pond, sized) = self.pond(p.get_ref(), &p.span(), &ctx, storms)?;
                     for mut s in sized {
                         s.element = element_index;
                         sizing_raw.push(s);

@@ -2,6 +2,10 @@
 //! to be sized.
 
 use super::*;
+use crate::methods::hydraulics::Perforation;
+
+/// Most identical openings (`count`) or holes one outlet may have.
+const MAX_OUTLET_COUNT: i64 = 10_000;
 
 /// The kinds of outlet a pond may have.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -13,13 +17,14 @@ pub(super) enum OutletKind {
     Spillway,
     Riser,
     Rating,
+    PerforatedRiser,
 }
 
 impl OutletKind {
     /// Every word read as an outlet kind: each kind's keyword first, then
     /// any other word for it. This table is the one list of outlet kinds:
     /// parsing, error messages and suggestions all read it.
-    pub(super) const WORDS: [(&'static str, OutletKind); 8] = [
+    pub(super) const WORDS: [(&'static str, OutletKind); 9] = [
         ("orifice", OutletKind::Orifice),
         ("rectangular-orifice", OutletKind::RectangularOrifice),
         ("weir", OutletKind::Weir),
@@ -28,6 +33,7 @@ impl OutletKind {
         ("broad-crested-weir", OutletKind::Spillway),
         ("riser", OutletKind::Riser),
         ("rating", OutletKind::Rating),
+        ("perforated-riser", OutletKind::PerforatedRiser),
     ];
 
     /// The kind a (lower-case) word names.
@@ -51,13 +57,35 @@ impl OutletKind {
     /// The keys an outlet of this kind takes besides `kind`.
     pub(super) fn keys(self) -> &'static [&'static str] {
         match self {
-            OutletKind::Orifice => &["invert", "diameter", "cd"],
-            OutletKind::RectangularOrifice => &["invert", "width", "height", "cd"],
-            OutletKind::Weir => &["crest", "length", "coefficient", "contractions"],
-            OutletKind::VNotch => &["crest", "angle", "cd"],
-            OutletKind::Spillway => &["crest", "length", "coefficient"],
-            OutletKind::Riser => &["crest", "diameter", "coefficient", "cd"],
-            OutletKind::Rating => &["table"],
+            OutletKind::Orifice => &["invert", "diameter", "cd", "count", "into"],
+            OutletKind::RectangularOrifice => &["invert", "width", "height", "cd", "count", "into"],
+            OutletKind::Weir => &[
+                "crest",
+                "length",
+                "coefficient",
+                "coefficient_table",
+                "contractions",
+                "into",
+            ],
+            OutletKind::VNotch => &["crest", "angle", "cd", "into"],
+            OutletKind::Spillway => &[
+                "crest",
+                "length",
+                "coefficient",
+                "coefficient_table",
+                "into",
+            ],
+            OutletKind::Riser => &["crest", "diameter", "coefficient", "cd", "into"],
+            OutletKind::Rating => &["table", "into"],
+            OutletKind::PerforatedRiser => &[
+                "invert",
+                "height",
+                "holes",
+                "hole_diameter",
+                "cd",
+                "form",
+                "into",
+            ],
         }
     }
 }
@@ -130,11 +158,21 @@ impl Builder<'_> {
                     }
                     None => 0,
                 };
-                Outlet::SharpCrestedWeir {
-                    crest_ft: get(SizedField::Crest, &r.crest, Quantity::Length, "103.2")?,
-                    length_ft: get(SizedField::Length, &r.length, Quantity::Length, "\"4 ft\"")?,
-                    coefficient: self.weir_coefficient(r, ctx, 3.33)?,
-                    contractions,
+                let crest_ft = get(SizedField::Crest, &r.crest, Quantity::Length, "103.2")?;
+                let length_ft = get(SizedField::Length, &r.length, Quantity::Length, "\"4 ft\"")?;
+                match self.coefficient_table(r, ctx)? {
+                    Some(coefficients) => Outlet::VaryingWeir {
+                        crest_ft,
+                        length_ft,
+                        coefficients,
+                        contractions,
+                    },
+                    None => Outlet::SharpCrestedWeir {
+                        crest_ft,
+                        length_ft,
+                        coefficient: self.weir_coefficient(r, ctx, 3.33)?,
+                        contractions,
+                    },
                 }
             }
             OutletKind::VNotch => {
@@ -156,11 +194,27 @@ impl Builder<'_> {
                     cd: self.discharge_coefficient(r, ctx, 0.58)?,
                 }
             }
-            OutletKind::Spillway => Outlet::BroadCrestedWeir {
-                crest_ft: get(SizedField::Crest, &r.crest, Quantity::Length, "105.0")?,
-                length_ft: get(SizedField::Length, &r.length, Quantity::Length, "\"20 ft\"")?,
-                coefficient: self.weir_coefficient(r, ctx, 2.6)?,
-            },
+            OutletKind::Spillway => {
+                let crest_ft = get(SizedField::Crest, &r.crest, Quantity::Length, "105.0")?;
+                let length_ft = get(SizedField::Length, &r.length, Quantity::Length, "\"20 ft\"")?;
+                match self.coefficient_table(r, ctx)? {
+                    Some(coefficients) => Outlet::VaryingWeir {
+                        crest_ft,
+                        length_ft,
+                        coefficients,
+                        contractions: 0,
+                    },
+                    None => Outlet::BroadCrestedWeir {
+                        crest_ft,
+                        length_ft,
+                        coefficient: self.weir_coefficient(r, ctx, 2.6)?,
+                    },
+                }
+            }
+            OutletKind::PerforatedRiser => {
+                let invert_ft = get(SizedField::Invert, &r.invert, Quantity::Length, "100.0")?;
+                self.perforated_riser(o, ctx, invert_ft)?
+            }
             OutletKind::Riser => Outlet::Riser {
                 crest_ft: get(SizedField::Crest, &r.crest, Quantity::Length, "104.0")?,
                 diameter_ft: get(
@@ -199,7 +253,16 @@ impl Builder<'_> {
             ));
         };
         let allowed = outlet_kind.keys();
-        let present: [(&str, Option<std::ops::Range<usize>>); 11] = [
+        let present: [(&str, Option<std::ops::Range<usize>>); 17] = [
+            ("into", r.into.as_ref().map(|x| x.span())),
+            ("count", r.count.as_ref().map(|x| x.span())),
+            ("holes", r.holes.as_ref().map(|x| x.span())),
+            ("hole_diameter", r.hole_diameter.as_ref().map(|x| x.span())),
+            ("form", r.form.as_ref().map(|x| x.span())),
+            (
+                "coefficient_table",
+                r.coefficient_table.as_ref().map(|x| x.span()),
+            ),
             ("invert", r.invert.as_ref().map(|x| x.span())),
             ("crest", r.crest.as_ref().map(|x| x.span())),
             ("diameter", r.diameter.as_ref().map(|x| x.span())),
@@ -390,5 +453,115 @@ impl Builder<'_> {
                 .expected("flows of zero or more"));
         }
         Ok(Outlet::Rating { table: rows })
+    }
+}
+
+/// The words of the perforated-riser forms.
+const PERFORATION_FORMS: [(&str, Perforation); 2] = [
+    ("slot", Perforation::Slot),
+    ("approximation", Perforation::Approximation),
+];
+
+impl Builder<'_> {
+    /// `count`: identical copies of an opening (1 when absent).
+    pub(super) fn outlet_count(&self, r: &RawOutlet, ctx: &str) -> R<u32> {
+        match &r.count {
+            None => Ok(1),
+            Some(c) if (1..=MAX_OUTLET_COUNT).contains(c.get_ref()) => Ok(*c.get_ref() as u32),
+            Some(c) => Err(self
+                .err(
+                    &c.span(),
+                    &format!("{ctx}, count"),
+                    format!("a count of {}", c.get_ref()),
+                )
+                .expected(format!("a whole number from 1 to {MAX_OUTLET_COUNT}"))),
+        }
+    }
+
+    /// `coefficient_table = [[head, C], ...]` (heads rising from 0 or more,
+    /// C positive), in US units; refused beside `coefficient`.
+    fn coefficient_table(&self, r: &RawOutlet, ctx: &str) -> R<Option<Vec<(f64, f64)>>> {
+        let Some(t) = &r.coefficient_table else {
+            return Ok(None);
+        };
+        let key = format!("{ctx}, coefficient_table");
+        if let Some(c) = &r.coefficient {
+            return Err(self
+                .err(
+                    &c.span(),
+                    &format!("{ctx}, coefficient"),
+                    "both `coefficient` and `coefficient_table` are given",
+                )
+                .expected("one of them: a fixed C, or C against head"));
+        }
+        let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
+        let cf = match self.units {
+            UnitSystem::Us => 1.0,
+            UnitSystem::Si => 1.0 / units::M_PER_FT.sqrt(),
+        };
+        let rows = self.table_rows(t, &key, lf, cf)?;
+        let bad = rows.is_empty()
+            || rows
+                .iter()
+                .any(|&(h, c)| h < 0.0 || c <= 0.0 || c / cf > MAX_WEIR_COEFFICIENT)
+            || rows.windows(2).any(|w| w[1].0 <= w[0].0);
+        if bad {
+            return Err(self
+                .err(&t.span(), &key, "the coefficient table is not a list of rising heads and positive coefficients")
+                .expected("[[head, C], ...]: heads 0 or more, strictly rising; C positive, e.g. [[0.5, 2.7], [1.5, 3.1]] (US)"));
+        }
+        Ok(Some(rows))
+    }
+
+    /// A perforated riser: `holes` of `hole_diameter` spread over `height`
+    /// above the lowest row (`invert`), `cd` (default 0.61), `form`.
+    fn perforated_riser(&self, o: &Spanned<RawOutlet>, ctx: &str, invert_ft: f64) -> R<Outlet> {
+        let r = o.get_ref();
+        let h = self.req(&r.height, &o.span(), ctx, "height", "\"2 ft\"")?;
+        let height_ft = self.positive(h, Quantity::Length, &format!("{ctx}, height"))?;
+        let d = self.req(
+            &r.hole_diameter,
+            &o.span(),
+            ctx,
+            "hole_diameter",
+            "\"1 in\"",
+        )?;
+        let hole_ft = self.positive(d, Quantity::Length, &format!("{ctx}, hole_diameter"))?;
+        let n = self.req(&r.holes, &o.span(), ctx, "holes", "24")?;
+        if !(1..=MAX_OUTLET_COUNT).contains(n.get_ref()) {
+            return Err(self
+                .err(
+                    &n.span(),
+                    &format!("{ctx}, holes"),
+                    format!("{} holes", n.get_ref()),
+                )
+                .expected(format!("a whole number from 1 to {MAX_OUTLET_COUNT}")));
+        }
+        let form = match &r.form {
+            None => Perforation::Slot,
+            Some(f) => {
+                let w = f.get_ref().trim().to_ascii_lowercase();
+                match PERFORATION_FORMS.iter().find(|x| x.0 == w) {
+                    Some(x) => x.1,
+                    None => {
+                        return Err(self.unknown_word(
+                            &f.span(),
+                            &format!("{ctx}, form"),
+                            format!("unknown perforated-riser form \"{w}\""),
+                            "slot | approximation",
+                            &w,
+                            PERFORATION_FORMS.iter().map(|x| x.0),
+                        ));
+                    }
+                }
+            }
+        };
+        Ok(Outlet::PerforatedRiser {
+            invert_ft,
+            height_ft,
+            area_ft2: *n.get_ref() as f64 * std::f64::consts::PI * hole_ft * hole_ft / 4.0,
+            cd: self.discharge_coefficient(r, ctx, 0.61)?,
+            form,
+        })
     }
 }

@@ -12,6 +12,7 @@ impl Builder<'_> {
         rp: &RawPond,
         span: &std::ops::Range<usize>,
         ctx: &str,
+        storms: &[Storm],
     ) -> R<(Pond, Vec<SizedDim>)> {
         let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
         let (storage, storage_kind, table_top) = self.pond_storage(rp, span, ctx)?;
@@ -35,10 +36,10 @@ impl Builder<'_> {
         };
         let mut outlets = Vec::new();
         let mut sized = Vec::new();
-        if rp.outlet.is_empty() {
+        if rp.outlet.is_empty() && rp.barrel.is_empty() {
             return Err(self
                 .err(span, ctx, "the pond has no outlet")
-                .expected("at least one [[pond.outlet]]"));
+                .expected("at least one [[pond.outlet]] or [[pond.barrel]]"));
         }
         let mut outlet_names: Vec<Option<String>> = Vec::new();
         for (i, o) in rp.outlet.iter().enumerate() {
@@ -119,6 +120,18 @@ impl Builder<'_> {
             Some(v) => Some(self.positive(v, Quantity::Time, &format!("{ctx}, max_drain_time"))?),
             None => None,
         };
+        let structure = self.pond_structure(
+            rp,
+            &structure::StructureCtx {
+                ctx,
+                bottom,
+                top_ft,
+                outlet_names: &outlet_names,
+                storms,
+                min_freeboard_ft,
+            },
+        )?;
+        self.tailwater_start_note(rp, &outlets, &structure, start_ft, bottom);
         let grid_step_ft = match self.units {
             UnitSystem::Us => 0.01,
             UnitSystem::Si => 0.003 / units::M_PER_FT,
@@ -135,6 +148,7 @@ impl Builder<'_> {
                 min_freeboard_ft,
                 max_drain_time_h,
                 grid_step_ft,
+                structure: Box::new(structure),
             },
             sized,
         ))
@@ -326,5 +340,40 @@ impl Builder<'_> {
             }
             None => None,
         })
+    }
+
+    /// The note when the tailwater stands above the default start (the
+    /// lowest outlet), which the pond keeps.
+    fn tailwater_start_note(
+        &mut self,
+        rp: &RawPond,
+        outlets: &[Outlet],
+        st: &Structure,
+        start_ft: Option<f64>,
+        bottom: f64,
+    ) {
+        let (Some(tw), None) = (&st.tailwater, start_ft) else {
+            return;
+        };
+        let works = crate::methods::hydraulics::Works {
+            outlets,
+            counts: &st.counts,
+            into: &st.into,
+            barrels: &st.barrels,
+            tailwater: Some(tw),
+            blocked_outlets: &[],
+            blocked_barrels: &[],
+        };
+        let start = works.lowest_ft().map_or(bottom, |l| l.max(bottom));
+        let still = tw.still_ft();
+        if still > start + 1e-9 {
+            let lf = Quantity::Length.output_factor(self.units);
+            let lu = Quantity::Length.output_unit(self.units);
+            self.warnings.push(Warning::TailwaterAboveStart {
+                pond: rp.name.get_ref().clone(),
+                tailwater: format!("{} {lu}", units::short(still * lf, 6)),
+                start: format!("{} {lu}", units::short(start * lf, 6)),
+            });
+        }
     }
 }

@@ -298,6 +298,64 @@ pub struct RawPond {
     /// Outlets.
     #[serde(default)]
     pub outlet: Vec<Spanned<RawOutlet>>,
+    /// Barrels (culverts) the outlets may drain through.
+    #[serde(default)]
+    pub barrel: Vec<Spanned<RawBarrel>>,
+    /// Water surface downstream: an elevation or a `[[flow, elevation]]` table.
+    pub tailwater: Option<Spanned<RawTailwater>>,
+    /// Clogged-outlet checks.
+    #[serde(default)]
+    pub failure: Vec<Spanned<RawFailure>>,
+}
+
+/// `tailwater = 98.5`, `"98.5 ft"` or `[[flow, elevation], ...]`.
+#[derive(Debug, Deserialize)]
+#[serde(untagged)]
+pub enum RawTailwater {
+    /// Downstream flow against elevation.
+    Table(Rows),
+    /// A fixed elevation.
+    Level(RawValue),
+}
+
+/// `[[pond.barrel]]`: a culvert pipe or box.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawBarrel {
+    /// Name, which outlets give as `into`.
+    pub name: Option<Spanned<String>>,
+    /// Diameter (circular).
+    pub diameter: Option<Spanned<RawValue>>,
+    /// Span (box).
+    pub width: Option<Spanned<RawValue>>,
+    /// Rise (box).
+    pub height: Option<Spanned<RawValue>>,
+    /// Length.
+    pub length: Option<Spanned<RawValue>>,
+    /// Inlet invert.
+    pub invert: Option<Spanned<RawValue>>,
+    /// Slope (or `outlet_invert`).
+    pub slope: Option<Spanned<RawValue>>,
+    /// Outlet invert (or `slope`).
+    pub outlet_invert: Option<Spanned<RawValue>>,
+    /// Manning n.
+    pub n: Option<Spanned<f64>>,
+    /// Entrance type keyword.
+    pub entrance: Option<Spanned<String>>,
+}
+
+/// `[[pond.failure]]`: the clogged-outlet check.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawFailure {
+    /// The storm to run.
+    pub storm: Option<Spanned<String>>,
+    /// Names of the outlets (or barrels) blocked.
+    pub blocked: Option<Spanned<Vec<Spanned<String>>>>,
+    /// Least freeboard to keep.
+    pub min_freeboard: Option<Spanned<RawValue>>,
+    /// `"full"` or a starting stage.
+    pub start: Option<Spanned<RawValue>>,
 }
 
 /// `basin = { ... }`.
@@ -346,6 +404,18 @@ pub struct RawOutlet {
     pub contractions: Option<Spanned<i64>>,
     /// Rating table.
     pub table: Option<Spanned<Rows>>,
+    /// The barrel this outlet drains into.
+    pub into: Option<Spanned<String>>,
+    /// Identical copies of the opening.
+    pub count: Option<Spanned<i64>>,
+    /// Number of holes (perforated riser).
+    pub holes: Option<Spanned<i64>>,
+    /// Hole diameter (perforated riser).
+    pub hole_diameter: Option<Spanned<RawValue>>,
+    /// Perforated-riser form: `slot` or `approximation`.
+    pub form: Option<Spanned<String>>,
+    /// Weir coefficient against head: `[[head, C], ...]`.
+    pub coefficient_table: Option<Spanned<Rows>>,
 }
 
 /// `[[inflow]]`.

@@ -19,7 +19,9 @@
 //! ft2, flow cfs, time step s. A `PondError` quotes values in the units it
 //! was given; its row numbers count from 1.
 
-use crate::methods::hydraulics::{Outlet, total_flow_cfs};
+#[cfg(test)]
+use crate::methods::hydraulics::total_flow_cfs;
+use crate::methods::hydraulics::{Outlet, Works};
 use crate::methods::stats::max_first;
 
 mod routing;

@@ -185,6 +185,32 @@ impl PondTable {
         grid_step_ft: f64,
         max_storage_ft3: f64,
     ) -> Result<Self, PondError> {
+        Self::build_works(
+            storage,
+            &Works::free(outlets),
+            embankment,
+            dt_s,
+            grid_step_ft,
+            max_storage_ft3,
+        )
+    }
+
+    /// [`PondTable::build`] for a whole outlet structure: outlets, barrels,
+    /// tailwater and blocked devices ([`Works`]); outflow at each stage is
+    /// [`Works::total_cfs`], and every stage where a device starts to flow
+    /// or changes form ([`Works::key_stages_ft`]) is a grid stage.
+    ///
+    /// # Errors
+    /// As [`PondTable::build`].
+    pub fn build_works(
+        storage: &StageStorage,
+        works: &Works<'_>,
+        embankment: Option<&Embankment>,
+        dt_s: f64,
+        grid_step_ft: f64,
+        max_storage_ft3: f64,
+    ) -> Result<Self, PondError> {
+        let outlets = works.outlets;
         check_positive("the time step (s)", dt_s)?;
         check_positive("the stage grid step (ft)", grid_step_ft)?;
         if !(max_storage_ft3.is_finite() && max_storage_ft3 >= 0.0) {
@@ -231,14 +257,15 @@ impl PondTable {
         let starts: Vec<f64> = outlets
             .iter()
             .map(Outlet::lowest_ft)
+            .chain(works.barrels.iter().map(|b| b.inlet_invert_ft))
             .chain(embankment.map(|e| e.top_ft))
             .collect();
         let refined = starts.iter().flat_map(|&h0| {
             (1..=LOW_HEAD_LEVELS).map(move |j| h0 + step * 0.5f64.powf(f64::from(j) / 2.0))
         });
-        let mut must: Vec<f64> = outlets
-            .iter()
-            .flat_map(|o| o.key_stages_ft())
+        let mut must: Vec<f64> = works
+            .key_stages_ft()
+            .into_iter()
             .chain(storage.stage_ft.iter().copied())
             .chain(embankment.map(|e| e.top_ft))
             .chain(refined)
@@ -274,7 +301,7 @@ impl PondTable {
         let mut indicator_cfs = Vec::with_capacity(rows);
         for (i, &h) in stage_ft.iter().enumerate() {
             let s = storage.volume_ft3(h);
-            let o = total_flow_cfs(outlets, h) + embankment.map_or(0.0, |e| e.flow_cfs(h));
+            let o = works.total_cfs(h) + embankment.map_or(0.0, |e| e.flow_cfs(h));
             let ind = 2.0 * s / dt_s + o;
             let rising = i == 0 || ind > indicator_cfs[i - 1];
             if !ind.is_finite() || !rising {
@@ -309,7 +336,7 @@ impl PondTable {
             indicator_cfs,
             segments,
             dt_s,
-            lowest_outlet_ft: lowest_outlet_ft(outlets),
+            lowest_outlet_ft: works.lowest_ft(),
             lowest_orifice: lowest_orifice_ft(outlets),
             top_ft: embankment.map(|e| e.top_ft),
         })

@@ -19,6 +19,14 @@
 
 use std::f64::consts::PI;
 
+pub mod culvert;
+pub mod submerged;
+pub mod works;
+
+pub use culvert::{Barrel, BarrelShape, Control, Entrance};
+pub use submerged::Perforation;
+pub use works::{DeviceFlows, Tailwater, Works};
+
 /// Acceleration of gravity, ft/s2.
 pub const G_FT_PER_S2: f64 = 32.174;
 
@@ -145,11 +153,100 @@ pub enum Outlet {
         /// The `(stage ft, flow cfs)` rows.
         table: Vec<(f64, f64)>,
     },
+    /// Perforated riser: rows of holes of total area `area_ft2` spread over
+    /// `height_ft` above the lowest row at `invert_ft`.
+    ///
+    /// # Formula
+    /// See [`submerged::perforated_riser_cfs`]: the continuous-slot form
+    /// (derived) or the closed-form approximation (McEnroe et al. 1988,
+    /// from memory).
+    PerforatedRiser {
+        /// Centre of the lowest row of holes, ft.
+        invert_ft: f64,
+        /// Height over which the holes are spread, ft.
+        height_ft: f64,
+        /// Total open area of the holes, ft2.
+        area_ft2: f64,
+        /// Orifice coefficient of the holes.
+        cd: f64,
+        /// Which form.
+        form: Perforation,
+    },
+    /// A rectangular weir or spillway whose coefficient varies with head.
+    ///
+    /// # Formula
+    /// `Q = C(H) (L - 0.1 n H) H^1.5` (Francis form, from memory), `C(H)`
+    /// interpolated linearly in the `(head ft, C US)` table and held at its
+    /// end rows; the effective length floor is that of
+    /// [`Outlet::SharpCrestedWeir`].
+    VaryingWeir {
+        /// Crest elevation, ft.
+        crest_ft: f64,
+        /// Crest length, ft.
+        length_ft: f64,
+        /// `(head ft, C ft^0.5/s)` rows, heads rising.
+        coefficients: Vec<(f64, f64)>,
+        /// End contractions, 0 to 2.
+        contractions: u8,
+    },
+}
+
+/// The `x` in `[lo, hi]` where the non-decreasing `f` reaches `target`
+/// (the largest such `x` within tolerance), by regula falsi with the
+/// Illinois modification, falling back to bisection. `f(lo) <= target <=
+/// f(hi)` is assumed; the bracket is returned clamped otherwise.
+pub fn solve_rising(f: impl Fn(f64) -> f64, target: f64, lo: f64, hi: f64) -> f64 {
+    let (mut a, mut b) = (lo, hi);
+    let (mut fa, mut fb) = (f(a) - target, f(b) - target);
+    if fa >= 0.0 {
+        return a;
+    }
+    if fb <= 0.0 {
+        return b;
+    }
+    let mut side = 0i8;
+    for i in 0..200 {
+        let x = if i % 4 == 3 {
+            0.5 * (a + b)
+        } else {
+            let x = (a * fb - b * fa) / (fb - fa);
+            if x.is_finite() && x > a && x < b {
+                x
+            } else {
+                0.5 * (a + b)
+            }
+        };
+        let fx = f(x) - target;
+        if fx <= 0.0 {
+            a = x;
+            fa = fx;
+            if side == -1 {
+                fb *= 0.5;
+            }
+            side = -1;
+        } else {
+            b = x;
+            fb = fx;
+            if side == 1 {
+                fa *= 0.5;
+            }
+            side = 1;
+        }
+        if b - a <= 1e-11 * (1.0 + b.abs()) || fa.abs() <= 1e-13 * (1.0 + target.abs()) {
+            break;
+        }
+    }
+    a
 }
 
 /// A flow with NaN and negative values mapped to 0 (`+inf` is kept).
-fn clean(q: f64) -> f64 {
+pub(crate) fn clean(q: f64) -> f64 {
     if q > 0.0 { q } else { 0.0 }
+}
+
+/// True when `x` is NaN or not above 0 (the negation of `x > 0.0`).
+pub(crate) fn not_positive(x: f64) -> bool {
+    x.is_nan() || x <= 0.0
 }
 
 /// True when `x` is finite and strictly positive.
@@ -401,6 +498,25 @@ impl Outlet {
                 cd,
             } => riser_cfs(stage_ft, *crest_ft, *diameter_ft, *weir_coefficient, *cd),
             Outlet::Rating { table } => rating_cfs(table, stage_ft),
+            Outlet::PerforatedRiser {
+                invert_ft,
+                height_ft,
+                area_ft2,
+                cd,
+                form,
+            } => submerged::perforated_riser_cfs(
+                stage_ft, *invert_ft, *height_ft, *area_ft2, *cd, *form,
+            ),
+            Outlet::VaryingWeir {
+                crest_ft,
+                length_ft,
+                coefficients,
+                contractions,
+            } => {
+                let h = stage_ft - crest_ft;
+                let c = submerged::coefficient_at(coefficients, h);
+                sharp_crested_weir_cfs(stage_ft, *crest_ft, *length_ft, c, *contractions)
+            }
         }
     }
 
@@ -412,8 +528,10 @@ impl Outlet {
     pub fn lowest_ft(&self) -> f64 {
         match self {
             Outlet::CircularOrifice { invert_ft, .. }
-            | Outlet::RectangularOrifice { invert_ft, .. } => *invert_ft,
-            Outlet::SharpCrestedWeir { crest_ft, .. }
+            | Outlet::RectangularOrifice { invert_ft, .. }
+            | Outlet::PerforatedRiser { invert_ft, .. } => *invert_ft,
+            Outlet::VaryingWeir { crest_ft, .. }
+            | Outlet::SharpCrestedWeir { crest_ft, .. }
             | Outlet::VNotchWeir { crest_ft, .. }
             | Outlet::BroadCrestedWeir { crest_ft, .. }
             | Outlet::Riser { crest_ft, .. } => *crest_ft,
@@ -473,6 +591,18 @@ impl Outlet {
                 v
             }
             Outlet::Rating { table } => table.iter().map(|&(s, _)| s).collect(),
+            Outlet::PerforatedRiser {
+                invert_ft,
+                height_ft,
+                ..
+            } => vec![*invert_ft, invert_ft + height_ft],
+            Outlet::VaryingWeir {
+                crest_ft,
+                coefficients,
+                ..
+            } => std::iter::once(*crest_ft)
+                .chain(coefficients.iter().map(|&(h, _)| crest_ft + h))
+                .collect(),
         };
         v.retain(|s| s.is_finite());
         v
