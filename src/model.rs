@@ -307,6 +307,8 @@ pub struct Pond {
     pub max_drain_time_h: Option<f64>,
     /// Stage grid spacing for the routing table, ft.
     pub grid_step_ft: f64,
+    /// Infiltration and evaporation (none by default).
+    pub losses: crate::methods::pond::PondLosses,
 }
 
 /// How a pond's stage-storage relation was given.
@@ -318,6 +320,14 @@ pub enum StorageKind {
     StageVolume,
     /// `basin` geometry (bottom, length, width, side slopes, depth).
     Basin,
+    /// Underground units alone (galleries, vaults, stone beds).
+    Underground,
+    /// A stage-area table with underground units added.
+    StageAreaAndUnderground,
+    /// A stage-volume table with underground units added.
+    StageVolumeAndUnderground,
+    /// Basin geometry with underground units added.
+    BasinAndUnderground,
 }
 
 impl StorageKind {
@@ -327,6 +337,16 @@ impl StorageKind {
             StorageKind::StageArea => "stage-area (conic frustum between rows)",
             StorageKind::StageVolume => "stage-volume",
             StorageKind::Basin => "basin geometry (stage-area, conic frustum)",
+            StorageKind::Underground => {
+                "underground (pipe galleries by circular segment, vaults, stone voids)"
+            }
+            StorageKind::StageAreaAndUnderground => {
+                "stage-area (conic frustum between rows) plus underground units"
+            }
+            StorageKind::StageVolumeAndUnderground => "stage-volume plus underground units",
+            StorageKind::BasinAndUnderground => {
+                "basin geometry (stage-area, conic frustum) plus underground units"
+            }
         }
     }
 }

@@ -561,6 +561,7 @@ fn pond(m: &mut String, s: &Summary, name: &str, p: &Pond, o: Out, u: &Units) {
             None => String::new(),
         }
     );
+    pond_storage_and_losses(m, p, o, u);
     let named = p.outlet_names.iter().any(Option::is_some);
     let mut t = Table::new(if named {
         vec![
@@ -634,6 +635,131 @@ fn pond(m: &mut String, s: &Summary, name: &str, p: &Pond, o: Out, u: &Units) {
                     format!("{pct:.4} %")
                 })
                 .unwrap_or_default(),
+        ]);
+    }
+    m.push_str(&t.markdown());
+    let _ = writeln!(m);
+    pond_infiltrated(m, s, name, p, u);
+}
+
+/// A pond's underground units and its losses, in words (nothing for an
+/// open basin that loses no water).
+fn pond_storage_and_losses(m: &mut String, p: &Pond, o: Out, u: &Units) {
+    use crate::methods::pond::Underground;
+    let lu = u.length;
+    let units = p.storage.underground_parts();
+    if !units.is_empty() {
+        let _ = writeln!(m, "Underground storage (added to any open basin):\n");
+        for (i, unit) in units.iter().enumerate() {
+            let text = match unit {
+                Underground::Gallery {
+                    invert_ft,
+                    diameter_ft,
+                    length_ft,
+                    count,
+                } => format!(
+                    "pipe gallery: {count} x {} {lu} diameter, {} {lu} long, invert {} {lu} (circular-segment volumes)",
+                    sig(o.length(*diameter_ft), 4),
+                    sig(o.length(*length_ft), 4),
+                    f(o.length(*invert_ft), 2)
+                ),
+                Underground::Vault {
+                    floor_ft,
+                    length_ft,
+                    width_ft,
+                    height_ft,
+                } => format!(
+                    "vault: {} x {} {lu}, {} {lu} high, floor {} {lu}",
+                    sig(o.length(*length_ft), 4),
+                    sig(o.length(*width_ft), 4),
+                    sig(o.length(*height_ft), 4),
+                    f(o.length(*floor_ft), 2)
+                ),
+                Underground::Stone {
+                    bottom_ft,
+                    depth_ft,
+                    area_ft2,
+                    porosity,
+                    embedded,
+                } => format!(
+                    "stone bed: {} {} in plan, {} {lu} deep, bottom {} {lu}, porosity {}{}",
+                    sig(*area_ft2 * Quantity::SectionArea.output_factor(o.0), 5),
+                    o.unit(Quantity::SectionArea),
+                    sig(o.length(*depth_ft), 4),
+                    f(o.length(*bottom_ft), 2),
+                    sig(*porosity, 3),
+                    if embedded.is_empty() {
+                        String::new()
+                    } else {
+                        "; the pipes laid in it are taken out of its voids".to_string()
+                    }
+                ),
+            };
+            let _ = writeln!(m, "{}. {text}", i + 1);
+        }
+        let _ = writeln!(m);
+    }
+    let l = &p.losses;
+    if l.infiltration_ft_per_s > 0.0 {
+        let (rate, ru) = match o.0 {
+            crate::util::units::UnitSystem::Us => (l.infiltration_ft_per_s * 3600.0 * 12.0, "in/h"),
+            crate::util::units::UnitSystem::Si => {
+                (l.infiltration_ft_per_s * 3600.0 * 304.8, "mm/h")
+            }
+        };
+        let _ = writeln!(
+            m,
+            "Infiltration at a constant {} {ru} over the {}{}; a loss beside the outlets in the routing and the mass balance.\n",
+            sig(rate, 3),
+            match l.infiltration_area {
+                crate::methods::pond::InfiltrationArea::Wetted => "water surface at each stage",
+                crate::methods::pond::InfiltrationArea::Bottom => "bottom area",
+            },
+            if units.is_empty() {
+                ""
+            } else {
+                " (and the plan area of any stone bed holding water; vaults and pipes are closed)"
+            }
+        );
+    }
+    if !l.evaporation_ft_per_day.is_empty() {
+        let du = o.unit(Quantity::Depth);
+        let list: Vec<String> = l
+            .evaporation_ft_per_day
+            .iter()
+            .map(|e| sig(o.depth(e * 12.0), 3))
+            .collect();
+        let _ = writeln!(
+            m,
+            "Evaporation from the open water surface over long records, {du} per day January to December: {}.\n",
+            list.join(", ")
+        );
+    }
+}
+
+/// The volume a pond infiltrated in each storm (nothing for a pond that
+/// does not infiltrate).
+fn pond_infiltrated(m: &mut String, s: &Summary, name: &str, p: &Pond, u: &Units) {
+    if p.losses.infiltration_ft_per_s <= 0.0 {
+        return;
+    }
+    let mut t = Table::new(vec![
+        Column::text("storm"),
+        Column::text("condition"),
+        Column::quantity("infiltrated", u.volume),
+        Column::quantity("outflow volume", u.volume),
+    ]);
+    let escaped_name = cell(name);
+    for ev in s
+        .events
+        .iter()
+        .filter(|ev| ev.kind == Kind::Pond && ev.element == escaped_name)
+    {
+        t.row([
+            ev.storm.clone(),
+            ev.condition.clone(),
+            sig(ev.infiltrated_volume.unwrap_or(0.0), 5),
+            sig(ev.volume, 5),
         ]);
     }
     m.push_str(&t.markdown());

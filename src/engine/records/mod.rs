@@ -733,8 +733,14 @@ fn route_pond(
     let inflow_ft3 = network::volume_ft3(&inflow, run.step_h);
     let clock = std::time::Instant::now();
     // The inflow's buffer becomes the stage series.
-    let (storage_first_ft3, storage_last_ft3) =
-        pond::route_stage_in_place(&table, &mut inflow, start_ft, out);
+    let evaporation = pond::evaporation_schedule(
+        run.record.start_s,
+        run.step_s,
+        inflow.len(),
+        &p.losses.evaporation_ft_per_day,
+    );
+    let (storage_first_ft3, storage_last_ft3, lost) =
+        pond::route_stage_in_place_losing(&table, &mut inflow, start_ft, out, &evaporation);
     res.timings.routing_s += clock.elapsed().as_secs_f64();
     let mut stage_ft = inflow;
     let st = run.stats(out);
@@ -789,8 +795,9 @@ fn route_pond(
         .collect();
     let outflow_ft3 = network::volume_ft3(out, run.step_h);
     let stored_ft3 = storage_last_ft3 - storage_first_ft3;
+    let lost_ft3 = lost.infiltrated_ft3 + lost.evaporated_ft3;
     let mass_balance_error = if inflow_ft3 > 0.0 {
-        (inflow_ft3 - outflow_ft3 - stored_ft3) / inflow_ft3
+        (inflow_ft3 - outflow_ft3 - lost_ft3 - stored_ft3) / inflow_ft3
     } else {
         0.0
     };
@@ -804,6 +811,7 @@ fn route_pond(
             })
             .collect(),
         mass_balance_error,
+        lost: p.losses.any().then_some(lost),
     });
     pond_balance_warnings(
         run,

@@ -21,6 +21,7 @@ mod refs;
 pub mod sized;
 mod steps;
 mod storms;
+mod underground;
 mod values;
 
 use self::{elements::RawElement, inflows::*, values::*};

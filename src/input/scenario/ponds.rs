@@ -14,7 +14,7 @@ impl Builder<'_> {
         ctx: &str,
     ) -> R<(Pond, Vec<SizedDim>)> {
         let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
-        let (storage, storage_kind, table_top) = self.pond_storage(rp, span, ctx)?;
+        let (storage, storage_kind, table_top) = self.pond_storage_all(rp, span, ctx)?;
         let bottom = storage.bottom_ft();
         let top_ft = match &rp.top {
             Some(t) => {
@@ -30,7 +30,7 @@ impl Builder<'_> {
                 }
                 Some(v)
             }
-            None if rp.basin.is_some() => table_top,
+            None if rp.basin.is_some() || !storage.has_open_basin() => table_top,
             None => None,
         };
         let mut outlets = Vec::new();
@@ -110,7 +110,7 @@ impl Builder<'_> {
         let top_length_ft = match &rp.top_length {
             Some(t) => self.positive(t, Quantity::Length, &format!("{ctx}, top_length"))?,
             None => match top_ft {
-                Some(t) => storage.area_at_ft2(t).max(1.0).sqrt(),
+                Some(t) => default_top_length_ft(&storage, t),
                 None => 0.0,
             },
         };
@@ -119,6 +119,7 @@ impl Builder<'_> {
             Some(v) => Some(self.positive(v, Quantity::Time, &format!("{ctx}, max_drain_time"))?),
             None => None,
         };
+        let losses = self.pond_losses(rp, ctx, &storage)?;
         let grid_step_ft = match self.units {
             UnitSystem::Us => 0.01,
             UnitSystem::Si => 0.003 / units::M_PER_FT,
@@ -135,6 +136,7 @@ impl Builder<'_> {
                 min_freeboard_ft,
                 max_drain_time_h,
                 grid_step_ft,
+                losses,
             },
             sized,
         ))
@@ -148,6 +150,7 @@ impl Builder<'_> {
         rp: &RawPond,
         span: &std::ops::Range<usize>,
         ctx: &str,
+        underground: bool,
     ) -> R<(StageStorage, StorageKind, Option<f64>)> {
         let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
         let af = Quantity::SectionArea.bare_factor(self.units).unwrap_or(1.0);
@@ -160,7 +163,7 @@ impl Builder<'_> {
         .iter()
         .filter(|x| **x)
         .count();
-        if given != 1 {
+        if given > 1 || (given == 0 && !underground) {
             return Err(self
                 .err(
                     span,
@@ -171,9 +174,13 @@ impl Builder<'_> {
                         "the pond's storage is given more than once"
                     },
                 )
-                .expected("exactly one of `stage_area`, `stage_volume` or `basin`"));
+                .expected(
+                    "one of `stage_area`, `stage_volume` or `basin`, or underground storage alone ([[pond.gallery]], [[pond.vault]], [[pond.stone]])",
+                ));
         }
-        Ok(if let Some(t) = &rp.stage_area {
+        Ok(if given == 0 {
+            unreachable_storage()?
+        } else if let Some(t) = &rp.stage_area {
             let rows = self.table_rows(t, &format!("{ctx}, stage_area"), lf, af)?;
             self.bounded_rows(
                 &rows,
@@ -253,6 +260,40 @@ impl Builder<'_> {
         })
     }
 
+    /// The storage of a pond: its open basin (at most one of a stage-area
+    /// table, a stage-volume table or a basin), its underground units, or
+    /// both added together; the kind in words and the top where a basin or
+    /// underground storage alone gives one (the top of the highest unit).
+    fn pond_storage_all(
+        &self,
+        rp: &RawPond,
+        span: &std::ops::Range<usize>,
+        ctx: &str,
+    ) -> R<(StageStorage, StorageKind, Option<f64>)> {
+        let underground = !(rp.gallery.is_empty() && rp.vault.is_empty() && rp.stone.is_empty());
+        if !underground {
+            return self.pond_storage(rp, span, ctx, false);
+        }
+        let units = self.underground_units(rp, ctx)?;
+        let open = rp.stage_area.is_some() || rp.stage_volume.is_some() || rp.basin.is_some();
+        if !open {
+            let s =
+                StageStorage::underground(units).map_err(|e| self.err(span, ctx, e.to_string()))?;
+            let top = s.top_ft();
+            return Ok((s, StorageKind::Underground, Some(top)));
+        }
+        let (s, kind, top) = self.pond_storage(rp, span, ctx, true)?;
+        let s = s
+            .with_underground(units)
+            .map_err(|e| self.err(span, ctx, e.to_string()))?;
+        let kind = match kind {
+            StorageKind::StageArea => StorageKind::StageAreaAndUnderground,
+            StorageKind::StageVolume => StorageKind::StageVolumeAndUnderground,
+            _ => StorageKind::BasinAndUnderground,
+        };
+        Ok((s, kind, top))
+    }
+
     /// The starting water surface (ft), between the bottom and the top.
     fn pond_start(
         &self,
@@ -327,4 +368,20 @@ impl Builder<'_> {
             None => None,
         })
     }
+}
+
+/// The default crest length (ft) of an embankment that overtops at `top_ft`:
+/// the side of a square of the pond's surface area there (at least 1 ft);
+/// for underground storage alone, of the units' plan area together.
+fn default_top_length_ft(storage: &StageStorage, top_ft: f64) -> f64 {
+    if storage.has_open_basin() {
+        return storage.area_at_ft2(top_ft).max(1.0).sqrt();
+    }
+    storage
+        .underground_parts()
+        .iter()
+        .map(crate::methods::pond::Underground::footprint_ft2)
+        .sum::<f64>()
+        .max(1.0)
+        .sqrt()
 }

@@ -298,6 +298,66 @@ pub struct RawPond {
     /// Outlets.
     #[serde(default)]
     pub outlet: Vec<Spanned<RawOutlet>>,
+    // Underground storage and losses (issues 13 and 12).
+    /// Pipe galleries.
+    #[serde(default)]
+    pub gallery: Vec<Spanned<RawGallery>>,
+    /// Vaults.
+    #[serde(default)]
+    pub vault: Vec<Spanned<RawVault>>,
+    /// Stone beds.
+    #[serde(default)]
+    pub stone: Vec<Spanned<RawStone>>,
+    /// Constant infiltration rate, e.g. "0.5 in/h".
+    pub infiltration: Option<Spanned<RawValue>>,
+    /// `"wetted"` (default) or `"bottom"`.
+    pub infiltration_area: Option<Spanned<String>>,
+    /// Open-water evaporation, 12 monthly depths per day.
+    pub evaporation: Option<Spanned<Vec<RawValue>>>,
+}
+
+/// `[[pond.gallery]]`: parallel round pipes.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawGallery {
+    /// Inside diameter.
+    pub diameter: Option<Spanned<RawValue>>,
+    /// Length of each pipe.
+    pub length: Option<Spanned<RawValue>>,
+    /// Number of pipes (default 1).
+    pub count: Option<Spanned<i64>>,
+    /// Invert elevation.
+    pub invert: Option<Spanned<RawValue>>,
+    /// The stone bed (numbered from 1) the pipes are laid in.
+    pub in_stone: Option<Spanned<i64>>,
+}
+
+/// `[[pond.vault]]`: a rectangular vault.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawVault {
+    /// Floor elevation.
+    pub floor: Option<Spanned<RawValue>>,
+    /// Inside length.
+    pub length: Option<Spanned<RawValue>>,
+    /// Inside width.
+    pub width: Option<Spanned<RawValue>>,
+    /// Inside height.
+    pub height: Option<Spanned<RawValue>>,
+}
+
+/// `[[pond.stone]]`: a stone bed.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawStone {
+    /// Bottom elevation.
+    pub bottom: Option<Spanned<RawValue>>,
+    /// Depth of stone.
+    pub depth: Option<Spanned<RawValue>>,
+    /// Plan area.
+    pub area: Option<Spanned<RawValue>>,
+    /// Void ratio, 0-1.
+    pub porosity: Option<Spanned<f64>>,
 }
 
 /// `basin = { ... }`.

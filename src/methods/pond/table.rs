@@ -66,7 +66,7 @@ pub(super) fn grid_stages(
     let mut out: Vec<f64> = (1..=fine).map(|i| bottom + i as f64 * step).collect();
     let mut h = bottom + fine as f64 * step;
     // more while rounding (or the row cap) leaves the last stage short of the bound
-    while storage.volume_ft3(h) < max_storage_ft3 {
+    while storage.volume_ft3(h) < max_storage_ft3 || (storage.is_capped() && h < end) {
         let next = if out.len() < FINE_GRID_ROWS {
             bottom + (out.len() + 1) as f64 * step
         } else {
@@ -93,6 +93,10 @@ pub(super) struct Segment {
     pub(super) d_storage_ft3: f64,
     pub(super) outflow_cfs: f64,
     pub(super) d_outflow_cfs: f64,
+    pub(super) loss_cfs: f64,
+    pub(super) d_loss_cfs: f64,
+    pub(super) surface_ft2: f64,
+    pub(super) d_surface_ft2: f64,
 }
 
 /// Stage-storage-discharge table of a pond on a fine stage grid, with the
@@ -103,6 +107,10 @@ pub struct PondTable {
     pub(super) storage_ft3: Vec<f64>,
     pub(super) outflow_cfs: Vec<f64>,
     pub(super) indicator_cfs: Vec<f64>,
+    /// Infiltration (cfs) at each row, a loss beside the outflow.
+    pub(super) loss_cfs: Vec<f64>,
+    /// Open water surface (ft2) at each row, for evaporation.
+    pub(super) surface_ft2: Vec<f64>,
     pub(super) segments: Vec<Segment>,
     pub(super) dt_s: f64,
     pub(super) lowest_outlet_ft: Option<f64>,
@@ -185,6 +193,37 @@ impl PondTable {
         grid_step_ft: f64,
         max_storage_ft3: f64,
     ) -> Result<Self, PondError> {
+        Self::build_with_losses(
+            storage,
+            outlets,
+            embankment,
+            dt_s,
+            grid_step_ft,
+            max_storage_ft3,
+            &PondLosses::default(),
+        )
+    }
+
+    /// [`PondTable::build`] for a pond that also infiltrates: the loss `L`
+    /// at each stage ([`PondLosses::infiltration_cfs`]) is tabulated beside
+    /// the outflow and enters the storage-indication value as one more
+    /// outflow term, and the open water surface is kept for evaporation.
+    ///
+    /// # Formula
+    /// `2S/dt + O + L` (cfs), the storage-indication value with the loss
+    /// (Bedient, Huber & Vieux eq. 4-13, the loss taken as outflow).
+    ///
+    /// # Errors
+    /// As [`PondTable::build`].
+    pub fn build_with_losses(
+        storage: &StageStorage,
+        outlets: &[Outlet],
+        embankment: Option<&Embankment>,
+        dt_s: f64,
+        grid_step_ft: f64,
+        max_storage_ft3: f64,
+        losses: &PondLosses,
+    ) -> Result<Self, PondError> {
         check_positive("the time step (s)", dt_s)?;
         check_positive("the stage grid step (ft)", grid_step_ft)?;
         if !(max_storage_ft3.is_finite() && max_storage_ft3 >= 0.0) {
@@ -208,16 +247,25 @@ impl PondTable {
         let bottom = storage.bottom_ft();
         let step = grid_step_ft;
         let s_bound = storage.stage_for_volume_ft(max_storage_ft3);
-        if !s_bound.is_finite() {
+        // Storage that is full below the bound (underground units alone):
+        // the grid reaches up to where the outflow alone carries any inflow.
+        let (s_bound, reach_ft3) = if s_bound.is_finite() {
+            (s_bound, max_storage_ft3)
+        } else if !storage.is_capped() {
             return Err(PondError::StorageBoundUnreachable {
                 storage_ft3: max_storage_ft3,
             });
-        }
+        } else {
+            let flow =
+                |h: f64| total_flow_cfs(outlets, h) + embankment.map_or(0.0, |e| e.flow_cfs(h));
+            let end = full_storage_grid_end_ft(storage, flow, dt_s, max_storage_ft3)?;
+            (end, storage.volume_ft3(end))
+        };
         // The grid reaches as far as the water can go and no further: an
         // embankment top above the storage bound is never reached, so it
         // does not lengthen the table.
         let end = s_bound.max(bottom + step);
-        let lattice = grid_stages(storage, bottom, step, end, max_storage_ft3)?;
+        let lattice = grid_stages(storage, bottom, step, end, reach_ft3)?;
         let last = *lattice.last().unwrap_or(&bottom);
         let n = lattice.len();
 
@@ -239,7 +287,7 @@ impl PondTable {
         let mut must: Vec<f64> = outlets
             .iter()
             .flat_map(|o| o.key_stages_ft())
-            .chain(storage.stage_ft.iter().copied())
+            .chain(storage.key_stages_ft())
             .chain(embankment.map(|e| e.top_ft))
             .chain(refined)
             .filter(|&s| s.is_finite() && s > bottom + MERGE_TOL_FT && s <= last)
@@ -272,10 +320,15 @@ impl PondTable {
         let mut storage_ft3 = Vec::with_capacity(rows);
         let mut outflow_cfs = Vec::with_capacity(rows);
         let mut indicator_cfs = Vec::with_capacity(rows);
+        let mut loss_cfs = Vec::with_capacity(rows);
+        let mut surface_ft2 = Vec::with_capacity(rows);
         for (i, &h) in stage_ft.iter().enumerate() {
             let s = storage.volume_ft3(h);
             let o = total_flow_cfs(outlets, h) + embankment.map_or(0.0, |e| e.flow_cfs(h));
-            let ind = 2.0 * s / dt_s + o;
+            let l = losses.infiltration_cfs(storage, h);
+            loss_cfs.push(l);
+            surface_ft2.push(storage.open_surface_ft2(h));
+            let ind = 2.0 * s / dt_s + o + l;
             let rising = i == 0 || ind > indicator_cfs[i - 1];
             if !ind.is_finite() || !rising {
                 return Err(PondError::IndicatorNotIncreasing {
@@ -299,6 +352,10 @@ impl PondTable {
                 d_storage_ft3: storage_ft3[i + 1] - storage_ft3[i],
                 outflow_cfs: outflow_cfs[i],
                 d_outflow_cfs: outflow_cfs[i + 1] - outflow_cfs[i],
+                loss_cfs: loss_cfs[i],
+                d_loss_cfs: loss_cfs[i + 1] - loss_cfs[i],
+                surface_ft2: surface_ft2[i],
+                d_surface_ft2: surface_ft2[i + 1] - surface_ft2[i],
             })
             .collect();
 
@@ -307,6 +364,8 @@ impl PondTable {
             storage_ft3,
             outflow_cfs,
             indicator_cfs,
+            loss_cfs,
+            surface_ft2,
             segments,
             dt_s,
             lowest_outlet_ft: lowest_outlet_ft(outlets),
@@ -327,6 +386,16 @@ impl PondTable {
     /// The storage-indication value `2S/dt + O` (cfs) of every grid row.
     pub fn indicator_cfs(&self) -> &[f64] {
         &self.indicator_cfs
+    }
+
+    /// Whether the table holds an infiltration loss.
+    pub fn infiltrates(&self) -> bool {
+        self.loss_cfs.iter().any(|&l| l > 0.0)
+    }
+
+    /// Infiltration (cfs) at every grid row (zeros for a pond without it).
+    pub fn loss_cfs(&self) -> &[f64] {
+        &self.loss_cfs
     }
 
     /// Number of grid rows (at least 2).
