@@ -287,6 +287,8 @@ pub struct SizedOut {
     pub min: f64,
     /// Range max.
     pub max: f64,
+    /// Buildable increment: `value` is a whole multiple of it.
+    pub increment: f64,
     /// The storm whose limit governs.
     pub governing_storm: Option<String>,
     /// The point or pond limit that governs.

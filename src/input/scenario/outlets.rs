@@ -90,6 +90,7 @@ impl Builder<'_> {
                         min,
                         max,
                         span: v.span(),
+                        increment: 0.0, // set by `ponds::sized_increments`
                     });
                 }
                 Ok(x)
@@ -148,6 +149,7 @@ impl Builder<'_> {
                         min,
                         max,
                         span: angle_span,
+                        increment: 0.0, // set by `ponds::sized_increments`
                     });
                 }
                 Outlet::VNotchWeir {

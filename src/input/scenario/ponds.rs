@@ -106,6 +106,7 @@ impl Builder<'_> {
             outlets.push(outlet);
             sized.extend(s);
         }
+        self.sized_increments(rp, ctx, &mut sized)?;
         let start_ft = self.pond_start(rp, ctx, bottom, top_ft)?;
         let top_length_ft = match &rp.top_length {
             Some(t) => self.positive(t, Quantity::Length, &format!("{ctx}, top_length"))?,
@@ -292,6 +293,83 @@ impl Builder<'_> {
             _ => StorageKind::BasinAndUnderground,
         };
         Ok((s, kind, top))
+    }
+
+    /// The buildable increment of each sized dimension of a pond: the
+    /// range's `increment`, or [`SizedField::default_increment`]; a range
+    /// must hold at least one multiple of it.
+    fn sized_increments(&self, rp: &RawPond, ctx: &str, sized: &mut [SizedDim]) -> R<()> {
+        let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
+        for d in sized.iter_mut() {
+            let Some(o) = rp.outlet.get(d.outlet) else {
+                continue;
+            };
+            let r = o.get_ref();
+            let raw = match d.field {
+                SizedField::Diameter => &r.diameter,
+                SizedField::Width => &r.width,
+                SizedField::Height => &r.height,
+                SizedField::Length => &r.length,
+                SizedField::Angle => &r.angle,
+                SizedField::Crest => &r.crest,
+                SizedField::Invert => &r.invert,
+            };
+            let label = crate::engine::sizing::outlet_label(
+                d.outlet,
+                r.name.as_ref().map(|n| n.get_ref().trim()),
+            );
+            let kctx = format!("{ctx}, {label}, {}, increment", d.field.key());
+            let given = match raw.as_ref().map(|v| (v.span(), v.get_ref())) {
+                Some((span, RawValue::Range(b))) => b.2.clone().map(|x| Spanned::new(span, x)),
+                _ => None,
+            };
+            d.increment = match &given {
+                None => d.field.default_increment(self.units),
+                Some(v) if d.field == SizedField::Angle => match v.get_ref() {
+                    RawValue::Num(x) if x.is_finite() && *x > 0.0 && *x <= 90.0 => *x,
+                    _ => {
+                        return Err(self
+                            .err(
+                                &v.span(),
+                                &kctx,
+                                format!("{} is not an angle step", show(v.get_ref())),
+                            )
+                            .expected("a number of degrees such as 5"));
+                    }
+                },
+                Some(v) => self.positive(v, Quantity::Length, &kctx)?,
+            };
+            let inc = d.increment;
+            let first = (d.min / inc - 1e-9).ceil() * inc;
+            if first > d.max * (1.0 + 1e-12) + 1e-12 {
+                let show_v = |x: f64| {
+                    if d.field == SizedField::Angle {
+                        format!("{} deg", units::short(x, 6))
+                    } else {
+                        units::short(x / lf, 6)
+                    }
+                };
+                let span = given
+                    .as_ref()
+                    .map(|v| v.span())
+                    .or_else(|| raw.as_ref().map(|v| v.span()))
+                    .unwrap_or(o.span());
+                return Err(self
+                    .err(
+                        &span,
+                        &kctx,
+                        format!(
+                            "no multiple of the increment {} lies between the range's min {} and max {}",
+                            show_v(inc),
+                            show_v(d.min),
+                            show_v(d.max)
+                        ),
+                    )
+                    .expected("a range that holds at least one buildable size")
+                    .hint("widen the range or give a finer `increment` in it"));
+            }
+        }
+        Ok(())
     }
 
     /// The starting water surface (ft), between the bottom and the top.

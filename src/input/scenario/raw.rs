@@ -15,8 +15,9 @@ pub enum RawValue {
     Num(f64),
     /// A string such as `"8.4 ac"`.
     Text(String),
-    /// A range to be solved by sizing.
-    Range(Box<(RawValue, RawValue)>),
+    /// A range to be solved by sizing: min, max and the optional
+    /// buildable `increment`.
+    Range(Box<(RawValue, RawValue, Option<RawValue>)>),
 }
 
 impl<'de> Deserialize<'de> for RawValue {
@@ -42,19 +43,21 @@ impl<'de> Deserialize<'de> for RawValue {
             fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<RawValue, A::Error> {
                 let mut min = None;
                 let mut max = None;
+                let mut increment = None;
                 while let Some(key) = map.next_key::<String>()? {
                     match key.as_str() {
                         "min" => min = Some(map.next_value::<RawValue>()?),
                         "max" => max = Some(map.next_value::<RawValue>()?),
+                        "increment" => increment = Some(map.next_value::<RawValue>()?),
                         other => {
                             return Err(de::Error::custom(format!(
-                                "unknown key `{other}` in a range; a range is {{ min = ..., max = ... }}"
+                                "unknown key `{other}` in a range; a range is {{ min = ..., max = ..., increment = ... }} (increment optional)"
                             )));
                         }
                     }
                 }
                 match (min, max) {
-                    (Some(a), Some(b)) => Ok(RawValue::Range(Box::new((a, b)))),
+                    (Some(a), Some(b)) => Ok(RawValue::Range(Box::new((a, b, increment)))),
                     _ => Err(de::Error::custom("a range needs both `min` and `max`")),
                 }
             }
