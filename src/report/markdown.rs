@@ -710,7 +710,7 @@ fn pond_storage_and_losses(m: &mut String, p: &Pond, o: Out, u: &Units) {
         let _ = writeln!(
             m,
             "Infiltration at a constant {} {ru} over the {}{}; a loss beside the outlets in the routing and the mass balance.\n",
-            sig(rate, 3),
+            crate::util::units::short(rate, 3),
             match l.infiltration_area {
                 crate::methods::pond::InfiltrationArea::Wetted => "water surface at each stage",
                 crate::methods::pond::InfiltrationArea::Bottom => "bottom area",

@@ -509,7 +509,8 @@ fn run_record(
 struct ConditionFlows {
     /// Flow (cfs) arriving at each point.
     points: Vec<Vec<f64>>,
-    /// Runoff volume (ft3) each catchment generated over the record.
+    /// Runoff volume (ft3) each catchment generated over the record (for a
+    /// pond, less what it lost to infiltration and evaporation).
     generated_ft3: Vec<f64>,
 }
 
@@ -556,7 +557,12 @@ fn simulate_condition(
             }
             ElementKind::Pond(p) => {
                 let inflow = std::mem::take(&mut inputs[i]);
-                route_pond(run, c, i, p, inflow, &mut out, pool, res)?
+                let entry = route_pond(run, c, i, p, inflow, &mut out, pool, res)?;
+                // what the pond lost to the ground and the air never reaches a point
+                if let Some(lost) = entry.pond.as_ref().and_then(|pr| pr.lost) {
+                    flows.generated_ft3[i] = -(lost.infiltrated_ft3 + lost.evaporated_ft3);
+                }
+                entry
             }
         };
         res.elements.push(entry);

@@ -299,7 +299,6 @@ impl Builder<'_> {
     /// range's `increment`, or [`SizedField::default_increment`]; a range
     /// must hold at least one multiple of it.
     fn sized_increments(&self, rp: &RawPond, ctx: &str, sized: &mut [SizedDim]) -> R<()> {
-        let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
         for d in sized.iter_mut() {
             let Some(o) = rp.outlet.get(d.outlet) else {
                 continue;
@@ -342,13 +341,8 @@ impl Builder<'_> {
             let inc = d.increment;
             let first = (d.min / inc - 1e-9).ceil() * inc;
             if first > d.max * (1.0 + 1e-12) + 1e-12 {
-                let show_v = |x: f64| {
-                    if d.field == SizedField::Angle {
-                        format!("{} deg", units::short(x, 6))
-                    } else {
-                        units::short(x / lf, 6)
-                    }
-                };
+                let show_v =
+                    |x: f64| crate::engine::sizing::sized_value_text(self.units, d.field, x);
                 let span = given
                     .as_ref()
                     .map(|v| v.span())

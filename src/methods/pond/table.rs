@@ -325,7 +325,12 @@ impl PondTable {
         for (i, &h) in stage_ft.iter().enumerate() {
             let s = storage.volume_ft3(h);
             let o = total_flow_cfs(outlets, h) + embankment.map_or(0.0, |e| e.flow_cfs(h));
-            let l = losses.infiltration_cfs(storage, h);
+            // no more water can soak away in a step than the pond holds
+            // beyond what its outlets release: L <= 2S/dt - O, so the
+            // routing never draws the pond below empty
+            let l = losses
+                .infiltration_cfs(storage, h)
+                .min((2.0 * s / dt_s - o).max(0.0));
             loss_cfs.push(l);
             surface_ft2.push(storage.open_surface_ft2(h));
             let ind = 2.0 * s / dt_s + o + l;
