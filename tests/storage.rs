@@ -131,10 +131,12 @@ fn a_long_record_counts_infiltration_and_evaporation_in_the_mass_balance() {
     let warnings = s["warnings"].to_string();
     assert!(!warnings.contains("has not reached"), "{warnings}");
     let md = std::fs::read_to_string(d.path().join("out/summary.md")).unwrap_or_default();
-    assert!(md.contains("Water the ponds lost besides their outlets"), "{md}");
+    assert!(
+        md.contains("Water the ponds lost besides their outlets"),
+        "{md}"
+    );
     // no evaporation: nothing evaporates, more infiltrates or leaves
-    let text = std::fs::read_to_string(data("infiltration-record.toml"))
-        .unwrap_or_default();
+    let text = std::fs::read_to_string(data("infiltration-record.toml")).unwrap_or_default();
     let none = text
         .lines()
         .filter(|l| !l.starts_with("evaporation") && !l.trim_start().starts_with("\"0.23 in\""))
@@ -159,6 +161,9 @@ fn a_long_record_counts_infiltration_and_evaporation_in_the_mass_balance() {
         .find(|r| r["kind"] == "pond")
         .cloned()
         .unwrap_or_default();
-    assert!(pond2.get("evaporated_volume").is_none_or(|v| num(v) == 0.0), "{pond2}");
+    assert!(
+        pond2.get("evaporated_volume").is_none_or(|v| num(v) == 0.0),
+        "{pond2}"
+    );
     assert!(num(&pond2["mass_balance_error"]).abs() < 1e-3);
 }

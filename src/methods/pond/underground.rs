@@ -16,7 +16,7 @@ use super::{PondError, StageStorage};
 /// Circular segment, `A = r^2 acos((r - y)/r) - (r - y) sqrt(y (D - y))`,
 /// r = D/2 (elementary geometry); A ft2, D and y ft.
 pub fn circular_segment_area_ft2(d_ft: f64, y_ft: f64) -> f64 {
-    if !(d_ft > 0.0) || y_ft.is_nan() || y_ft <= 0.0 {
+    if d_ft.is_nan() || d_ft <= 0.0 || y_ft.is_nan() || y_ft <= 0.0 {
         return 0.0;
     }
     let r = 0.5 * d_ft;
