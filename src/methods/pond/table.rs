@@ -160,6 +160,31 @@ pub(super) fn lowest_orifice_ft(outlets: &[Outlet]) -> Option<(f64, f64)> {
         .min_by(|a, b| a.0.total_cmp(&b.0))
 }
 
+/// The stage (ft) the routing table must reach and the storage (ft3) it
+/// holds there: where the storage reaches `max_storage_ft3`, or, for
+/// storage that is full at its top (underground units alone), where the
+/// outflow alone carries any inflow ([`full_storage_grid_end_ft`]).
+fn grid_bound(
+    storage: &StageStorage,
+    outlets: &[Outlet],
+    embankment: Option<&Embankment>,
+    dt_s: f64,
+    max_storage_ft3: f64,
+) -> Result<(f64, f64), PondError> {
+    let s_bound = storage.stage_for_volume_ft(max_storage_ft3);
+    if s_bound.is_finite() {
+        return Ok((s_bound, max_storage_ft3));
+    }
+    if !storage.is_capped() {
+        return Err(PondError::StorageBoundUnreachable {
+            storage_ft3: max_storage_ft3,
+        });
+    }
+    let flow = |h: f64| total_flow_cfs(outlets, h) + embankment.map_or(0.0, |e| e.flow_cfs(h));
+    let end = full_storage_grid_end_ft(storage, flow, dt_s, max_storage_ft3)?;
+    Ok((end, storage.volume_ft3(end)))
+}
+
 impl PondTable {
     /// Tabulates stage, storage, outflow and `2S/dt + O` for a time step
     /// `dt_s` (s).
@@ -246,21 +271,7 @@ impl PondTable {
         }
         let bottom = storage.bottom_ft();
         let step = grid_step_ft;
-        let s_bound = storage.stage_for_volume_ft(max_storage_ft3);
-        // Storage that is full below the bound (underground units alone):
-        // the grid reaches up to where the outflow alone carries any inflow.
-        let (s_bound, reach_ft3) = if s_bound.is_finite() {
-            (s_bound, max_storage_ft3)
-        } else if !storage.is_capped() {
-            return Err(PondError::StorageBoundUnreachable {
-                storage_ft3: max_storage_ft3,
-            });
-        } else {
-            let flow =
-                |h: f64| total_flow_cfs(outlets, h) + embankment.map_or(0.0, |e| e.flow_cfs(h));
-            let end = full_storage_grid_end_ft(storage, flow, dt_s, max_storage_ft3)?;
-            (end, storage.volume_ft3(end))
-        };
+        let (s_bound, reach_ft3) = grid_bound(storage, outlets, embankment, dt_s, max_storage_ft3)?;
         // The grid reaches as far as the water can go and no further: an
         // embankment top above the storage bound is never reached, so it
         // does not lengthen the table.
