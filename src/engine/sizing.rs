@@ -647,6 +647,19 @@ fn buildable_steps(d: &SizedDim) -> (i64, i64) {
     (lo, hi.max(lo))
 }
 
+/// The buildable value `k` increments of `d` (ft or degrees), as the
+/// sized scenario writes it by hand and reads it back ("6.5 in"), so that
+/// the sized copy reproduces the run exactly; `k * increment` when that
+/// text does not read back.
+fn buildable_value(units: crate::util::units::UnitSystem, d: &SizedDim, k: i64) -> f64 {
+    use crate::input::scenario::sized::{buildable_text, read_buildable};
+    let v = k as f64 * d.increment;
+    buildable_text(units, d.field, v)
+        .and_then(|t| read_buildable(units, d.field, &t))
+        .filter(|x| (x - v).abs() <= 1e-9 * v.abs().max(1.0))
+        .unwrap_or(v)
+}
+
 /// Moves every solved value to a buildable one: a whole multiple of its
 /// increment inside its range, the largest opening that still meets every
 /// limit of its pond with the others held (each value first rounded toward
@@ -677,7 +690,7 @@ fn to_buildable(
         })
         .collect();
     for (d, &k) in dims.iter().zip(&ks) {
-        set(study, d, k as f64 * d.increment);
+        set(study, d, buildable_value(study.units, d, k));
     }
     for pass in 0..4 {
         let mut moved = false;
@@ -688,8 +701,9 @@ fn to_buildable(
             let (lo, hi) = buildable_steps(d);
             let open: i64 = if d.field.is_elevation() { -1 } else { 1 };
             let inside = |k: i64| (lo..=hi).contains(&k);
+            let units = study.units;
             let mut ok = |k: i64| {
-                set(study, d, k as f64 * d.increment);
+                set(study, d, buildable_value(units, d, k));
                 trials.feasible(study, d.element).0
             };
             let start = ks[i];
@@ -710,7 +724,7 @@ fn to_buildable(
                     k = start;
                 }
             }
-            set(study, d, k as f64 * d.increment);
+            set(study, d, buildable_value(study.units, d, k));
             if k != start {
                 moved = true;
                 ks[i] = k;
@@ -721,7 +735,7 @@ fn to_buildable(
         }
     }
     for (i, d) in dims.iter().enumerate() {
-        values[i] = ks[i] as f64 * d.increment;
+        values[i] = buildable_value(study.units, d, ks[i]);
         set(study, d, values[i]);
     }
     for (i, d) in dims.iter().enumerate() {
