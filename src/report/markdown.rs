@@ -646,6 +646,7 @@ fn pond(m: &mut String, s: &Summary, name: &str, p: &Pond, o: Out, u: &Units) {
 /// open basin that loses no water).
 fn pond_storage_and_losses(m: &mut String, p: &Pond, o: Out, u: &Units) {
     use crate::methods::pond::Underground;
+    use crate::util::units::short;
     let lu = u.length;
     let units = p.storage.underground_parts();
     if !units.is_empty() {
@@ -659,8 +660,8 @@ fn pond_storage_and_losses(m: &mut String, p: &Pond, o: Out, u: &Units) {
                     count,
                 } => format!(
                     "pipe gallery: {count} x {} {lu} diameter, {} {lu} long, invert {} {lu} (circular-segment volumes)",
-                    sig(o.length(*diameter_ft), 4),
-                    sig(o.length(*length_ft), 4),
+                    short(o.length(*diameter_ft), 4),
+                    short(o.length(*length_ft), 4),
                     f(o.length(*invert_ft), 2)
                 ),
                 Underground::Vault {
@@ -670,9 +671,9 @@ fn pond_storage_and_losses(m: &mut String, p: &Pond, o: Out, u: &Units) {
                     height_ft,
                 } => format!(
                     "vault: {} x {} {lu}, {} {lu} high, floor {} {lu}",
-                    sig(o.length(*length_ft), 4),
-                    sig(o.length(*width_ft), 4),
-                    sig(o.length(*height_ft), 4),
+                    short(o.length(*length_ft), 4),
+                    short(o.length(*width_ft), 4),
+                    short(o.length(*height_ft), 4),
                     f(o.length(*floor_ft), 2)
                 ),
                 Underground::Stone {
@@ -683,11 +684,11 @@ fn pond_storage_and_losses(m: &mut String, p: &Pond, o: Out, u: &Units) {
                     embedded,
                 } => format!(
                     "stone bed: {} {} in plan, {} {lu} deep, bottom {} {lu}, porosity {}{}",
-                    sig(*area_ft2 * Quantity::SectionArea.output_factor(o.0), 5),
+                    short(*area_ft2 * Quantity::SectionArea.output_factor(o.0), 5),
                     o.unit(Quantity::SectionArea),
-                    sig(o.length(*depth_ft), 4),
+                    short(o.length(*depth_ft), 4),
                     f(o.length(*bottom_ft), 2),
-                    sig(*porosity, 3),
+                    short(*porosity, 3),
                     if embedded.is_empty() {
                         String::new()
                     } else {
@@ -711,14 +712,19 @@ fn pond_storage_and_losses(m: &mut String, p: &Pond, o: Out, u: &Units) {
             m,
             "Infiltration at a constant {} {ru} over the {}{}; a loss beside the outlets in the routing and the mass balance.\n",
             crate::util::units::short(rate, 3),
-            match l.infiltration_area {
-                crate::methods::pond::InfiltrationArea::Wetted => "water surface at each stage",
-                crate::methods::pond::InfiltrationArea::Bottom => "bottom area",
+            match (p.storage.has_open_basin(), l.infiltration_area) {
+                (false, _) => "plan area of every stone bed holding water",
+                (true, crate::methods::pond::InfiltrationArea::Wetted) => {
+                    "water surface at each stage"
+                }
+                (true, crate::methods::pond::InfiltrationArea::Bottom) => "bottom area",
             },
-            if units.is_empty() {
-                ""
-            } else {
-                " (and the plan area of any stone bed holding water; vaults and pipes are closed)"
+            match (p.storage.has_open_basin(), units.is_empty()) {
+                (true, false) => {
+                    " (and the plan area of any stone bed holding water; vaults and pipes are closed)"
+                }
+                (false, _) => " (vaults and pipes are closed)",
+                (true, true) => "",
             }
         );
     }
@@ -774,7 +780,7 @@ fn sizing(m: &mut String, s: &Summary) {
     let _ = writeln!(m, "## Outlet sizing\n");
     let _ = writeln!(
         m,
-        "Each range was given the largest opening (for an elevation, the lowest) that keeps every downstream limit and pond limit for every storm, lowest outlet first, sweeping until no value moves by more than 0.1 %.\n"
+        "Each range was given the largest opening (for an elevation, the lowest) that keeps every downstream limit and pond limit for every storm, lowest outlet first, sweeping until no value moves by more than 0.1 %, then the largest buildable value (a whole multiple of the range's step) that still meets every limit with the storms routed again. The margin is at that value; the governing check is the one that fails one step larger.\n"
     );
     let mut t = Table::new(vec![
         Column::text("pond"),
@@ -797,7 +803,12 @@ fn sizing(m: &mut String, s: &Summary) {
             z.pond.clone(),
             crate::engine::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
             z.field.to_string(),
-            format!("{} to {} {unit}", sig(z.min, 4), sig(z.max, 4)),
+            format!(
+                "{} to {} {unit} in steps of {}",
+                sig(z.min, 4),
+                sig(z.max, 4),
+                crate::util::units::short(z.increment, 4)
+            ),
             chosen,
             z.governing_storm.clone().unwrap_or_else(|| "-".into()),
             z.governing_check.clone().unwrap_or_else(|| "-".into()),
