@@ -309,6 +309,8 @@ pub struct Pond {
     pub grid_step_ft: f64,
     /// Barrels, tailwater, counts and the clogged-outlet checks.
     pub structure: Box<Structure>,
+    /// Infiltration and evaporation (none by default).
+    pub losses: crate::methods::pond::PondLosses,
 }
 
 /// The parts of a pond's outlet works beyond its outlets: how many of
@@ -358,6 +360,14 @@ pub enum StorageKind {
     StageVolume,
     /// `basin` geometry (bottom, length, width, side slopes, depth).
     Basin,
+    /// Underground units alone (galleries, vaults, stone beds).
+    Underground,
+    /// A stage-area table with underground units added.
+    StageAreaAndUnderground,
+    /// A stage-volume table with underground units added.
+    StageVolumeAndUnderground,
+    /// Basin geometry with underground units added.
+    BasinAndUnderground,
 }
 
 impl StorageKind {
@@ -367,6 +377,16 @@ impl StorageKind {
             StorageKind::StageArea => "stage-area (conic frustum between rows)",
             StorageKind::StageVolume => "stage-volume",
             StorageKind::Basin => "basin geometry (stage-area, conic frustum)",
+            StorageKind::Underground => {
+                "underground (pipe galleries by circular segment, vaults, stone voids)"
+            }
+            StorageKind::StageAreaAndUnderground => {
+                "stage-area (conic frustum between rows) plus underground units"
+            }
+            StorageKind::StageVolumeAndUnderground => "stage-volume plus underground units",
+            StorageKind::BasinAndUnderground => {
+                "basin geometry (stage-area, conic frustum) plus underground units"
+            }
         }
     }
 }
@@ -571,4 +591,27 @@ pub struct SizedDim {
     pub max: f64,
     /// Byte span of the range in the scenario, for the sized copy.
     pub span: std::ops::Range<usize>,
+    /// Buildable increment, internal units (ft or degrees): the value
+    /// chosen is a whole multiple of it. Filled by `scenario::ponds` from
+    /// the range's `increment` or [`SizedField::default_increment`].
+    pub increment: f64,
+}
+
+impl SizedField {
+    /// The default buildable increment (ft, or degrees for an angle):
+    /// diameters 0.5 in (10 mm), widths, heights and lengths 0.1 ft
+    /// (25 mm), elevations 0.05 ft (10 mm), angles 5 degrees.
+    pub fn default_increment(self, units: crate::util::units::UnitSystem) -> f64 {
+        use crate::util::units::{M_PER_FT, UnitSystem};
+        let si = |mm: f64| mm / 1000.0 / M_PER_FT;
+        match (self, units) {
+            (SizedField::Angle, _) => 5.0,
+            (SizedField::Diameter, UnitSystem::Us) => 0.5 / 12.0,
+            (SizedField::Diameter, UnitSystem::Si) => si(10.0),
+            (SizedField::Crest | SizedField::Invert, UnitSystem::Us) => 0.05,
+            (SizedField::Crest | SizedField::Invert, UnitSystem::Si) => si(10.0),
+            (_, UnitSystem::Us) => 0.1,
+            (_, UnitSystem::Si) => si(25.0),
+        }
+    }
 }

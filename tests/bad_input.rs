@@ -195,6 +195,15 @@ const CASES: &[Case] = &[
     case("stage-huge", LineCol(59, 14), &["pond \"Pond A\", stage_area", "row 3", "stage", "far beyond"]),
     // Ponds (issue 10, item 5).
     case("start-above-top", LineCol(61, 9), &["pond \"Pond A\", start", "105 is above the top of embankment 104"]),
+    // Underground storage, pond losses and buildable increments (issues 13 and 12).
+    case("pond-no-storage", LineCol(56, 1), &["pond \"Pond A\"", "no storage", "[[pond.gallery]]"]),
+    case("stone-porosity-percent", LineCol(67, 12), &["stone bed 1, porosity", "40 % is 0.4"]),
+    case("gallery-in-missing-stone", LineCol(68, 12), &["gallery 1, in_stone", "no stone bed 2"]),
+    case("infiltration-area-typo", LineCol(62, 21), &["infiltration_area", "did you mean \"bottom\""]),
+    case("infiltration-no-time-unit", LineCol(61, 16), &["pond \"Pond A\", infiltration", "no time unit", "in/h"]),
+    case("evaporation-eleven-months", LineCol(61, 15), &["evaporation", "11 values", "12 depths per day"]),
+    case("infiltration-vault-only", LineCol(60, 16), &["infiltration", "no area to infiltrate", "vaults and pipe galleries are closed"]),
+    case("range-increment-no-multiple", LineCol(66, 12), &["outlet 1, diameter, increment", "no multiple", "0.5000 in", "finer `increment`"]),
 ];
 
 fn root() -> PathBuf {

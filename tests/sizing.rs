@@ -17,8 +17,83 @@ fn orifice_sizing_recovers_the_closed_form_diameter() {
     let (code, s, _d) = run_scenario(&data("sizing-closed-form.toml"));
     assert_eq!(code, 0);
     let d = num(&s["sized"][0]["value"]);
-    assert!((d - lo).abs() / lo < 0.005, "{d} vs {lo}");
+    // The buildable answer: the largest multiple of the default increment
+    // (0.5 in) at or below the closed-form diameter.
+    let inc = 0.5 / 12.0;
+    assert!((num(&s["sized"][0]["increment"]) - inc).abs() < 1e-12);
+    let buildable = (lo / inc).floor() * inc;
+    assert!(
+        (d - buildable).abs() < 1e-9,
+        "{d} vs {buildable} (closed form {lo})"
+    );
+    assert!(d <= lo && lo < d + inc, "{d} {lo}");
     assert_eq!(s["sized"][0]["governing_storm"], "dry");
+    // the margin at that value: (limit - peak) / limit with the orifice flow there
+    let margin = num(&s["sized"][0]["margin"]);
+    let q_at = f(d) + q;
+    assert!(
+        (margin - (q - q_at) / q).abs() < 0.002,
+        "{margin} vs {}",
+        (q - q_at) / q
+    );
+}
+
+#[test]
+fn an_increment_in_the_range_gives_multiples_of_it_and_one_more_breaks_the_limit() {
+    // Buildable sizes (issue 13): the value is a multiple of the range's
+    // increment, the sized scenario run again meets every limit, and one
+    // increment more breaks it (Q = Cd A sqrt(2 g h) grows with d).
+    let text = std::fs::read_to_string(data("sizing-closed-form.toml"))
+        .unwrap_or_default()
+        .replace(
+            "diameter = { min = \"1 in\", max = \"36 in\" }",
+            "diameter = { min = \"1 in\", max = \"36 in\", increment = \"1 in\" }",
+        );
+    assert!(text.contains("increment"));
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let p = dir.path().join("inc.toml");
+    std::fs::write(&p, &text).unwrap_or_else(|e| panic!("{e}"));
+    let (code, s, d2) = run_scenario(&p);
+    assert_eq!(code, 0, "{s}");
+    let z = &s["sized"][0];
+    let v = num(&z["value"]) * 12.0;
+    assert!((v - v.round()).abs() < 1e-9, "{v} in is not a whole inch");
+    assert!((num(&z["increment"]) * 12.0 - 1.0).abs() < 1e-12);
+    let sized = d2.path().join("out/sized-scenario.toml");
+    let (code2, s2, _) = run_scenario(&sized);
+    assert_eq!(code2, 0, "the sized scenario fails a limit: {s2}");
+    let more = std::fs::read_to_string(&sized)
+        .unwrap_or_default()
+        .lines()
+        .map(|l| {
+            if l.trim_start().starts_with("diameter =") {
+                format!("diameter = \"{} in\"", v + 1.0)
+            } else {
+                l.to_string()
+            }
+        })
+        .collect::<Vec<_>>()
+        .join("\n");
+    let p3 = dir.path().join("more.toml");
+    std::fs::write(&p3, more).unwrap_or_else(|e| panic!("{e}"));
+    let (code3, _, _) = run_scenario(&p3);
+    assert_eq!(code3, 1, "one inch more still meets the limit");
+}
+
+#[test]
+fn a_range_without_a_buildable_size_is_refused() {
+    let text = std::fs::read_to_string(data("sizing-closed-form.toml"))
+        .unwrap_or_default()
+        .replace(
+            "diameter = { min = \"1 in\", max = \"36 in\" }",
+            "diameter = { min = \"6.1 in\", max = \"6.4 in\" }",
+        );
+    let (code, _, out, err) = run_text(&text);
+    assert_eq!(code, 2, "{out}{err}");
+    assert!(
+        err.contains("increment") && err.contains("no multiple") && err.contains("tank"),
+        "{err}"
+    );
 }
 
 /// Replaces the value of `key` (the first `key = "... ft"` line after the
@@ -72,19 +147,22 @@ fn sized_values_are_maximal_and_the_sized_scenario_reproduces_the_run() {
     {
         assert!((num(&a["peak"]) - num(&b["peak"])).abs() <= 1e-6 * num(&a["peak"]).max(1.0));
     }
-    // 2 % more of each size (unless at its range's max) breaks a limit.
+    // Each value is a multiple of its increment, and one increment more
+    // (unless past its range's max) breaks a limit.
     for (k, z) in s["sized"].as_array().into_iter().flatten().enumerate() {
-        if (num(&z["value"]) - num(&z["max"])).abs() < 1e-9 {
+        let (v, inc) = (num(&z["value"]), num(&z["increment"]));
+        assert!(((v / inc) - (v / inc).round()).abs() < 1e-9, "{v} / {inc}");
+        if v + inc > num(&z["max"]) + 1e-9 {
             continue;
         }
         let key = z["field"].as_str().unwrap_or("");
-        let bigger = scale_value(&text, key, k, 1.02);
+        let bigger = scale_value(&text, key, k, (v + inc) / v);
         let p = dir.path().join(format!("out/bigger-{k}.toml"));
         std::fs::write(&p, bigger).unwrap_or_else(|e| panic!("{e}"));
         let (code3, s3, _d3) = run_scenario(&p);
         assert_eq!(
             code3, 1,
-            "outlet {k} {key} 2 % larger still meets every limit"
+            "outlet {k} {key} one increment larger still meets every limit"
         );
         assert!(
             s3["comparisons"]
@@ -209,11 +287,11 @@ fn the_sized_answer_does_not_depend_on_the_range_maximum() {
     for v in &found {
         assert!((v - found[0]).abs() <= 0.001 * found[0], "{found:?}");
     }
-    // The answer is maximal: 1 % more breaks the limit (checked on a fixed
-    // diameter).
+    // The answer is maximal: one increment (0.5 in) more breaks the limit
+    // (checked on a fixed diameter).
     let bigger = base.replace(
         "diameter = { min = \"2 in\", max = \"48 in\" }",
-        &format!("diameter = \"{} ft\"", found[0] * 1.01),
+        &format!("diameter = \"{} ft\"", found[0] + 0.5 / 12.0),
     );
     let (code, s, _, _) = run_text(&bigger);
     assert_eq!(code, 1, "{s}");

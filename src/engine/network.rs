@@ -147,6 +147,8 @@ pub struct PondResult {
     pub stage_ft: Vec<f64>,
     /// Storage above the lowest stage, ft3.
     pub storage_ft3: Vec<f64>,
+    /// Infiltration, cfs (empty for a pond that does not infiltrate).
+    pub infiltration_cfs: Vec<f64>,
     /// Peaks, volumes, freeboard, drain time.
     pub summary: PondSummary,
     /// Start stage, ft.
@@ -355,6 +357,7 @@ pub fn simulate_storm_on(
                 p.inflow_cfs.truncate(keep);
                 p.stage_ft.truncate(keep);
                 p.storage_ft3.truncate(keep);
+                p.infiltration_cfs.truncate(keep);
             }
         }
         for p in &mut r.points {
@@ -377,6 +380,7 @@ pub fn simulate_storm_on(
                     outflow_cfs: std::mem::take(&mut e_out),
                     stage_ft: std::mem::take(&mut pr.stage_ft),
                     storage_ft3: std::mem::take(&mut pr.storage_ft3),
+                    infiltration_cfs: std::mem::take(&mut pr.infiltration_cfs),
                 };
                 pr.summary = pond::summarize_series(
                     &pr.inflow_cfs,
@@ -389,6 +393,7 @@ pub fn simulate_storm_on(
                 e_out = routed.outflow_cfs;
                 pr.stage_ft = routed.stage_ft;
                 pr.storage_ft3 = routed.storage_ft3;
+                pr.infiltration_cfs = routed.infiltration_cfs;
             }
             er.outflow_cfs = e_out;
         }
@@ -634,6 +639,7 @@ pub fn route_pond(
             inflow_cfs: inflow,
             stage_ft: routed.stage_ft,
             storage_ft3: routed.storage_ft3,
+            infiltration_cfs: routed.infiltration_cfs,
             summary,
             start_ft: start,
         }),
@@ -679,6 +685,7 @@ pub fn pond_table_to(
         dt_s,
         p.grid_step_ft,
         max_storage_ft3,
+        &p.losses,
     )
 }
 

@@ -18,7 +18,9 @@
 //! taken, so that a later dimension can mend the rest; a pond whose limits
 //! still fail at the end is searched again dimension by dimension, and
 //! reported infeasible, naming the limits that fail at every size, when
-//! none meets them.
+//! none meets them. Last, every value is moved to a buildable one, a whole
+//! multiple of its range's `increment` (defaults by kind of dimension): the
+//! largest opening that still meets every limit after routing again.
 
 use crate::engine::analysis;
 use crate::engine::network::{self, StormResult};
@@ -529,7 +531,8 @@ pub fn solve(study: &mut Study) -> Result<Sizing, Error> {
         conditions,
     };
     let mut values = sweep(study, &trials, &dims);
-    let infeasible = mend_failing_ponds(study, &trials, &dims, &mut values);
+    let mut infeasible = mend_failing_ponds(study, &trials, &dims, &mut values);
+    to_buildable(study, &trials, &dims, &mut values, &mut infeasible);
     let outputs = sized_outputs(study, &trials, &dims, &values, &infeasible);
     // Dimensions are now fixed values; keep the list for the sized copy.
     study.sizing = dims;
@@ -636,6 +639,116 @@ fn mend_failing_ponds(
     infeasible
 }
 
+/// The whole multiples `k` of the increment with `k * increment` inside
+/// the range of `d`: `(lowest k, highest k)`.
+fn buildable_steps(d: &SizedDim) -> (i64, i64) {
+    let lo = (d.min / d.increment - 1e-9).ceil() as i64;
+    let hi = (d.max / d.increment + 1e-9).floor() as i64;
+    (lo, hi.max(lo))
+}
+
+/// The buildable value `k` increments of `d` (ft or degrees), as the
+/// sized scenario writes it by hand and reads it back ("6.5 in"), so that
+/// the sized copy reproduces the run exactly; `k * increment` when that
+/// text does not read back.
+fn buildable_value(units: crate::util::units::UnitSystem, d: &SizedDim, k: i64) -> f64 {
+    use crate::input::scenario::sized::{buildable_text, read_buildable};
+    let v = k as f64 * d.increment;
+    buildable_text(units, d.field, v)
+        .and_then(|t| read_buildable(units, d.field, &t))
+        .filter(|x| (x - v).abs() <= 1e-9 * v.abs().max(1.0))
+        .unwrap_or(v)
+}
+
+/// Moves every solved value to a buildable one: a whole multiple of its
+/// increment inside its range, the largest opening that still meets every
+/// limit of its pond with the others held (each value first rounded toward
+/// the smaller opening, then opened one increment at a time while every
+/// limit holds, or closed until they do). Repeats until no value moves
+/// (at most 4 passes), since closing one dimension may let another open.
+/// A dimension whose pond meets its limits at no buildable value keeps the
+/// rounded value and is reported infeasible.
+fn to_buildable(
+    study: &mut Study,
+    trials: &Trials<'_>,
+    dims: &[SizedDim],
+    values: &mut [f64],
+    infeasible: &mut [Option<String>],
+) {
+    let mut ks: Vec<i64> = dims
+        .iter()
+        .zip(values.iter())
+        .map(|(d, &v)| {
+            let (lo, hi) = buildable_steps(d);
+            let q = v / d.increment;
+            let k = if d.field.is_elevation() {
+                (q - 1e-9).ceil()
+            } else {
+                (q + 1e-9).floor()
+            };
+            (k as i64).clamp(lo, hi)
+        })
+        .collect();
+    for (d, &k) in dims.iter().zip(&ks) {
+        set(study, d, buildable_value(study.units, d, k));
+    }
+    for pass in 0..4 {
+        let mut moved = false;
+        for (i, d) in dims.iter().enumerate() {
+            if infeasible[i].is_some() {
+                continue;
+            }
+            let (lo, hi) = buildable_steps(d);
+            let open: i64 = if d.field.is_elevation() { -1 } else { 1 };
+            let inside = |k: i64| (lo..=hi).contains(&k);
+            let units = study.units;
+            let mut ok = |k: i64| {
+                set(study, d, buildable_value(units, d, k));
+                trials.feasible(study, d.element).0
+            };
+            let start = ks[i];
+            let mut k = start;
+            if ok(k) {
+                while inside(k + open) && ok(k + open) {
+                    k += open;
+                }
+            } else if pass > 0 {
+                // on the first pass the others may still close and mend it
+                while inside(k - open) {
+                    k -= open;
+                    if ok(k) {
+                        break;
+                    }
+                }
+                if !ok(k) {
+                    k = start;
+                }
+            }
+            set(study, d, buildable_value(study.units, d, k));
+            if k != start {
+                moved = true;
+                ks[i] = k;
+            }
+        }
+        if !moved && pass > 0 {
+            break;
+        }
+    }
+    for (i, d) in dims.iter().enumerate() {
+        values[i] = buildable_value(study.units, d, ks[i]);
+        set(study, d, values[i]);
+    }
+    for (i, d) in dims.iter().enumerate() {
+        if infeasible[i].is_none() && !trials.feasible(study, d.element).0 {
+            infeasible[i] = Some(format!(
+                "no buildable {} (a multiple of {}) in the range meets every limit with the other dimensions at their buildable values",
+                d.field.key(),
+                with_unit(study, d, d.increment)
+            ));
+        }
+    }
+}
+
 /// The check that governs dimension `d` at value `v`: the one that fails
 /// first just beyond the value (or, at the range's maximum or when none
 /// fails beyond it, the one with the least margin).
@@ -656,10 +769,11 @@ fn governing_check(
     if at_max {
         return least_margin(&at_value);
     }
+    // one buildable increment beyond the value
     let more = if d.field.is_elevation() {
-        (v - 10.0 * tolerance(d, v)).max(d.min)
+        (v - d.increment).max(d.min)
     } else {
-        (v * 1.02).min(d.max)
+        (v + d.increment).min(d.max)
     };
     set(study, d, more);
     let (_, beyond) = trials.feasible(study, d.element);
@@ -685,7 +799,15 @@ fn sized_outputs(
     let o = crate::report::summary::Out(study.units);
     for (k, d) in dims.iter().enumerate() {
         let v = values[k];
-        let at_max = (v - value_at(d, 1.0)).abs() <= tolerance(d, v);
+        let at_max = {
+            let (lo, hi) = buildable_steps(d);
+            let kk = (v / d.increment).round() as i64;
+            if d.field.is_elevation() {
+                kk <= lo
+            } else {
+                kk >= hi
+            }
+        };
         let governing = governing_check(study, trials, d, v, at_max);
         let conv = |x: f64| {
             if d.field == SizedField::Angle {
@@ -710,6 +832,7 @@ fn sized_outputs(
             value: conv(v),
             min: conv(d.min),
             max: conv(d.max),
+            increment: conv(d.increment),
             governing_storm: governing
                 .as_ref()
                 .map(|c| study.storms[c.storm].name.clone()),

@@ -222,7 +222,8 @@ fn one_failure(
         p.embankment().as_ref(),
         dt_s,
         p.grid_step_ft,
-        p.storage.volume_ft3(start) + inflow_volume * 1.02 + 1.0,
+        crate::engine::network::storage_cap_ft3(p, start, inflow_volume),
+        &p.losses,
     );
     let mut r = FailureResult {
         element,

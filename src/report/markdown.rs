@@ -601,6 +601,7 @@ fn pond(m: &mut String, s: &Summary, name: &str, p: &Pond, o: Out, u: &Units) {
             None => String::new(),
         }
     );
+    pond_storage_and_losses(m, p, o, u);
     let named = p.outlet_names.iter().any(Option::is_some);
     let mut t = Table::new(if named {
         vec![
@@ -670,6 +671,137 @@ fn pond(m: &mut String, s: &Summary, name: &str, p: &Pond, o: Out, u: &Units) {
     m.push_str(&t.markdown());
     let _ = writeln!(m);
     crate::report::structure::markdown_peaks_and_failures(m, s, &escaped_name, o);
+    pond_infiltrated(m, s, name, p, u);
+}
+
+/// A pond's underground units and its losses, in words (nothing for an
+/// open basin that loses no water).
+fn pond_storage_and_losses(m: &mut String, p: &Pond, o: Out, u: &Units) {
+    use crate::methods::pond::Underground;
+    use crate::util::units::short;
+    let lu = u.length;
+    let units = p.storage.underground_parts();
+    if !units.is_empty() {
+        let _ = writeln!(m, "Underground storage (added to any open basin):\n");
+        for (i, unit) in units.iter().enumerate() {
+            let text = match unit {
+                Underground::Gallery {
+                    invert_ft,
+                    diameter_ft,
+                    length_ft,
+                    count,
+                } => format!(
+                    "pipe gallery: {count} x {} {lu} diameter, {} {lu} long, invert {} {lu} (circular-segment volumes)",
+                    short(o.length(*diameter_ft), 4),
+                    short(o.length(*length_ft), 4),
+                    f(o.length(*invert_ft), 2)
+                ),
+                Underground::Vault {
+                    floor_ft,
+                    length_ft,
+                    width_ft,
+                    height_ft,
+                } => format!(
+                    "vault: {} x {} {lu}, {} {lu} high, floor {} {lu}",
+                    short(o.length(*length_ft), 4),
+                    short(o.length(*width_ft), 4),
+                    short(o.length(*height_ft), 4),
+                    f(o.length(*floor_ft), 2)
+                ),
+                Underground::Stone {
+                    bottom_ft,
+                    depth_ft,
+                    area_ft2,
+                    porosity,
+                    embedded,
+                } => format!(
+                    "stone bed: {} {} in plan, {} {lu} deep, bottom {} {lu}, porosity {}{}",
+                    short(*area_ft2 * Quantity::SectionArea.output_factor(o.0), 5),
+                    o.unit(Quantity::SectionArea),
+                    short(o.length(*depth_ft), 4),
+                    f(o.length(*bottom_ft), 2),
+                    short(*porosity, 3),
+                    if embedded.is_empty() {
+                        String::new()
+                    } else {
+                        "; the pipes laid in it are taken out of its voids".to_string()
+                    }
+                ),
+            };
+            let _ = writeln!(m, "{}. {text}", i + 1);
+        }
+        let _ = writeln!(m);
+    }
+    let l = &p.losses;
+    if l.infiltration_ft_per_s > 0.0 {
+        let (rate, ru) = match o.0 {
+            crate::util::units::UnitSystem::Us => (l.infiltration_ft_per_s * 3600.0 * 12.0, "in/h"),
+            crate::util::units::UnitSystem::Si => {
+                (l.infiltration_ft_per_s * 3600.0 * 304.8, "mm/h")
+            }
+        };
+        let _ = writeln!(
+            m,
+            "Infiltration at a constant {} {ru} over the {}{}; a loss beside the outlets in the routing and the mass balance.\n",
+            crate::util::units::short(rate, 3),
+            match (p.storage.has_open_basin(), l.infiltration_area) {
+                (false, _) => "plan area of every stone bed holding water",
+                (true, crate::methods::pond::InfiltrationArea::Wetted) => {
+                    "water surface at each stage"
+                }
+                (true, crate::methods::pond::InfiltrationArea::Bottom) => "bottom area",
+            },
+            match (p.storage.has_open_basin(), units.is_empty()) {
+                (true, false) => {
+                    " (and the plan area of any stone bed holding water; vaults and pipes are closed)"
+                }
+                (false, _) => " (vaults and pipes are closed)",
+                (true, true) => "",
+            }
+        );
+    }
+    if !l.evaporation_ft_per_day.is_empty() {
+        let du = o.unit(Quantity::Depth);
+        let list: Vec<String> = l
+            .evaporation_ft_per_day
+            .iter()
+            .map(|e| sig(o.depth(e * 12.0), 3))
+            .collect();
+        let _ = writeln!(
+            m,
+            "Evaporation from the open water surface over long records, {du} per day January to December: {}.\n",
+            list.join(", ")
+        );
+    }
+}
+
+/// The volume a pond infiltrated in each storm (nothing for a pond that
+/// does not infiltrate).
+fn pond_infiltrated(m: &mut String, s: &Summary, name: &str, p: &Pond, u: &Units) {
+    if p.losses.infiltration_ft_per_s <= 0.0 {
+        return;
+    }
+    let mut t = Table::new(vec![
+        Column::text("storm"),
+        Column::text("condition"),
+        Column::quantity("infiltrated", u.volume),
+        Column::quantity("outflow volume", u.volume),
+    ]);
+    let escaped_name = cell(name);
+    for ev in s
+        .events
+        .iter()
+        .filter(|ev| ev.kind == Kind::Pond && ev.element == escaped_name)
+    {
+        t.row([
+            ev.storm.clone(),
+            ev.condition.clone(),
+            sig(ev.infiltrated_volume.unwrap_or(0.0), 5),
+            sig(ev.volume, 5),
+        ]);
+    }
+    m.push_str(&t.markdown());
+    let _ = writeln!(m);
 }
 
 /// The sized outlet dimensions and why any range is infeasible.
@@ -680,7 +812,7 @@ fn sizing(m: &mut String, s: &Summary) {
     let _ = writeln!(m, "## Outlet sizing\n");
     let _ = writeln!(
         m,
-        "Each range was given the largest opening (for an elevation, the lowest) that keeps every downstream limit and pond limit for every storm, lowest outlet first, sweeping until no value moves by more than 0.1 %.\n"
+        "Each range was given the largest opening (for an elevation, the lowest) that keeps every downstream limit and pond limit for every storm, lowest outlet first, sweeping until no value moves by more than 0.1 %, then the largest buildable value (a whole multiple of the range's step) that still meets every limit with the storms routed again. The margin is at that value; the governing check is the one that fails one step larger.\n"
     );
     let mut t = Table::new(vec![
         Column::text("pond"),
@@ -703,7 +835,12 @@ fn sizing(m: &mut String, s: &Summary) {
             z.pond.clone(),
             crate::engine::sizing::outlet_label(z.outlet, z.outlet_name.as_deref()),
             z.field.to_string(),
-            format!("{} to {} {unit}", sig(z.min, 4), sig(z.max, 4)),
+            format!(
+                "{} to {} {unit} in steps of {}",
+                sig(z.min, 4),
+                sig(z.max, 4),
+                crate::util::units::short(z.increment, 4)
+            ),
             chosen,
             z.governing_storm.clone().unwrap_or_else(|| "-".into()),
             z.governing_check.clone().unwrap_or_else(|| "-".into()),

@@ -116,6 +116,12 @@ pub struct RecordOut {
     /// Mass-balance error of the routing (ponds).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub mass_balance_error: Option<f64>,
+    /// Volume infiltrated over the record (ponds that lose water).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub infiltrated_volume: Option<f64>,
+    /// Volume evaporated over the record (ponds that lose water).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub evaporated_volume: Option<f64>,
 }
 
 /// Everything a record's point plots need, in output units.
@@ -212,6 +218,12 @@ pub fn entry(study: &Study, e: &ElementRecord) -> RecordOut {
                 .collect()
         }),
         mass_balance_error: pond.map(|p| p.mass_balance_error),
+        infiltrated_volume: pond
+            .and_then(|p| p.lost)
+            .map(|l| o.volume(l.infiltrated_ft3)),
+        evaporated_volume: pond
+            .and_then(|p| p.lost)
+            .map(|l| o.volume(l.evaporated_ft3)),
     }
 }
 
@@ -518,6 +530,7 @@ pub fn markdown(study: &Study, entries: &[RecordOut], comparisons: &[ComparisonO
         }
         m.push_str(&t.markdown());
         let _ = writeln!(m);
+        pond_losses_markdown(&mut m, o, entries.iter().filter(|e| e.record == r.name));
         if comparisons
             .iter()
             .any(|c| c.record.as_deref() == Some(&r.name))
@@ -529,6 +542,35 @@ pub fn markdown(study: &Study, entries: &[RecordOut], comparisons: &[ComparisonO
         }
     }
     m
+}
+
+/// The volumes ponds lost to the ground and the air over a record, as a
+/// table (nothing when no pond loses water).
+fn pond_losses_markdown<'a>(m: &mut String, o: Out, entries: impl Iterator<Item = &'a RecordOut>) {
+    let vu = o.unit(Quantity::Volume);
+    let rows: Vec<&RecordOut> = entries.filter(|e| e.infiltrated_volume.is_some()).collect();
+    if rows.is_empty() {
+        return;
+    }
+    let _ = writeln!(
+        m,
+        "Water the ponds lost besides their outlets (counted in their mass balance):\n\n| condition | pond | infiltrated [{vu}] | evaporated [{vu}] | outflow [{vu}] | mass balance |\n|---|---|---:|---:|---:|---:|"
+    );
+    for e in rows {
+        let _ = writeln!(
+            m,
+            "| {} | {} | {} | {} | {} | {} |",
+            e.condition,
+            e.element,
+            sig(e.infiltrated_volume.unwrap_or(0.0), 5),
+            sig(e.evaporated_volume.unwrap_or(0.0), 5),
+            sig(e.volume, 5),
+            e.mass_balance_error
+                .map(|x| format!("{:.4} %", x * 100.0))
+                .unwrap_or_default()
+        );
+    }
+    let _ = writeln!(m);
 }
 
 #[cfg(test)]
@@ -588,6 +630,7 @@ mod tests {
                     value: 4.0,
                 }],
                 mass_balance_error: 1e-4,
+                lost: None,
             }),
         }
     }

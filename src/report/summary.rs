@@ -171,6 +171,9 @@ pub struct EventOut {
     /// Drain time, h (null when not drained within the run).
     #[serde(skip_serializing_if = "is_not_pond")]
     pub drain_time_h: Option<Option<f64>>,
+    /// Volume infiltrated (ponds that infiltrate).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub infiltrated_volume: Option<f64>,
 }
 
 fn is_not_pond(v: &Option<Option<f64>>) -> bool {
@@ -336,6 +339,8 @@ pub struct SizedOut {
     pub min: f64,
     /// Range max.
     pub max: f64,
+    /// Buildable increment: `value` is a whole multiple of it.
+    pub increment: f64,
     /// The storm whose limit governs.
     pub governing_storm: Option<String>,
     /// The point or pond limit that governs.
@@ -696,6 +701,7 @@ fn events_out(study: &Study, a: &Analysis) -> Vec<EventOut> {
                     overtopped: None,
                     mass_balance_error: None,
                     drain_time_h: None,
+                    infiltrated_volume: None,
                 };
                 if let Some(r) = &er.runoff {
                     ev.rain_depth = Some(o.depth(r.rain_in));
@@ -711,6 +717,7 @@ fn events_out(study: &Study, a: &Analysis) -> Vec<EventOut> {
                     ev.overtopped = Some(sm.overtopped);
                     ev.mass_balance_error = Some(sm.mass_balance_error);
                     ev.drain_time_h = Some(sm.drain_time_h);
+                    ev.infiltrated_volume = infiltrated_volume_out(&e.kind, sm, o);
                 }
                 events.push(ev);
             }
@@ -733,12 +740,28 @@ fn events_out(study: &Study, a: &Analysis) -> Vec<EventOut> {
                     overtopped: None,
                     mass_balance_error: None,
                     drain_time_h: None,
+                    infiltrated_volume: None,
                 });
             }
         }
     }
 
     events
+}
+
+/// The volume a pond infiltrated in a storm, in output units, for a pond
+/// that infiltrates.
+fn infiltrated_volume_out(
+    kind: &ElementKind,
+    sm: &crate::methods::pond::PondSummary,
+    o: Out,
+) -> Option<f64> {
+    match kind {
+        ElementKind::Pond(p) if p.losses.infiltration_ft_per_s > 0.0 => {
+            Some(o.volume(sm.infiltrated_ft3))
+        }
+        _ => None,
+    }
 }
 
 /// The peak checks at the points, in output units.

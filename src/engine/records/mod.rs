@@ -511,7 +511,8 @@ fn run_record(
 struct ConditionFlows {
     /// Flow (cfs) arriving at each point.
     points: Vec<Vec<f64>>,
-    /// Runoff volume (ft3) each catchment generated over the record.
+    /// Runoff volume (ft3) each catchment generated over the record (for a
+    /// pond, less what it lost to infiltration and evaporation).
     generated_ft3: Vec<f64>,
 }
 
@@ -594,7 +595,13 @@ impl ElementSim for RecordSim<'_, '_> {
                 element_record(run, who, &out, &st, None)
             }
             ElementKind::Pond(p) => {
-                route_pond(run, c, i, p, inflow_cfs, &mut out, self.pool, self.res)?
+                let entry =
+                    route_pond(run, c, i, p, inflow_cfs, &mut out, self.pool, self.res)?;
+                // what the pond lost to the ground and the air never reaches a point
+                if let Some(lost) = entry.pond.as_ref().and_then(|pr| pr.lost) {
+                    self.generated_ft3[i] = -(lost.infiltrated_ft3 + lost.evaporated_ft3);
+                }
+                entry
             }
         };
         self.res.elements.push(entry);
@@ -743,8 +750,14 @@ fn route_pond(
     let inflow_ft3 = network::volume_ft3(&inflow, run.step_h);
     let clock = std::time::Instant::now();
     // The inflow's buffer becomes the stage series.
-    let (storage_first_ft3, storage_last_ft3) =
-        pond::route_stage_in_place(&table, &mut inflow, start_ft, out);
+    let evaporation = pond::evaporation_schedule(
+        run.record.start_s,
+        run.step_s,
+        inflow.len(),
+        &p.losses.evaporation_ft_per_day,
+    );
+    let (storage_first_ft3, storage_last_ft3, lost) =
+        pond::route_stage_in_place_losing(&table, &mut inflow, start_ft, out, &evaporation);
     res.timings.routing_s += clock.elapsed().as_secs_f64();
     let mut stage_ft = inflow;
     let st = run.stats(out);
@@ -799,8 +812,9 @@ fn route_pond(
         .collect();
     let outflow_ft3 = network::volume_ft3(out, run.step_h);
     let stored_ft3 = storage_last_ft3 - storage_first_ft3;
+    let lost_ft3 = lost.infiltrated_ft3 + lost.evaporated_ft3;
     let mass_balance_error = if inflow_ft3 > 0.0 {
-        (inflow_ft3 - outflow_ft3 - stored_ft3) / inflow_ft3
+        (inflow_ft3 - outflow_ft3 - lost_ft3 - stored_ft3) / inflow_ft3
     } else {
         0.0
     };
@@ -814,6 +828,7 @@ fn route_pond(
             })
             .collect(),
         mass_balance_error,
+        lost: p.losses.any().then_some(lost),
     });
     pond_balance_warnings(
         run,

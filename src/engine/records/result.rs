@@ -57,6 +57,8 @@ pub struct PondRecord {
     pub annual_max_stage_ft: Vec<YearMax>,
     /// Mass-balance error of the routing (fraction of the inflow volume).
     pub mass_balance_error: f64,
+    /// Volumes infiltrated and evaporated, for a pond that loses water.
+    pub lost: Option<crate::methods::pond::LossTotals>,
 }
 
 /// One element or point over one record and condition, internal units.

@@ -22,6 +22,7 @@ pub mod sized;
 mod steps;
 mod storms;
 mod structure;
+mod underground;
 mod values;
 
 use self::{elements::RawElement, inflows::*, values::*};

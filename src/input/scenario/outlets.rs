@@ -118,6 +118,7 @@ impl Builder<'_> {
                         min,
                         max,
                         span: v.span(),
+                        increment: 0.0, // set by `ponds::sized_increments`
                     });
                 }
                 Ok(x)
@@ -186,6 +187,7 @@ impl Builder<'_> {
                         min,
                         max,
                         span: angle_span,
+                        increment: 0.0, // set by `ponds::sized_increments`
                     });
                 }
                 Outlet::VNotchWeir {

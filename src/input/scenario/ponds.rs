@@ -15,7 +15,7 @@ impl Builder<'_> {
         storms: &[Storm],
     ) -> R<(Pond, Vec<SizedDim>)> {
         let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
-        let (storage, storage_kind, table_top) = self.pond_storage(rp, span, ctx)?;
+        let (storage, storage_kind, table_top) = self.pond_storage_all(rp, span, ctx)?;
         let bottom = storage.bottom_ft();
         let top_ft = match &rp.top {
             Some(t) => {
@@ -31,7 +31,7 @@ impl Builder<'_> {
                 }
                 Some(v)
             }
-            None if rp.basin.is_some() => table_top,
+            None if rp.basin.is_some() || !storage.has_open_basin() => table_top,
             None => None,
         };
         let mut outlets = Vec::new();
@@ -107,11 +107,12 @@ impl Builder<'_> {
             outlets.push(outlet);
             sized.extend(s);
         }
+        self.sized_increments(rp, ctx, &mut sized)?;
         let start_ft = self.pond_start(rp, ctx, bottom, top_ft)?;
         let top_length_ft = match &rp.top_length {
             Some(t) => self.positive(t, Quantity::Length, &format!("{ctx}, top_length"))?,
             None => match top_ft {
-                Some(t) => storage.area_at_ft2(t).max(1.0).sqrt(),
+                Some(t) => default_top_length_ft(&storage, t),
                 None => 0.0,
             },
         };
@@ -132,6 +133,7 @@ impl Builder<'_> {
             },
         )?;
         self.tailwater_start_note(rp, &outlets, &structure, start_ft, bottom);
+        let losses = self.pond_losses(rp, ctx, &storage)?;
         let grid_step_ft = match self.units {
             UnitSystem::Us => 0.01,
             UnitSystem::Si => 0.003 / units::M_PER_FT,
@@ -149,6 +151,7 @@ impl Builder<'_> {
                 max_drain_time_h,
                 grid_step_ft,
                 structure: Box::new(structure),
+                losses,
             },
             sized,
         ))
@@ -162,6 +165,7 @@ impl Builder<'_> {
         rp: &RawPond,
         span: &std::ops::Range<usize>,
         ctx: &str,
+        underground: bool,
     ) -> R<(StageStorage, StorageKind, Option<f64>)> {
         let lf = Quantity::Length.bare_factor(self.units).unwrap_or(1.0);
         let af = Quantity::SectionArea.bare_factor(self.units).unwrap_or(1.0);
@@ -174,7 +178,7 @@ impl Builder<'_> {
         .iter()
         .filter(|x| **x)
         .count();
-        if given != 1 {
+        if given > 1 || (given == 0 && !underground) {
             return Err(self
                 .err(
                     span,
@@ -185,9 +189,13 @@ impl Builder<'_> {
                         "the pond's storage is given more than once"
                     },
                 )
-                .expected("exactly one of `stage_area`, `stage_volume` or `basin`"));
+                .expected(
+                    "one of `stage_area`, `stage_volume` or `basin`, or underground storage alone ([[pond.gallery]], [[pond.vault]], [[pond.stone]])",
+                ));
         }
-        Ok(if let Some(t) = &rp.stage_area {
+        Ok(if given == 0 {
+            unreachable_storage()?
+        } else if let Some(t) = &rp.stage_area {
             let rows = self.table_rows(t, &format!("{ctx}, stage_area"), lf, af)?;
             self.bounded_rows(
                 &rows,
@@ -265,6 +273,111 @@ impl Builder<'_> {
         } else {
             unreachable_storage()?
         })
+    }
+
+    /// The storage of a pond: its open basin (at most one of a stage-area
+    /// table, a stage-volume table or a basin), its underground units, or
+    /// both added together; the kind in words and the top where a basin or
+    /// underground storage alone gives one (the top of the highest unit).
+    fn pond_storage_all(
+        &self,
+        rp: &RawPond,
+        span: &std::ops::Range<usize>,
+        ctx: &str,
+    ) -> R<(StageStorage, StorageKind, Option<f64>)> {
+        let underground = !(rp.gallery.is_empty() && rp.vault.is_empty() && rp.stone.is_empty());
+        if !underground {
+            return self.pond_storage(rp, span, ctx, false);
+        }
+        let units = self.underground_units(rp, ctx)?;
+        let open = rp.stage_area.is_some() || rp.stage_volume.is_some() || rp.basin.is_some();
+        if !open {
+            let s =
+                StageStorage::underground(units).map_err(|e| self.err(span, ctx, e.to_string()))?;
+            let top = s.top_ft();
+            return Ok((s, StorageKind::Underground, Some(top)));
+        }
+        let (s, kind, top) = self.pond_storage(rp, span, ctx, true)?;
+        let s = s
+            .with_underground(units)
+            .map_err(|e| self.err(span, ctx, e.to_string()))?;
+        let kind = match kind {
+            StorageKind::StageArea => StorageKind::StageAreaAndUnderground,
+            StorageKind::StageVolume => StorageKind::StageVolumeAndUnderground,
+            _ => StorageKind::BasinAndUnderground,
+        };
+        Ok((s, kind, top))
+    }
+
+    /// The buildable increment of each sized dimension of a pond: the
+    /// range's `increment`, or [`SizedField::default_increment`]; a range
+    /// must hold at least one multiple of it.
+    fn sized_increments(&self, rp: &RawPond, ctx: &str, sized: &mut [SizedDim]) -> R<()> {
+        for d in sized.iter_mut() {
+            let Some(o) = rp.outlet.get(d.outlet) else {
+                continue;
+            };
+            let r = o.get_ref();
+            let raw = match d.field {
+                SizedField::Diameter => &r.diameter,
+                SizedField::Width => &r.width,
+                SizedField::Height => &r.height,
+                SizedField::Length => &r.length,
+                SizedField::Angle => &r.angle,
+                SizedField::Crest => &r.crest,
+                SizedField::Invert => &r.invert,
+            };
+            let label = crate::engine::sizing::outlet_label(
+                d.outlet,
+                r.name.as_ref().map(|n| n.get_ref().trim()),
+            );
+            let kctx = format!("{ctx}, {label}, {}, increment", d.field.key());
+            let given = match raw.as_ref().map(|v| (v.span(), v.get_ref())) {
+                Some((span, RawValue::Range(b))) => b.2.clone().map(|x| Spanned::new(span, x)),
+                _ => None,
+            };
+            d.increment = match &given {
+                None => d.field.default_increment(self.units),
+                Some(v) if d.field == SizedField::Angle => match v.get_ref() {
+                    RawValue::Num(x) if x.is_finite() && *x > 0.0 && *x <= 90.0 => *x,
+                    _ => {
+                        return Err(self
+                            .err(
+                                &v.span(),
+                                &kctx,
+                                format!("{} is not an angle step", show(v.get_ref())),
+                            )
+                            .expected("a number of degrees such as 5"));
+                    }
+                },
+                Some(v) => self.positive(v, Quantity::Length, &kctx)?,
+            };
+            let inc = d.increment;
+            let first = (d.min / inc - 1e-9).ceil() * inc;
+            if first > d.max * (1.0 + 1e-12) + 1e-12 {
+                let show_v =
+                    |x: f64| crate::engine::sizing::sized_value_text(self.units, d.field, x);
+                let span = given
+                    .as_ref()
+                    .map(|v| v.span())
+                    .or_else(|| raw.as_ref().map(|v| v.span()))
+                    .unwrap_or(o.span());
+                return Err(self
+                    .err(
+                        &span,
+                        &kctx,
+                        format!(
+                            "no multiple of the increment {} lies between the range's min {} and max {}",
+                            show_v(inc),
+                            show_v(d.min),
+                            show_v(d.max)
+                        ),
+                    )
+                    .expected("a range that holds at least one buildable size")
+                    .hint("widen the range or give a finer `increment` in it"));
+            }
+        }
+        Ok(())
     }
 
     /// The starting water surface (ft), between the bottom and the top.
@@ -376,4 +489,20 @@ impl Builder<'_> {
             });
         }
     }
+}
+
+/// The default crest length (ft) of an embankment that overtops at `top_ft`:
+/// the side of a square of the pond's surface area there (at least 1 ft);
+/// for underground storage alone, of the units' plan area together.
+fn default_top_length_ft(storage: &StageStorage, top_ft: f64) -> f64 {
+    if storage.has_open_basin() {
+        return storage.area_at_ft2(top_ft).max(1.0).sqrt();
+    }
+    storage
+        .underground_parts()
+        .iter()
+        .map(crate::methods::pond::Underground::footprint_ft2)
+        .sum::<f64>()
+        .max(1.0)
+        .sqrt()
 }

@@ -15,8 +15,9 @@ pub enum RawValue {
     Num(f64),
     /// A string such as `"8.4 ac"`.
     Text(String),
-    /// A range to be solved by sizing.
-    Range(Box<(RawValue, RawValue)>),
+    /// A range to be solved by sizing: min, max and the optional
+    /// buildable `increment`.
+    Range(Box<(RawValue, RawValue, Option<RawValue>)>),
 }
 
 impl<'de> Deserialize<'de> for RawValue {
@@ -42,19 +43,21 @@ impl<'de> Deserialize<'de> for RawValue {
             fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<RawValue, A::Error> {
                 let mut min = None;
                 let mut max = None;
+                let mut increment = None;
                 while let Some(key) = map.next_key::<String>()? {
                     match key.as_str() {
                         "min" => min = Some(map.next_value::<RawValue>()?),
                         "max" => max = Some(map.next_value::<RawValue>()?),
+                        "increment" => increment = Some(map.next_value::<RawValue>()?),
                         other => {
                             return Err(de::Error::custom(format!(
-                                "unknown key `{other}` in a range; a range is {{ min = ..., max = ... }}"
+                                "unknown key `{other}` in a range; a range is {{ min = ..., max = ..., increment = ... }} (increment optional)"
                             )));
                         }
                     }
                 }
                 match (min, max) {
-                    (Some(a), Some(b)) => Ok(RawValue::Range(Box::new((a, b)))),
+                    (Some(a), Some(b)) => Ok(RawValue::Range(Box::new((a, b, increment)))),
                     _ => Err(de::Error::custom("a range needs both `min` and `max`")),
                 }
             }
@@ -306,6 +309,22 @@ pub struct RawPond {
     /// Clogged-outlet checks.
     #[serde(default)]
     pub failure: Vec<Spanned<RawFailure>>,
+    // Underground storage and losses (issues 13 and 12).
+    /// Pipe galleries.
+    #[serde(default)]
+    pub gallery: Vec<Spanned<RawGallery>>,
+    /// Vaults.
+    #[serde(default)]
+    pub vault: Vec<Spanned<RawVault>>,
+    /// Stone beds.
+    #[serde(default)]
+    pub stone: Vec<Spanned<RawStone>>,
+    /// Constant infiltration rate, e.g. "0.5 in/h".
+    pub infiltration: Option<Spanned<RawValue>>,
+    /// `"wetted"` (default) or `"bottom"`.
+    pub infiltration_area: Option<Spanned<String>>,
+    /// Open-water evaporation, 12 monthly depths per day.
+    pub evaporation: Option<Spanned<Vec<RawValue>>>,
 }
 
 /// `tailwater = 98.5`, `"98.5 ft"` or `[[flow, elevation], ...]`.
@@ -356,6 +375,50 @@ pub struct RawFailure {
     pub min_freeboard: Option<Spanned<RawValue>>,
     /// `"full"` or a starting stage.
     pub start: Option<Spanned<RawValue>>,
+}
+
+/// `[[pond.gallery]]`: parallel round pipes.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawGallery {
+    /// Inside diameter.
+    pub diameter: Option<Spanned<RawValue>>,
+    /// Length of each pipe.
+    pub length: Option<Spanned<RawValue>>,
+    /// Number of pipes (default 1).
+    pub count: Option<Spanned<i64>>,
+    /// Invert elevation.
+    pub invert: Option<Spanned<RawValue>>,
+    /// The stone bed (numbered from 1) the pipes are laid in.
+    pub in_stone: Option<Spanned<i64>>,
+}
+
+/// `[[pond.vault]]`: a rectangular vault.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawVault {
+    /// Floor elevation.
+    pub floor: Option<Spanned<RawValue>>,
+    /// Inside length.
+    pub length: Option<Spanned<RawValue>>,
+    /// Inside width.
+    pub width: Option<Spanned<RawValue>>,
+    /// Inside height.
+    pub height: Option<Spanned<RawValue>>,
+}
+
+/// `[[pond.stone]]`: a stone bed.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawStone {
+    /// Bottom elevation.
+    pub bottom: Option<Spanned<RawValue>>,
+    /// Depth of stone.
+    pub depth: Option<Spanned<RawValue>>,
+    /// Plan area.
+    pub area: Option<Spanned<RawValue>>,
+    /// Void ratio, 0-1.
+    pub porosity: Option<Spanned<f64>>,
 }
 
 /// `basin = { ... }`.

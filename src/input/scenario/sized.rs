@@ -27,12 +27,20 @@ pub fn sized_scenario_text(study: &Study, scenario_dir: &Path, out_dir: &Path) -
         let Some(v) = current_value(outlet, d.field) else {
             continue;
         };
-        let rep = if d.field == SizedField::Angle {
-            format!("{v:.4}")
-        } else {
+        let rep = match buildable_text(study.units, d.field, v) {
+            // a buildable value as it would be written by hand ("6.5 in"),
+            // when it reads back as the very number the run used
+            Some(t) if read_buildable(study.units, d.field, &t) == Some(v) => {
+                if d.field == SizedField::Angle {
+                    t
+                } else {
+                    format!("\"{t}\"")
+                }
+            }
+            _ if d.field == SizedField::Angle => format!("{v:.4}"),
             // Shortest text that reads back as the same number, so that the
             // sized copy reproduces the run exactly.
-            length_text(study.units, v)
+            _ => length_text(study.units, v),
         };
         edits.push((d.span.clone(), rep));
     }
@@ -66,6 +74,43 @@ pub fn sized_scenario_text(study: &Study, scenario_dir: &Path, out_dir: &Path) -
         "# Written by runnel {} with every sized outlet dimension fixed at its chosen value.\n{out}",
         env!("CARGO_PKG_VERSION")
     )
+}
+
+/// A sized value (ft, or degrees) as written by hand, rounded to 9
+/// decimals: degrees as a bare number (`45`), a diameter, width or height
+/// in inches or millimetres (`6.5 in`, `530 mm`), any other length in the
+/// scenario's length unit (`5.3 ft`, `102.05 ft`). None for a value that is
+/// not finite.
+pub fn buildable_text(units: UnitSystem, field: SizedField, v: f64) -> Option<String> {
+    if !v.is_finite() {
+        return None;
+    }
+    let round = |x: f64| (x * 1e9).round() / 1e9;
+    Some(match (field, units) {
+        (SizedField::Angle, _) => format!("{}", round(v)),
+        (SizedField::Diameter | SizedField::Width | SizedField::Height, UnitSystem::Us) => {
+            format!("{} in", round(v * 12.0))
+        }
+        (SizedField::Diameter | SizedField::Width | SizedField::Height, UnitSystem::Si) => {
+            format!("{} mm", round(v * crate::util::units::M_PER_FT * 1000.0))
+        }
+        _ => {
+            let q = Quantity::Length;
+            format!(
+                "{} {}",
+                round(v * q.output_factor(units)),
+                q.output_unit(units)
+            )
+        }
+    })
+}
+
+/// The value (ft, or degrees) a [`buildable_text`] reads back as.
+pub fn read_buildable(units: UnitSystem, field: SizedField, text: &str) -> Option<f64> {
+    if field == SizedField::Angle {
+        return text.trim().parse().ok();
+    }
+    crate::util::units::parse_quantity(text, Quantity::Length, units).ok()
 }
 
 /// A length (ft) as a quoted quantity in the scenario's own unit, in the

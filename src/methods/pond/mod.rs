@@ -24,15 +24,19 @@ use crate::methods::hydraulics::total_flow_cfs;
 use crate::methods::hydraulics::{Outlet, Works};
 use crate::methods::stats::max_first;
 
+mod losses;
 mod routing;
 mod storage;
 mod summary;
 mod table;
+mod underground;
 
+pub use losses::*;
 pub use routing::*;
 pub use storage::*;
 pub use summary::*;
 pub use table::*;
+pub use underground::*;
 
 /// Largest number of rows a [`PondTable`] may have.
 pub const MAX_TABLE_ROWS: usize = 5_000_000;
@@ -158,5 +162,7 @@ pub enum PondError {
     },
 }
 
+#[cfg(test)]
+mod storage_tests;
 #[cfg(test)]
 mod tests;

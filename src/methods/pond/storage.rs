@@ -1,6 +1,7 @@
 //! Stage-storage geometry: a pond's storage from a stage-area table (the
-//! conic-frustum rule) or a stage-volume table, and the rows of a basin
-//! with uniform side slopes.
+//! conic-frustum rule) or a stage-volume table, underground units added to
+//! it or alone ([`Underground`]), and the rows of a basin with uniform side
+//! slopes.
 
 use super::*;
 
@@ -15,13 +16,22 @@ pub(super) enum Shape {
     Volume,
 }
 
-/// Stage-storage relation of a pond: storage (ft3) measured from the
-/// lowest stage of its table.
+/// An open basin's stage-storage table: storage (ft3) measured from its
+/// lowest stage.
 #[derive(Debug, Clone, PartialEq)]
-pub struct StageStorage {
+pub(super) struct OpenTable {
     pub(super) stage_ft: Vec<f64>,
     pub(super) volume_ft3: Vec<f64>,
     pub(super) shape: Shape,
+}
+
+/// Stage-storage relation of a pond: an open basin's table, underground
+/// units ([`Underground`]), or both added together; storage (ft3) measured
+/// from the lowest stage of any of them.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StageStorage {
+    pub(super) open: Option<OpenTable>,
+    pub(super) parts: Vec<Underground>,
 }
 
 /// Checks a `(stage, value)` table: at least 2 rows, finite values, stages
@@ -87,7 +97,7 @@ pub(super) fn frustum_volume_ft3(h_ft: f64, a1_ft2: f64, a2_ft2: f64) -> f64 {
     h_ft / 3.0 * (a1_ft2 + a2_ft2 + (a1_ft2 * a2_ft2).sqrt())
 }
 
-impl StageStorage {
+impl OpenTable {
     /// Stage-storage from `(stage ft, surface area ft2)` rows.
     ///
     /// # Formula
@@ -109,7 +119,7 @@ impl StageStorage {
             v += frustum_volume_ft3(s2 - s1, a1, a2);
             volume_ft3.push(v);
         }
-        Ok(StageStorage {
+        Ok(OpenTable {
             stage_ft: rows.iter().map(|r| r.0).collect(),
             volume_ft3,
             shape: Shape::Area {
@@ -128,7 +138,7 @@ impl StageStorage {
     pub fn from_stage_volume(rows: &[(f64, f64)]) -> Result<Self, PondError> {
         validate_rows(rows, "stage-volume", "volume")?;
         let v0 = rows[0].1;
-        Ok(StageStorage {
+        Ok(OpenTable {
             stage_ft: rows.iter().map(|r| r.0).collect(),
             volume_ft3: rows.iter().map(|r| r.1 - v0).collect(),
             shape: Shape::Volume,
@@ -261,6 +271,224 @@ impl StageStorage {
                 self.stage_ft[j] + hi
             }
         }
+    }
+}
+
+impl StageStorage {
+    /// Stage-storage from `(stage ft, surface area ft2)` rows.
+    ///
+    /// # Formula
+    /// Between rows the conic-frustum volume `V = (h/3)(A1 + A2 + sqrt(A1 A2))`
+    /// (h the stage difference, ft; A the areas, ft2); within a segment the
+    /// same rule to the intermediate stage, with `sqrt(A)` linear in stage.
+    /// Above the last row the last area is kept (vertical walls).
+    ///
+    /// # Errors
+    /// Fewer than 2 rows, a non-finite value, stages not strictly
+    /// increasing, a negative area, or an area smaller than the previous one.
+    pub fn from_stage_area(rows: &[(f64, f64)]) -> Result<Self, PondError> {
+        Ok(StageStorage {
+            open: Some(OpenTable::from_stage_area(rows)?),
+            parts: Vec::new(),
+        })
+    }
+
+    /// Stage-storage from `(stage ft, volume ft3)` rows; volumes are linear
+    /// between rows, the last slope is extended above the last row, and
+    /// storage is measured from the first row (its volume is subtracted).
+    ///
+    /// # Errors
+    /// Fewer than 2 rows, a non-finite value, stages not strictly
+    /// increasing, a negative volume, or a volume smaller than the previous one.
+    pub fn from_stage_volume(rows: &[(f64, f64)]) -> Result<Self, PondError> {
+        Ok(StageStorage {
+            open: Some(OpenTable::from_stage_volume(rows)?),
+            parts: Vec::new(),
+        })
+    }
+
+    /// Storage of underground units alone (no open basin): above the top
+    /// of the highest unit the storage stays full (it does not rise).
+    ///
+    /// # Errors
+    /// No unit, or a unit whose dimensions are not valid
+    /// ([`Underground::validate`]).
+    pub fn underground(parts: Vec<Underground>) -> Result<Self, PondError> {
+        if parts.is_empty() {
+            return Err(PondError::InvalidParameter {
+                what: "the number of underground units",
+                value: 0.0,
+                expected: "at least one gallery, vault or stone bed",
+            });
+        }
+        for p in &parts {
+            p.validate()?;
+        }
+        Ok(StageStorage { open: None, parts })
+    }
+
+    /// This storage with underground units added to it.
+    ///
+    /// # Errors
+    /// A unit whose dimensions are not valid ([`Underground::validate`]).
+    pub fn with_underground(mut self, parts: Vec<Underground>) -> Result<Self, PondError> {
+        for p in &parts {
+            p.validate()?;
+        }
+        self.parts.extend(parts);
+        Ok(self)
+    }
+
+    /// The underground units, in the order given.
+    pub fn underground_parts(&self) -> &[Underground] {
+        &self.parts
+    }
+
+    /// Whether the storage stops rising above its top (underground units
+    /// without an open basin).
+    pub fn is_capped(&self) -> bool {
+        self.open.is_none()
+    }
+
+    /// Whether there is an open basin (a stage-area or stage-volume table).
+    pub fn has_open_basin(&self) -> bool {
+        self.open.is_some()
+    }
+
+    /// The lowest stage (ft), where storage is 0: the lowest of the open
+    /// table's first row and every unit's bottom.
+    pub fn bottom_ft(&self) -> f64 {
+        let open = self
+            .open
+            .as_ref()
+            .map_or(f64::INFINITY, OpenTable::bottom_ft);
+        self.parts
+            .iter()
+            .map(Underground::bottom_ft)
+            .fold(open, f64::min)
+    }
+
+    /// The highest stage (ft) of the open table's rows and the units' tops.
+    pub fn top_ft(&self) -> f64 {
+        let open = self
+            .open
+            .as_ref()
+            .and_then(|o| o.stage_ft.last().copied())
+            .unwrap_or(f64::NEG_INFINITY);
+        self.parts
+            .iter()
+            .map(Underground::top_ft)
+            .fold(open, f64::max)
+    }
+
+    /// Stages where the relation changes form: the open table's rows and
+    /// every unit's bottom and top.
+    pub fn key_stages_ft(&self) -> Vec<f64> {
+        let mut out: Vec<f64> = self
+            .open
+            .as_ref()
+            .map(|o| o.stage_ft.clone())
+            .unwrap_or_default();
+        for p in &self.parts {
+            out.push(p.bottom_ft());
+            out.push(p.top_ft());
+        }
+        out.sort_by(f64::total_cmp);
+        out.dedup();
+        out
+    }
+
+    /// `(stage ft, storage ft3)` at each input row (with underground
+    /// units: at every key stage, [`StageStorage::key_stages_ft`]), storage
+    /// measured from the lowest stage.
+    pub fn rows(&self) -> Vec<(f64, f64)> {
+        match &self.open {
+            Some(o) if self.parts.is_empty() => o.rows(),
+            _ => self
+                .key_stages_ft()
+                .into_iter()
+                .map(|h| (h, self.volume_ft3(h)))
+                .collect(),
+        }
+    }
+
+    /// Storage (ft3) at `stage_ft`, measured from the lowest stage: 0 at and
+    /// below it (and for a NaN stage).
+    pub fn volume_ft3(&self, stage_ft: f64) -> f64 {
+        let open = self.open.as_ref().map_or(0.0, |o| o.volume_ft3(stage_ft));
+        if self.parts.is_empty() {
+            return open;
+        }
+        open + self
+            .parts
+            .iter()
+            .map(|p| p.volume_ft3(stage_ft))
+            .sum::<f64>()
+    }
+
+    /// Plan area of the stored water, dV/dh (ft2), at `stage_ft`: the open
+    /// table's area (see [`OpenTable::area_at_ft2`]) plus each unit's
+    /// ([`Underground::area_ft2`]); 0 below the bottom.
+    pub fn area_at_ft2(&self, stage_ft: f64) -> f64 {
+        let open = self.open.as_ref().map_or(0.0, |o| o.area_at_ft2(stage_ft));
+        open + self.parts.iter().map(|p| p.area_ft2(stage_ft)).sum::<f64>()
+    }
+
+    /// The open water surface (ft2) at `stage_ft`: the open basin's area
+    /// above its bottom, 0 at and below it and without an open basin.
+    pub fn open_surface_ft2(&self, stage_ft: f64) -> f64 {
+        match &self.open {
+            Some(o) if stage_ft > o.bottom_ft() => o.area_at_ft2(stage_ft),
+            _ => 0.0,
+        }
+    }
+
+    /// The open basin's bottom area (ft2): its area at the lowest row (for
+    /// a stage-volume table, the slope of the first segment); 0 without an
+    /// open basin.
+    pub fn open_bottom_area_ft2(&self) -> f64 {
+        self.open
+            .as_ref()
+            .map_or(0.0, |o| o.area_at_ft2(o.bottom_ft()))
+    }
+
+    /// The lowest stage (ft) at which storage reaches `volume_ft3`: the
+    /// bottom for 0 or less (or NaN), `+inf` when the storage never gets
+    /// there (a flat top).
+    pub fn stage_for_volume_ft(&self, volume_ft3: f64) -> f64 {
+        if self.parts.is_empty()
+            && let Some(o) = &self.open
+        {
+            return o.stage_for_volume_ft(volume_ft3);
+        }
+        let bottom = self.bottom_ft();
+        if volume_ft3.is_nan() || volume_ft3 <= 0.0 {
+            return bottom;
+        }
+        let top = self.top_ft();
+        let at_top = self.volume_ft3(top);
+        if volume_ft3 > at_top {
+            let slope = self.open.as_ref().map_or(0.0, OpenTable::top_slope_ft2);
+            // above every row and unit only the open table's last slope remains
+            if slope > 0.0 {
+                return top + (volume_ft3 - at_top) / slope;
+            }
+            return f64::INFINITY;
+        }
+        // bisection on the monotone total volume
+        let (mut lo, mut hi) = (bottom, top);
+        for _ in 0..200 {
+            let mid = 0.5 * (lo + hi);
+            if mid <= lo || mid >= hi {
+                break;
+            }
+            if self.volume_ft3(mid) < volume_ft3 {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+        }
+        hi
     }
 }
 

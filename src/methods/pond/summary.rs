@@ -30,8 +30,12 @@ pub struct PondSummary {
     pub inflow_volume_ft3: f64,
     /// Outflow volume, ft3 (trapezoidal in time, as the routing assumes).
     pub outflow_volume_ft3: f64,
-    /// `(inflow volume - outflow volume - change in storage) / inflow volume`;
-    /// 0 when there is no inflow.
+    /// Volume infiltrated, ft3 (trapezoidal in time; 0 without infiltration).
+    pub infiltrated_ft3: f64,
+    /// Volume evaporated, ft3 (0 for design storms).
+    pub evaporated_ft3: f64,
+    /// `(inflow volume - outflow volume - infiltrated - evaporated - change
+    /// in storage) / inflow volume`; 0 when there is no inflow.
     pub mass_balance_error: f64,
     /// Time (h) from the peak stage until the storage above the starting
     /// storage first falls below 1 % of its peak value; `Some(0.0)` when the
@@ -109,7 +113,7 @@ pub(super) fn trapezoid_volume_ft3(q: impl Iterator<Item = f64>, dt_s: f64) -> f
 /// # Formula
 /// Volumes trapezoidal in time, `V = dt sum (Q_n + Q_{n+1})/2`, as the
 /// storage-indication step assumes (Bedient, Huber & Vieux eq. 4-13);
-/// mass-balance error `(V_in - V_out - (S_end - S_start)) / V_in`.
+/// mass-balance error `(V_in - V_out - V_infiltrated - (S_end - S_start)) / V_in`.
 pub fn summarize(
     table: &PondTable,
     inflow_cfs: &[f64],
@@ -207,8 +211,13 @@ pub(super) fn summarize_core(
 
     let inflow_volume = trapezoid_volume_ft3(inflow.iter().map(|&q| finite_or_zero(q)), dt_s);
     let outflow_volume = trapezoid_volume_ft3(outflow.iter().copied(), dt_s);
+    let infiltrated = routed
+        .infiltration_cfs
+        .get(..n)
+        .map_or(0.0, |l| trapezoid_volume_ft3(l.iter().copied(), dt_s));
     let mass_balance_error = if inflow_volume != 0.0 && inflow_volume.is_finite() {
-        (inflow_volume - outflow_volume - (end_storage - start_storage)) / inflow_volume
+        (inflow_volume - outflow_volume - infiltrated - (end_storage - start_storage))
+            / inflow_volume
     } else {
         0.0
     };
@@ -236,6 +245,8 @@ pub(super) fn summarize_core(
         overtopped: top_ft.is_some_and(|t| peak_stage > t),
         inflow_volume_ft3: inflow_volume,
         outflow_volume_ft3: outflow_volume,
+        infiltrated_ft3: infiltrated,
+        evaporated_ft3: 0.0,
         mass_balance_error,
         drain_time_h,
         lowest_outlet_ft,

@@ -66,7 +66,7 @@ pub(super) fn grid_stages(
     let mut out: Vec<f64> = (1..=fine).map(|i| bottom + i as f64 * step).collect();
     let mut h = bottom + fine as f64 * step;
     // more while rounding (or the row cap) leaves the last stage short of the bound
-    while storage.volume_ft3(h) < max_storage_ft3 {
+    while storage.volume_ft3(h) < max_storage_ft3 || (storage.is_capped() && h < end) {
         let next = if out.len() < FINE_GRID_ROWS {
             bottom + (out.len() + 1) as f64 * step
         } else {
@@ -93,6 +93,10 @@ pub(super) struct Segment {
     pub(super) d_storage_ft3: f64,
     pub(super) outflow_cfs: f64,
     pub(super) d_outflow_cfs: f64,
+    pub(super) loss_cfs: f64,
+    pub(super) d_loss_cfs: f64,
+    pub(super) surface_ft2: f64,
+    pub(super) d_surface_ft2: f64,
 }
 
 /// Stage-storage-discharge table of a pond on a fine stage grid, with the
@@ -103,6 +107,10 @@ pub struct PondTable {
     pub(super) storage_ft3: Vec<f64>,
     pub(super) outflow_cfs: Vec<f64>,
     pub(super) indicator_cfs: Vec<f64>,
+    /// Infiltration (cfs) at each row, a loss beside the outflow.
+    pub(super) loss_cfs: Vec<f64>,
+    /// Open water surface (ft2) at each row, for evaporation.
+    pub(super) surface_ft2: Vec<f64>,
     pub(super) segments: Vec<Segment>,
     pub(super) dt_s: f64,
     pub(super) lowest_outlet_ft: Option<f64>,
@@ -152,6 +160,31 @@ pub(super) fn lowest_orifice_ft(outlets: &[Outlet]) -> Option<(f64, f64)> {
         .min_by(|a, b| a.0.total_cmp(&b.0))
 }
 
+/// The stage (ft) the routing table must reach and the storage (ft3) it
+/// holds there: where the storage reaches `max_storage_ft3`, or, for
+/// storage that is full at its top (underground units alone), where the
+/// outflow alone carries any inflow ([`full_storage_grid_end_ft`]).
+fn grid_bound(
+    storage: &StageStorage,
+    works: &Works<'_>,
+    embankment: Option<&Embankment>,
+    dt_s: f64,
+    max_storage_ft3: f64,
+) -> Result<(f64, f64), PondError> {
+    let s_bound = storage.stage_for_volume_ft(max_storage_ft3);
+    if s_bound.is_finite() {
+        return Ok((s_bound, max_storage_ft3));
+    }
+    if !storage.is_capped() {
+        return Err(PondError::StorageBoundUnreachable {
+            storage_ft3: max_storage_ft3,
+        });
+    }
+    let flow = |h: f64| works.total_cfs(h) + embankment.map_or(0.0, |e| e.flow_cfs(h));
+    let end = full_storage_grid_end_ft(storage, flow, dt_s, max_storage_ft3)?;
+    Ok((end, storage.volume_ft3(end)))
+}
+
 impl PondTable {
     /// Tabulates stage, storage, outflow and `2S/dt + O` for a time step
     /// `dt_s` (s).
@@ -192,13 +225,22 @@ impl PondTable {
             dt_s,
             grid_step_ft,
             max_storage_ft3,
+            &PondLosses::default(),
         )
     }
 
     /// [`PondTable::build`] for a whole outlet structure: outlets, barrels,
     /// tailwater and blocked devices ([`Works`]); outflow at each stage is
     /// [`Works::total_cfs`], and every stage where a device starts to flow
-    /// or changes form ([`Works::key_stages_ft`]) is a grid stage.
+    /// or changes form ([`Works::key_stages_ft`]) is a grid stage. A pond
+    /// that infiltrates has its loss `L` at each stage
+    /// ([`PondLosses::infiltration_cfs`]) tabulated beside the outflow, as
+    /// one more outflow term of the storage-indication value, and the open
+    /// water surface kept for evaporation.
+    ///
+    /// # Formula
+    /// `2S/dt + O + L` (cfs), the storage-indication value with the loss
+    /// (Bedient, Huber & Vieux eq. 4-13, the loss taken as outflow).
     ///
     /// # Errors
     /// As [`PondTable::build`].
@@ -209,6 +251,7 @@ impl PondTable {
         dt_s: f64,
         grid_step_ft: f64,
         max_storage_ft3: f64,
+        losses: &PondLosses,
     ) -> Result<Self, PondError> {
         let outlets = works.outlets;
         check_positive("the time step (s)", dt_s)?;
@@ -233,17 +276,12 @@ impl PondTable {
         }
         let bottom = storage.bottom_ft();
         let step = grid_step_ft;
-        let s_bound = storage.stage_for_volume_ft(max_storage_ft3);
-        if !s_bound.is_finite() {
-            return Err(PondError::StorageBoundUnreachable {
-                storage_ft3: max_storage_ft3,
-            });
-        }
+        let (s_bound, reach_ft3) = grid_bound(storage, works, embankment, dt_s, max_storage_ft3)?;
         // The grid reaches as far as the water can go and no further: an
         // embankment top above the storage bound is never reached, so it
         // does not lengthen the table.
         let end = s_bound.max(bottom + step);
-        let lattice = grid_stages(storage, bottom, step, end, max_storage_ft3)?;
+        let lattice = grid_stages(storage, bottom, step, end, reach_ft3)?;
         let last = *lattice.last().unwrap_or(&bottom);
         let n = lattice.len();
 
@@ -266,7 +304,7 @@ impl PondTable {
         let mut must: Vec<f64> = works
             .key_stages_ft()
             .into_iter()
-            .chain(storage.stage_ft.iter().copied())
+            .chain(storage.key_stages_ft())
             .chain(embankment.map(|e| e.top_ft))
             .chain(refined)
             .filter(|&s| s.is_finite() && s > bottom + MERGE_TOL_FT && s <= last)
@@ -299,10 +337,20 @@ impl PondTable {
         let mut storage_ft3 = Vec::with_capacity(rows);
         let mut outflow_cfs = Vec::with_capacity(rows);
         let mut indicator_cfs = Vec::with_capacity(rows);
+        let mut loss_cfs = Vec::with_capacity(rows);
+        let mut surface_ft2 = Vec::with_capacity(rows);
         for (i, &h) in stage_ft.iter().enumerate() {
             let s = storage.volume_ft3(h);
             let o = works.total_cfs(h) + embankment.map_or(0.0, |e| e.flow_cfs(h));
-            let ind = 2.0 * s / dt_s + o;
+            // no more water can soak away in a step than the pond holds
+            // beyond what its outlets release: L <= 2S/dt - O, so the
+            // routing never draws the pond below empty
+            let l = losses
+                .infiltration_cfs(storage, h)
+                .min((2.0 * s / dt_s - o).max(0.0));
+            loss_cfs.push(l);
+            surface_ft2.push(storage.open_surface_ft2(h));
+            let ind = 2.0 * s / dt_s + o + l;
             let rising = i == 0 || ind > indicator_cfs[i - 1];
             if !ind.is_finite() || !rising {
                 return Err(PondError::IndicatorNotIncreasing {
@@ -326,6 +374,10 @@ impl PondTable {
                 d_storage_ft3: storage_ft3[i + 1] - storage_ft3[i],
                 outflow_cfs: outflow_cfs[i],
                 d_outflow_cfs: outflow_cfs[i + 1] - outflow_cfs[i],
+                loss_cfs: loss_cfs[i],
+                d_loss_cfs: loss_cfs[i + 1] - loss_cfs[i],
+                surface_ft2: surface_ft2[i],
+                d_surface_ft2: surface_ft2[i + 1] - surface_ft2[i],
             })
             .collect();
 
@@ -334,6 +386,8 @@ impl PondTable {
             storage_ft3,
             outflow_cfs,
             indicator_cfs,
+            loss_cfs,
+            surface_ft2,
             segments,
             dt_s,
             lowest_outlet_ft: works.lowest_ft(),
@@ -354,6 +408,16 @@ impl PondTable {
     /// The storage-indication value `2S/dt + O` (cfs) of every grid row.
     pub fn indicator_cfs(&self) -> &[f64] {
         &self.indicator_cfs
+    }
+
+    /// Whether the table holds an infiltration loss.
+    pub fn infiltrates(&self) -> bool {
+        self.loss_cfs.iter().any(|&l| l > 0.0)
+    }
+
+    /// Infiltration (cfs) at every grid row (zeros for a pond without it).
+    pub fn loss_cfs(&self) -> &[f64] {
+        &self.loss_cfs
     }
 
     /// Number of grid rows (at least 2).
