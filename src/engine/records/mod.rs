@@ -595,8 +595,7 @@ impl ElementSim for RecordSim<'_, '_> {
                 element_record(run, who, &out, &st, None)
             }
             ElementKind::Pond(p) => {
-                let entry =
-                    route_pond(run, c, i, p, inflow_cfs, &mut out, self.pool, self.res)?;
+                let entry = route_pond(run, c, i, p, inflow_cfs, &mut out, self.pool, self.res)?;
                 // what the pond lost to the ground and the air never reaches a point
                 if let Some(lost) = entry.pond.as_ref().and_then(|pr| pr.lost) {
                     self.generated_ft3[i] = -(lost.infiltrated_ft3 + lost.evaporated_ft3);

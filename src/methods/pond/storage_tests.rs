@@ -293,9 +293,16 @@ fn drain(
     let (s, o, l) = infiltrating_basin(area, in_per_h, InfiltrationArea::Wetted);
     let dt = 300.0;
     let inflow = vec![0.0; hours * 12 + 1];
-    let table =
-        PondTable::build_with_losses(&s, &o, None, dt, 0.01, s.volume_ft3(start_ft) + 1.0, &l)
-            .unwrap();
+    let table = PondTable::build_works(
+        &s,
+        &crate::methods::hydraulics::Works::free(&o),
+        None,
+        dt,
+        0.01,
+        s.volume_ft3(start_ft) + 1.0,
+        &l,
+    )
+    .unwrap();
     let routed = route(&table, &inflow, start_ft);
     let sm = summarize(&table, &inflow, &routed, dt, start_ft, None);
     (routed, sm, table)
@@ -329,7 +336,16 @@ fn drain_after_fill(in_per_h: f64) -> (f64, f64) {
     let inflow: Vec<f64> = (0..12 * 200)
         .map(|k| if k <= 12 { q } else { 0.0 })
         .collect();
-    let table = PondTable::build_with_losses(&s, &o, None, dt, 0.01, 20_000.0, &l).unwrap();
+    let table = PondTable::build_works(
+        &s,
+        &crate::methods::hydraulics::Works::free(&o),
+        None,
+        dt,
+        0.01,
+        20_000.0,
+        &l,
+    )
+    .unwrap();
     let routed = route(&table, &inflow, 0.0);
     let sm = summarize(&table, &inflow, &routed, dt, 0.0, None);
     assert!(sm.mass_balance_error.abs() < 1e-9, "{sm:?}");
@@ -408,7 +424,16 @@ fn routing_with_infiltration_and_evaporation_keeps_the_mass_balance() {
         .collect();
     let inflow = series.clone();
     let bound = trapezoid(&inflow, dt) * 1.02 + 1.0;
-    let table = PondTable::build_with_losses(&s, &outlets, None, dt, 0.01, bound, &losses).unwrap();
+    let table = PondTable::build_works(
+        &s,
+        &crate::methods::hydraulics::Works::free(&outlets),
+        None,
+        dt,
+        0.01,
+        bound,
+        &losses,
+    )
+    .unwrap();
     // 2001-01-01
     let evap = evaporation_schedule(978_307_200, 900, n, &losses.evaporation_ft_per_day);
     assert_eq!(evap.len(), 3, "January, February, March: {evap:?}");
