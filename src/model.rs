@@ -109,6 +109,19 @@ pub enum StormRain {
         /// Duration, h.
         duration_h: f64,
     },
+    /// A nested storm from local depth-duration values (alternating-block
+    /// method), built at the run's step.
+    Nested {
+        /// `(duration h, depth in)`, checked: both increasing, average
+        /// intensity never increasing.
+        depths: Vec<(f64, f64)>,
+        /// Fraction of the duration at which the largest block falls.
+        peak_at: f64,
+        /// Duration, h.
+        duration_h: f64,
+        /// Depth over the duration, in.
+        depth_in: f64,
+    },
     /// A gauge record: rain per interval, the first starting at t = 0.
     Gauge {
         /// File, as resolved.
@@ -126,7 +139,7 @@ impl Storm {
     /// Total rain depth, in.
     pub fn depth_in(&self) -> f64 {
         match &self.rain {
-            StormRain::Pattern { depth_in, .. } => *depth_in,
+            StormRain::Pattern { depth_in, .. } | StormRain::Nested { depth_in, .. } => *depth_in,
             StormRain::Gauge { depth_in, .. } => depth_in.iter().sum(),
         }
     }
@@ -134,7 +147,9 @@ impl Storm {
     /// When the rain ends, h from the storm start.
     pub fn rain_end_h(&self) -> f64 {
         match &self.rain {
-            StormRain::Pattern { duration_h, .. } => *duration_h,
+            StormRain::Pattern { duration_h, .. } | StormRain::Nested { duration_h, .. } => {
+                *duration_h
+            }
             StormRain::Gauge {
                 depth_in,
                 interval_h,
@@ -147,7 +162,7 @@ impl Storm {
     pub fn nrcs(&self) -> Option<NrcsType> {
         match &self.rain {
             StormRain::Pattern { nrcs, .. } => *nrcs,
-            StormRain::Gauge { .. } => None,
+            StormRain::Nested { .. } | StormRain::Gauge { .. } => None,
         }
     }
 
@@ -161,6 +176,21 @@ impl Storm {
                 ..
             } => {
                 crate::methods::rainfall::hyetograph(curve, *depth_in, *duration_h, step_h, n_steps)
+            }
+            StormRain::Nested {
+                depths,
+                peak_at,
+                duration_h,
+                ..
+            } => {
+                crate::methods::rainfall::nested::hyetograph(
+                    depths,
+                    *duration_h,
+                    *peak_at,
+                    step_h,
+                    n_steps,
+                )
+                .0
             }
             StormRain::Gauge {
                 depth_in,

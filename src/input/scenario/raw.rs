@@ -177,6 +177,12 @@ pub struct RawStorm {
     pub duration: Option<Spanned<RawValue>>,
     /// Mass curve for `pattern = "table"`.
     pub table: Option<Spanned<Rows>>,
+    /// Local depth-duration values for `pattern = "nested"`:
+    /// `[["5 min", "0.48 in"], ...]`.
+    pub depths: Option<Spanned<Vec<Spanned<Vec<Spanned<RawValue>>>>>>,
+    /// Where a nested storm's largest block falls: a fraction of the
+    /// duration or a time from the start.
+    pub peak_at: Option<Spanned<RawValue>>,
     /// Gauge CSV path.
     pub gauge: Option<Spanned<String>>,
     /// Gauge interval.
