@@ -306,12 +306,60 @@ pub struct Catchment {
     pub retention_in: f64,
     /// Flow path segments (empty when `tc` was given directly).
     pub segments: Vec<Segment>,
-    /// Time of concentration, h.
+    /// Time of concentration, h (from the lag, `Tc = L / 0.6`, when a lag
+    /// was given).
     pub tc_h: f64,
+    /// Watershed lag of the unit hydrograph, h (`0.6 Tc` unless given or
+    /// computed by the watershed-lag equation).
+    pub uh_lag_h: f64,
+    /// Which input the timing came from.
+    pub timing_basis: TimingBasis,
     /// Peak rate factor.
     pub prf: f64,
     /// Unit-hydrograph shape.
     pub shape: Shape,
+}
+
+/// Where a catchment's timing comes from.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum TimingBasis {
+    /// `tc` given; lag = 0.6 Tc.
+    TcGiven,
+    /// TR-55 velocity method over the flow path; lag = 0.6 Tc.
+    FlowPath,
+    /// `lag_time` given; Tc = lag / 0.6.
+    LagGiven,
+    /// NRCS watershed-lag equation (Bedient et al. eq. 2-18); Tc = lag / 0.6.
+    WatershedLag {
+        /// Length to the divide, ft.
+        length_ft: f64,
+        /// Average watershed slope, ft/ft.
+        slope: f64,
+    },
+}
+
+impl TimingBasis {
+    /// A short description for reports.
+    pub fn describe(&self) -> &'static str {
+        match self {
+            TimingBasis::TcGiven => "Tc given; lag = 0.6 Tc",
+            TimingBasis::FlowPath => "Tc by the TR-55 velocity method; lag = 0.6 Tc",
+            TimingBasis::LagGiven => "lag given; Tc = lag / 0.6",
+            TimingBasis::WatershedLag { .. } => {
+                "lag by the NRCS watershed-lag equation (Bedient et al. eq. 2-18); Tc = lag / 0.6"
+            }
+        }
+    }
+
+    /// The word written in `summary.json`.
+    pub fn word(&self) -> &'static str {
+        match self {
+            TimingBasis::TcGiven => "tc",
+            TimingBasis::FlowPath => "flow path",
+            TimingBasis::LagGiven => "lag_time",
+            TimingBasis::WatershedLag { .. } => "watershed_lag",
+        }
+    }
 }
 
 /// A validated pond.

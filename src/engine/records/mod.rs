@@ -325,10 +325,7 @@ pub fn input_warnings(study: &Study) -> Vec<Warning> {
         }
         for e in &study.elements {
             if let ElementKind::Catchment(c) = &e.kind {
-                let tp = unit_hydrograph::time_to_peak_h(
-                    r.step_h,
-                    crate::methods::timing::lag_h(c.tc_h),
-                );
+                let tp = unit_hydrograph::time_to_peak_h(r.step_h, c.uh_lag_h);
                 if r.step_h > 0.25 * tp {
                     out.push(Warning::RecordStepCoarse {
                         record: r.name.clone(),
@@ -623,7 +620,7 @@ fn simulate_catchment(
     let r = run.record;
     let step_h = run.step_h;
     let clock = std::time::Instant::now();
-    let tp_h = unit_hydrograph::time_to_peak_h(step_h, crate::methods::timing::lag_h(cat.tc_h));
+    let tp_h = unit_hydrograph::time_to_peak_h(step_h, cat.uh_lag_h);
     let uh = unit_hydrograph::ordinates_cfs_per_in(cat.shape, cat.area_ac, tp_h, step_h);
     let month_of = |k: usize| calendar::month_of(r.start_s + k as i64 * run.step_s);
     // Each rainy interval's excess goes straight into the convolution (no

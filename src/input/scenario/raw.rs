@@ -207,6 +207,10 @@ pub struct RawCatchment {
     pub cn: Option<Spanned<f64>>,
     /// Time of concentration.
     pub tc: Option<Spanned<RawValue>>,
+    /// Watershed lag of the unit hydrograph, given directly.
+    pub lag_time: Option<Spanned<RawValue>>,
+    /// Watershed lag by the NRCS curve-number lag equation.
+    pub watershed_lag: Option<Spanned<RawWatershedLag>>,
     /// Initial-abstraction ratio.
     pub lambda: Option<Spanned<f64>>,
     /// Translation to `to`.
@@ -219,6 +223,16 @@ pub struct RawCatchment {
     /// Flow path.
     #[serde(default)]
     pub flow: Vec<Spanned<RawFlow>>,
+}
+
+/// `watershed_lag = { length, slope }`.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawWatershedLag {
+    /// Hydraulic length to the divide.
+    pub length: Option<Spanned<RawValue>>,
+    /// Average watershed slope.
+    pub slope: Option<Spanned<RawValue>>,
 }
 
 /// `[[catchment.cover]]`.
