@@ -540,6 +540,9 @@ pub struct Record {
     pub start_s: i64,
     /// Moisture accounting.
     pub moisture: MoistureMode,
+    /// Regional skew to weight the frequency fits' station skews with
+    /// (Bulletin 17B), when given.
+    pub regional_skew: Option<crate::methods::stats::RegionalSkew>,
 }
 
 /// Which outlet field a sizing range sets.

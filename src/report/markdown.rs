@@ -128,6 +128,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)], record_md:
     // Verdict first.
     design_points(&mut m, s, &u);
     pond_checks(&mut m, s, &u);
+    crate::report::storms::markdown(&mut m, &s.storms, u.depth);
     worksheet(&mut m, s, &u);
     events(&mut m, s, &u);
     for e in &study.elements {

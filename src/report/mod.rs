@@ -5,5 +5,6 @@ pub mod csv;
 pub mod markdown;
 pub mod plot;
 pub mod records;
+pub mod storms;
 pub mod summary;
 pub mod table;

@@ -361,6 +361,8 @@ pub struct Summary {
     pub baseline_present: bool,
     /// Catchments.
     pub catchments: Vec<CatchmentOut>,
+    /// Design storms: pattern, depth, duration and tabulation.
+    pub storms: Vec<crate::report::storms::StormOut>,
     /// Events.
     pub events: Vec<EventOut>,
     /// Point comparisons.
@@ -514,6 +516,7 @@ pub fn build(
             .collect(),
         baseline_present: !study.baseline_empty,
         catchments,
+        storms: crate::report::storms::storms_out(study),
         events,
         comparisons,
         pond_checks,

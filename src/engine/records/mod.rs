@@ -28,7 +28,7 @@ mod result;
 pub use result::*;
 
 /// Return periods of the frequency table, years.
-pub const RETURN_PERIODS: [f64; 7] = [1.5, 2.0, 5.0, 10.0, 25.0, 50.0, 100.0];
+pub const RETURN_PERIODS: [f64; 9] = [1.5, 2.0, 5.0, 10.0, 25.0, 50.0, 100.0, 200.0, 500.0];
 /// Exceedance fractions of the flow-duration table.
 pub const EXCEEDANCES: [f64; 9] = [0.0001, 0.001, 0.01, 0.05, 0.1, 0.2, 0.3, 0.5, 0.9];
 /// Number of flow levels of a duration control (evenly spaced in log).
@@ -203,8 +203,10 @@ fn element_record(
             zero_years.push(a.year);
         }
     }
-    let lp3 = stats::fit_lp3(&fit_values);
-    let frequency = match &lp3 {
+    // Bulletin 17B: low-outlier test, regional skew weighting (stats::b17b).
+    let frequency_analysis = stats::bulletin17b(&fit_values, run.record.regional_skew);
+    let lp3 = frequency_analysis.as_ref().map(|a| a.fit);
+    let frequency = match &frequency_analysis {
         Some(f) => RETURN_PERIODS
             .iter()
             .map(|&t| FrequencyFlow {
@@ -238,6 +240,7 @@ fn element_record(
         zero_years,
         frequency,
         lp3,
+        frequency_analysis,
         flow_duration_cfs,
         events: None,
         pond: None,

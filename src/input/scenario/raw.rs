@@ -438,4 +438,8 @@ pub struct RawRecord {
     pub growing_months: Option<Spanned<Vec<i64>>>,
     /// Monthly potential evapotranspiration, depth per day (12 values).
     pub pet: Option<Spanned<Vec<RawValue>>>,
+    /// Regional (generalized) skew for the frequency fits (Bulletin 17B).
+    pub regional_skew: Option<Spanned<f64>>,
+    /// Mean square error of `regional_skew`.
+    pub regional_skew_mse: Option<Spanned<f64>>,
 }
