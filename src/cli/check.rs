@@ -96,7 +96,7 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
                 g.time_h
             );
         }
-        timing_lines(&mut t, c, fu, du);
+        timing_lines(&mut t, c, [fu, du, lu]);
         for g in s.graphical_checks.iter().filter(|g| g.catchment == c.name) {
             let _ = writeln!(
                 t,
@@ -152,12 +152,13 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
 
 /// A catchment's timing: where it came from, Tc, lag and Tp, and the
 /// unit-hydrograph peak both by the formula and as sampled at the step.
-fn timing_lines(t: &mut String, c: &summary::CatchmentOut, fu: &str, du: &str) {
+fn timing_lines(t: &mut String, c: &summary::CatchmentOut, units: [&str; 3]) {
+    let [fu, du, lu] = units;
     let basis = match c.timing {
         "lag_time" => "lag given (`lag_time`), Tc = lag / 0.6".to_string(),
         "watershed_lag" => match &c.watershed_lag {
             Some(w) => format!(
-                "lag by the NRCS watershed-lag equation (Bedient et al. eq. 2-18; length {}, slope {:.3} %), Tc = lag / 0.6",
+                "lag by the NRCS watershed-lag equation (Bedient et al. eq. 2-18; length {} {lu}, slope {:.3} %), Tc = lag / 0.6",
                 sig(w.length, 5),
                 w.slope_pct
             ),

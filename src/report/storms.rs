@@ -88,7 +88,7 @@ fn nested_note(n: &nested::Interpolated, step_h: f64) -> String {
     let mut s = format!(
         "{} blocks of {} min: {} durations from the table",
         n.blocks,
-        sig(step_h * 60.0, 4),
+        crate::util::units::short(step_h * 60.0, 4),
         n.from_table
     );
     if n.log_log > 0 {

@@ -48,13 +48,47 @@ pub fn slopes(points: &[(f64, f64)]) -> Vec<f64> {
     m
 }
 
-/// The Hermite cubic through `points` with `slopes` at `x`; the first y
-/// below the first x, the last above the last.
+/// Slopes at both ends of every interval: the monotone cubic of [`slopes`]
+/// everywhere, except that interval `straight` (if any) is a straight line
+/// and the points on each side of it are interpolated as two separate
+/// curves, each ending on its own secant there (so both stay monotone; the
+/// intensity jumps at the two ends of the straight interval, as published).
+pub fn interval_slopes(points: &[(f64, f64)], straight: Option<usize>) -> Vec<[f64; 2]> {
+    let n = points.len();
+    if n < 2 {
+        return Vec::new();
+    }
+    let secant = |i: usize| (points[i + 1].1 - points[i].1) / (points[i + 1].0 - points[i].0);
+    match straight {
+        Some(k) if k + 1 < n => {
+            let left = slopes(&points[..=k]);
+            let right = slopes(&points[k + 1..]);
+            (0..n - 1)
+                .map(|i| {
+                    if i < k {
+                        [left[i], left[i + 1]]
+                    } else if i == k {
+                        [secant(k), secant(k)]
+                    } else {
+                        [right[i - k - 1], right[i - k]]
+                    }
+                })
+                .collect()
+        }
+        _ => {
+            let m = slopes(points);
+            (0..n - 1).map(|i| [m[i], m[i + 1]]).collect()
+        }
+    }
+}
+
+/// The Hermite cubic through `points` with slopes `[start, end]` for each
+/// interval; the first y below the first x, the last above the last.
 ///
 /// # Formula
 /// With `h = x_{k+1} - x_k` and `s = (x - x_k)/h`:
 /// `y = (2s^3 - 3s^2 + 1) y_k + (s^3 - 2s^2 + s) h m_k + (-2s^3 + 3s^2) y_{k+1} + (s^3 - s^2) h m_{k+1}`.
-pub fn eval(points: &[(f64, f64)], slopes: &[f64], x: f64) -> f64 {
+pub fn eval(points: &[(f64, f64)], slopes: &[[f64; 2]], x: f64) -> f64 {
     let (Some(first), Some(last)) = (points.first(), points.last()) else {
         return 0.0;
     };
@@ -71,7 +105,7 @@ pub fn eval(points: &[(f64, f64)], slopes: &[f64], x: f64) -> f64 {
     if h <= 0.0 {
         return y1;
     }
-    let (m0, m1) = (slopes[i - 1], slopes[i]);
+    let [m0, m1] = slopes.get(i - 1).copied().unwrap_or([0.0, 0.0]);
     let s = (x - x0) / h;
     let s2 = s * s;
     let s3 = s2 * s;
@@ -91,12 +125,12 @@ mod tests {
         // is constant where the data are; Fritsch and Butland (1984) slopes are 0
         // beside a flat run
         let p = [(0.0, 0.0), (1.0, 1.0), (2.0, 1.0), (3.0, 4.0)];
-        let m = slopes(&p);
+        let m = interval_slopes(&p, None);
         for &(x, y) in &p {
             assert!((eval(&p, &m, x) - y).abs() < 1e-12);
         }
         assert!((eval(&p, &m, 1.5) - 1.0).abs() < 1e-12);
-        assert_eq!((m[1], m[2]), (0.0, 0.0));
+        assert_eq!((m[0][1], m[1][0], m[1][1]), (0.0, 0.0, 0.0));
     }
 
     #[test]
@@ -104,15 +138,20 @@ mod tests {
         // Fritsch and Carlson (1980): linear data stay linear; monotone data give a
         // monotone interpolant (slopes within 0 <= m/d <= 3, Fritsch and Butland 1984)
         let line = [(0.0, 1.0), (2.0, 5.0), (3.0, 7.0)];
-        let m = slopes(&line);
+        let m = interval_slopes(&line, None);
         assert!((eval(&line, &m, 2.5) - 6.0).abs() < 1e-12);
         let step = [(0.0, 0.0), (1.0, 0.01), (1.1, 0.9), (2.0, 0.91), (3.0, 1.0)];
-        let m = slopes(&step);
-        let mut prev = 0.0;
-        for k in 0..=3000 {
-            let y = eval(&step, &m, k as f64 / 1000.0);
-            assert!(y >= prev - 1e-15 && y <= 1.0 + 1e-15, "at {k}: {y}");
-            prev = y;
+        for straight in [None, Some(1)] {
+            let m = interval_slopes(&step, straight);
+            let mut prev = 0.0;
+            for k in 0..=3000 {
+                let y = eval(&step, &m, k as f64 / 1000.0);
+                assert!(y >= prev - 1e-15 && y <= 1.0 + 1e-15, "at {k}: {y}");
+                prev = y;
+            }
         }
+        // the straight interval is the secant line
+        let m = interval_slopes(&step, Some(1));
+        assert!((eval(&step, &m, 1.05) - 0.455).abs() < 1e-12);
     }
 }
