@@ -652,7 +652,7 @@ pub fn markdown(study: &Study, entries: &[RecordOut], comparisons: &[ComparisonO
         }
         let _ = writeln!(m);
         let mine: Vec<&RecordOut> = entries.iter().filter(|e| e.record == r.name).collect();
-        frequency_notes(&mut m, &mine, &fu);
+        frequency_notes(&mut m, &mine, fu);
         if comparisons
             .iter()
             .any(|c| c.record.as_deref() == Some(&r.name))

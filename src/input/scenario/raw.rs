@@ -163,6 +163,10 @@ pub struct RawScenario {
     pub record: Vec<Spanned<RawRecord>>,
 }
 
+/// Rows of `[duration, depth]` pairs with their positions, e.g.
+/// `[["5 min", "0.48 in"], ["24 h", "4.3 in"]]`.
+pub type DepthRows = Vec<Spanned<Vec<Spanned<RawValue>>>>;
+
 /// `[[storm]]`.
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -179,7 +183,7 @@ pub struct RawStorm {
     pub table: Option<Spanned<Rows>>,
     /// Local depth-duration values for `pattern = "nested"`:
     /// `[["5 min", "0.48 in"], ...]`.
-    pub depths: Option<Spanned<Vec<Spanned<Vec<Spanned<RawValue>>>>>>,
+    pub depths: Option<Spanned<DepthRows>>,
     /// Where a nested storm's largest block falls: a fraction of the
     /// duration or a time from the start.
     pub peak_at: Option<Spanned<RawValue>>,
