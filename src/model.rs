@@ -109,6 +109,19 @@ pub enum StormRain {
         /// Duration, h.
         duration_h: f64,
     },
+    /// A nested storm from local depth-duration values (alternating-block
+    /// method), built at the run's step.
+    Nested {
+        /// `(duration h, depth in)`, checked: both increasing, average
+        /// intensity never increasing.
+        depths: Vec<(f64, f64)>,
+        /// Fraction of the duration at which the largest block falls.
+        peak_at: f64,
+        /// Duration, h.
+        duration_h: f64,
+        /// Depth over the duration, in.
+        depth_in: f64,
+    },
     /// A gauge record: rain per interval, the first starting at t = 0.
     Gauge {
         /// File, as resolved.
@@ -126,7 +139,7 @@ impl Storm {
     /// Total rain depth, in.
     pub fn depth_in(&self) -> f64 {
         match &self.rain {
-            StormRain::Pattern { depth_in, .. } => *depth_in,
+            StormRain::Pattern { depth_in, .. } | StormRain::Nested { depth_in, .. } => *depth_in,
             StormRain::Gauge { depth_in, .. } => depth_in.iter().sum(),
         }
     }
@@ -134,7 +147,9 @@ impl Storm {
     /// When the rain ends, h from the storm start.
     pub fn rain_end_h(&self) -> f64 {
         match &self.rain {
-            StormRain::Pattern { duration_h, .. } => *duration_h,
+            StormRain::Pattern { duration_h, .. } | StormRain::Nested { duration_h, .. } => {
+                *duration_h
+            }
             StormRain::Gauge {
                 depth_in,
                 interval_h,
@@ -147,7 +162,7 @@ impl Storm {
     pub fn nrcs(&self) -> Option<NrcsType> {
         match &self.rain {
             StormRain::Pattern { nrcs, .. } => *nrcs,
-            StormRain::Gauge { .. } => None,
+            StormRain::Nested { .. } | StormRain::Gauge { .. } => None,
         }
     }
 
@@ -161,6 +176,21 @@ impl Storm {
                 ..
             } => {
                 crate::methods::rainfall::hyetograph(curve, *depth_in, *duration_h, step_h, n_steps)
+            }
+            StormRain::Nested {
+                depths,
+                peak_at,
+                duration_h,
+                ..
+            } => {
+                crate::methods::rainfall::nested::hyetograph(
+                    depths,
+                    *duration_h,
+                    *peak_at,
+                    step_h,
+                    n_steps,
+                )
+                .0
             }
             StormRain::Gauge {
                 depth_in,
@@ -276,12 +306,60 @@ pub struct Catchment {
     pub retention_in: f64,
     /// Flow path segments (empty when `tc` was given directly).
     pub segments: Vec<Segment>,
-    /// Time of concentration, h.
+    /// Time of concentration, h (from the lag, `Tc = L / 0.6`, when a lag
+    /// was given).
     pub tc_h: f64,
+    /// Watershed lag of the unit hydrograph, h (`0.6 Tc` unless given or
+    /// computed by the watershed-lag equation).
+    pub uh_lag_h: f64,
+    /// Which input the timing came from.
+    pub timing_basis: TimingBasis,
     /// Peak rate factor.
     pub prf: f64,
     /// Unit-hydrograph shape.
     pub shape: Shape,
+}
+
+/// Where a catchment's timing comes from.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum TimingBasis {
+    /// `tc` given; lag = 0.6 Tc.
+    TcGiven,
+    /// TR-55 velocity method over the flow path; lag = 0.6 Tc.
+    FlowPath,
+    /// `lag_time` given; Tc = lag / 0.6.
+    LagGiven,
+    /// NRCS watershed-lag equation (Bedient et al. eq. 2-18); Tc = lag / 0.6.
+    WatershedLag {
+        /// Length to the divide, ft.
+        length_ft: f64,
+        /// Average watershed slope, ft/ft.
+        slope: f64,
+    },
+}
+
+impl TimingBasis {
+    /// A short description for reports.
+    pub fn describe(&self) -> &'static str {
+        match self {
+            TimingBasis::TcGiven => "Tc given; lag = 0.6 Tc",
+            TimingBasis::FlowPath => "Tc by the TR-55 velocity method; lag = 0.6 Tc",
+            TimingBasis::LagGiven => "lag given; Tc = lag / 0.6",
+            TimingBasis::WatershedLag { .. } => {
+                "lag by the NRCS watershed-lag equation (Bedient et al. eq. 2-18); Tc = lag / 0.6"
+            }
+        }
+    }
+
+    /// The word written in `summary.json`.
+    pub fn word(&self) -> &'static str {
+        match self {
+            TimingBasis::TcGiven => "tc",
+            TimingBasis::FlowPath => "flow path",
+            TimingBasis::LagGiven => "lag_time",
+            TimingBasis::WatershedLag { .. } => "watershed_lag",
+        }
+    }
 }
 
 /// A validated pond.
@@ -535,6 +613,9 @@ pub struct Record {
     pub start_s: i64,
     /// Moisture accounting.
     pub moisture: MoistureMode,
+    /// Regional skew to weight the frequency fits' station skews with
+    /// (Bulletin 17B), when given.
+    pub regional_skew: Option<crate::methods::stats::RegionalSkew>,
 }
 
 /// Which outlet field a sizing range sets.

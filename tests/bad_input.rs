@@ -129,6 +129,15 @@ const CASES: &[Case] = &[
     case("pattern-table-not-to-one", LineCol(14, 9), &["storm \"burst\", table", "ends at [1, 1]"]),
     case("pattern-table-row-length", LineCol(14, 9), &["storm \"burst\", table", "row 2"]),
     case("duration-missing-table", Line(11), &["storm \"burst\"", "`duration`"]),
+    // Issue 15: nested storms, lag inputs, shallow-flow surfaces, regional skew.
+    case("nested-intensity-rises", LineCol(14, 10), &["storm \"burst\", depths", "row 3", "average intensities must not increase"]),
+    case("nested-with-depth", LineCol(14, 9), &["storm \"burst\", depth", "takes its depth from `depths`"]),
+    case("nested-peak-outside", LineCol(15, 11), &["storm \"burst\", peak_at", "outside the storm"]),
+    case("depths-without-nested", LineCol(17, 10), &["storm \"burst\", depths", "only used with pattern = \"nested\""]),
+    case("timing-tc-and-lag", LineCol(25, 12), &["catchment \"EX-1\", lag_time", "also has tc"]),
+    case("watershed-lag-no-slope", LineCol(24, 17), &["catchment \"EX-1\", watershed_lag", "`slope`"]),
+    case("surface-typo-waterway", LineCol(45, 11), &["flow segment 2, surface", "did you mean `grassed-waterway`"]),
+    case("regional-skew-without-mse", LineCol(76, 17), &["record \"june-record\", regional_skew", "regional_skew_mse"]),
     case("inflow-times-decreasing", Line(72), &["inflow \"offsite\"", "row 3"]),
     // Ponds and outlets.
     // Outlet structures: barrels, tailwater, clogged-outlet checks (issue 13).

@@ -25,7 +25,8 @@ fn type_ii_csv(depth_in: f64, start_s: i64, pad_days: i64, total_days: i64) -> S
         } else {
             0.0
         };
-        let _ = writeln!(out, "{},{d:.9}", stamp(start_s + (k + 1) * dt));
+        // full precision: the record must hold exactly the design storm's rain
+        let _ = writeln!(out, "{},{d}", stamp(start_s + (k + 1) * dt));
     }
     out
 }

@@ -95,14 +95,7 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
                 g.time_h
             );
         }
-        let _ = writeln!(
-            t,
-            "    Tc {:.3} h, lag {:.3} h, Tp {:.3} h, unit-hydrograph peak {} {fu} per {du}",
-            c.tc_h,
-            c.lag_h,
-            c.tp_h,
-            sig(c.uh_peak_per_depth, 4)
-        );
+        timing_lines(&mut t, c, [fu, du, lu]);
         for g in s.graphical_checks.iter().filter(|g| g.catchment == c.name) {
             let _ = writeln!(
                 t,
@@ -154,6 +147,37 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
     }
     let warnings = s.warnings.to_vec();
     Ok((t, warnings))
+}
+
+/// A catchment's timing: where it came from, Tc, lag and Tp, and the
+/// unit-hydrograph peak both by the formula and as sampled at the step.
+fn timing_lines(t: &mut String, c: &summary::CatchmentOut, units: [&str; 3]) {
+    let [fu, du, lu] = units;
+    let basis = match c.timing {
+        "lag_time" => "lag given (`lag_time`), Tc = lag / 0.6".to_string(),
+        "watershed_lag" => match &c.watershed_lag {
+            Some(w) => format!(
+                "lag by the NRCS watershed-lag equation (Bedient et al. eq. 2-18; length {} {lu}, slope {:.3} %), Tc = lag / 0.6",
+                sig(w.length, 5),
+                w.slope_pct
+            ),
+            None => "lag by the NRCS watershed-lag equation, Tc = lag / 0.6".to_string(),
+        },
+        "tc" => "Tc given, lag = 0.6 Tc".to_string(),
+        _ => "Tc by the TR-55 velocity method, lag = 0.6 Tc".to_string(),
+    };
+    let _ = writeln!(
+        t,
+        "    Tc {:.3} h, lag {:.3} h, Tp {:.3} h ({basis})",
+        c.tc_h, c.lag_h, c.tp_h
+    );
+    let _ = writeln!(
+        t,
+        "    unit-hydrograph peak per {du} of runoff: {} A Q / Tp = {} {fu}; sampled at the step {} {fu}",
+        c.prf,
+        sig(c.uh_formula_peak_per_depth, 4),
+        sig(c.uh_peak_per_depth, 4)
+    );
 }
 
 /// The `estimate` command: the storage estimate alone.
@@ -277,19 +301,24 @@ pub fn estimate_text(study: &Study, a: &analysis::Analysis) -> String {
                     continue;
                 }
                 let ratio = storage_estimate::storage_ratio(analysis::storm_type(kind), qo / qi);
-                let vr = network::volume_ft3(&pr.inflow_cfs, st.step_h);
+                let hydrograph_vr = network::volume_ft3(&pr.inflow_cfs, st.step_h);
+                let tr55 = tr55_runoff_volume(study, &a.topology, c, i);
+                // TR-55 chapter 6 multiplies Vs/Vr by its own Vr = 53.33 Q Am; a pond
+                // that also takes inflow hydrographs has no such Q, so its inflow
+                // hydrograph's volume stands in.
+                let vr = tr55.map_or(hydrograph_vr, |v| v.volume_ft3);
                 let vs = ratio.vs_over_vr * vr;
                 let stage = stage_for_volume(p, p.storage.volume_ft3(pr.start_ft) + vs);
                 let _ = writeln!(
                     t,
-                    "{head}{} -> Vs/Vr {:.3}, Vr {} {vu}, Vs {} {vu}, reaching stage {:.2} {lu}",
+                    "{head}{} -> Vs/Vr {:.3}, {}, Vs {} {vu}, reaching stage {:.2} {lu}",
                     if ratio.outside_range {
                         " (outside the figure's 0.1-0.8)"
                     } else {
                         ""
                     },
                     ratio.vs_over_vr,
-                    sig(o.volume(vr), 5),
+                    vr_text(tr55, hydrograph_vr, o),
                     sig(o.volume(vs), 5),
                     o.length(stage)
                 );
@@ -297,4 +326,73 @@ pub fn estimate_text(study: &Study, a: &analysis::Analysis) -> String {
         }
     }
     t
+}
+
+/// The TR-55 chapter 6 runoff volume of the catchments draining through a
+/// pond in one storm and condition.
+#[derive(Debug, Clone, Copy)]
+struct Tr55Volume {
+    /// Area-weighted runoff depth Q, in.
+    runoff_in: f64,
+    /// Drainage area Am, mi2.
+    area_mi2: f64,
+    /// Vr = 53.33 Q Am, ft3.
+    volume_ft3: f64,
+}
+
+/// Vr = 53.33 Q Am (TR-55 chapter 6) over the catchments whose runoff
+/// passes through pond `i`; `None` when an inflow hydrograph also does (its
+/// volume has no runoff depth) or no catchment does.
+fn tr55_runoff_volume(
+    study: &Study,
+    topology: &crate::engine::topology::Topology,
+    c: &network::ConditionResult,
+    i: usize,
+) -> Option<Tr55Volume> {
+    let (mut qa, mut area_ac) = (0.0, 0.0);
+    for (j, er) in c.elements.iter().enumerate() {
+        let Some(er) = er else { continue };
+        if j == i || !topology.reaches_through(j, i) {
+            continue;
+        }
+        match (&study.elements[j].kind, &er.runoff) {
+            (ElementKind::Catchment(cat), Some(r)) => {
+                qa += r.runoff_in * cat.area_ac;
+                area_ac += cat.area_ac;
+            }
+            (ElementKind::Inflow(_), _) => return None,
+            _ => {}
+        }
+    }
+    if area_ac <= 0.0 {
+        return None;
+    }
+    let runoff_in = qa / area_ac;
+    let area_mi2 = area_ac / 640.0;
+    let acft = storage_estimate::tr55_runoff_volume_acft(runoff_in, area_mi2);
+    Some(Tr55Volume {
+        runoff_in,
+        area_mi2,
+        volume_ft3: acft * 43_560.0,
+    })
+}
+
+/// The runoff volume part of an estimate line: TR-55's Vr beside the
+/// inflow hydrograph's volume.
+fn vr_text(tr55: Option<Tr55Volume>, hydrograph_ft3: f64, o: Out) -> String {
+    let vu = o.unit(Quantity::Volume);
+    let du = o.unit(Quantity::Depth);
+    match tr55 {
+        Some(v) => format!(
+            "Vr = 53.33 Q Am {} {vu} (Q {} {du}, Am {} mi2; TR-55), inflow hydrograph {} {vu}",
+            sig(o.volume(v.volume_ft3), 5),
+            sig(o.depth(v.runoff_in), 4),
+            sig(v.area_mi2, 4),
+            sig(o.volume(hydrograph_ft3), 5)
+        ),
+        None => format!(
+            "Vr {} {vu} (the inflow hydrograph's volume: an inflow hydrograph reaches the pond, so TR-55's 53.33 Q Am does not apply)",
+            sig(o.volume(hydrograph_ft3), 5)
+        ),
+    }
 }

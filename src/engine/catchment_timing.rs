@@ -4,7 +4,7 @@
 //! that reports only convert and print them.
 
 use crate::engine::network;
-use crate::methods::timing::{self, Segment, SegmentTime};
+use crate::methods::timing::SegmentTime;
 use crate::methods::unit_hydrograph;
 use crate::model::Catchment;
 
@@ -20,8 +20,12 @@ pub struct CatchmentTiming {
     pub lag_h: f64,
     /// Time to peak of the unit hydrograph at the run's step, h.
     pub tp_h: f64,
-    /// Peak of the unit hydrograph at the step, cfs per in of runoff.
+    /// Peak of the unit hydrograph at the step, cfs per in of runoff: the
+    /// largest ordinate sampled at the step (what the simulation uses).
     pub uh_peak_cfs_per_in: f64,
+    /// Peak by the formula `PRF A Q / Tp` (NEH 630 ch. 16; 484 A Q / Tp for
+    /// the standard shape), cfs per in of runoff.
+    pub uh_formula_peak_cfs_per_in: f64,
 }
 
 /// The timing of catchment `c` at `step_h` (h). `p2_in` is the study's
@@ -33,19 +37,8 @@ pub struct CatchmentTiming {
 /// Should a sheet segment ever come without it, its velocity and time are
 /// NaN (printed as "-" and `null`), never a value from an assumed depth.
 pub fn catchment_timing(c: &Catchment, p2_in: Option<f64>, step_h: f64) -> CatchmentTiming {
-    let segments = c
-        .segments
-        .iter()
-        .map(|s| match (s, p2_in) {
-            (Segment::Sheet { .. }, None) => SegmentTime {
-                velocity_fps: f64::NAN,
-                time_h: f64::NAN,
-            },
-            // Shallow and channel segments ignore P2: any value will do.
-            (_, p2) => s.travel(p2.unwrap_or(f64::NAN)),
-        })
-        .collect();
-    let lag_h = timing::lag_h(c.tc_h);
+    let segments = c.segments.iter().map(|s| s.travel(p2_in)).collect();
+    let lag_h = c.uh_lag_h;
     let tp_h = unit_hydrograph::time_to_peak_h(step_h, lag_h);
     let uh = network::catchment_uh(c, step_h);
     CatchmentTiming {
@@ -54,6 +47,7 @@ pub fn catchment_timing(c: &Catchment, p2_in: Option<f64>, step_h: f64) -> Catch
         lag_h,
         tp_h,
         uh_peak_cfs_per_in: network::peak(&uh).0,
+        uh_formula_peak_cfs_per_in: unit_hydrograph::peak_cfs_per_in(c.prf, c.area_ac, tp_h),
     }
 }
 
@@ -61,6 +55,7 @@ pub fn catchment_timing(c: &Catchment, p2_in: Option<f64>, step_h: f64) -> Catch
 mod tests {
     use super::*;
     use crate::methods::runoff::Lambda;
+    use crate::methods::timing::Segment;
     use crate::methods::unit_hydrograph::Shape;
 
     fn catchment(segments: Vec<Segment>, tc_h: f64) -> Catchment {
@@ -72,6 +67,8 @@ mod tests {
             retention_in: 2.5,
             segments,
             tc_h,
+            uh_lag_h: 0.6 * tc_h,
+            timing_basis: crate::model::TimingBasis::FlowPath,
             prf: 484.0,
             shape: Shape::Standard,
         }
@@ -89,7 +86,7 @@ mod tests {
         // TR-55 (1986) Appendix F: unpaved V = 16.1345 s^0.5 = 1.613 ft/s
         // at s = 0.01 (transcribed)
         assert!((t.segments[0].velocity_fps - 1.613_45).abs() < 1e-4);
-        assert_eq!(t.segments[0], shallow.travel(3.0));
+        assert_eq!(t.segments[0], shallow.travel(Some(3.0)));
         let sheet = Segment::Sheet {
             n: 0.24,
             length_ft: 100.0,

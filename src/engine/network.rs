@@ -11,7 +11,6 @@ use crate::engine::topology::Topology;
 use crate::engine::walk::{ElementSim, walk};
 use crate::methods::pond::{self, PondSummary, PondTable, Routed};
 use crate::methods::runoff;
-use crate::methods::timing;
 use crate::methods::unit_hydrograph;
 use crate::model::{ElementKind, Pond, Study};
 
@@ -222,7 +221,7 @@ pub fn add_lagged(dst: &mut [f64], src: &[f64], lag_h: f64, step_h: f64) {
 
 /// Unit-hydrograph ordinates of a catchment at `step_h` (cfs per in).
 pub fn catchment_uh(c: &crate::model::Catchment, step_h: f64) -> Vec<f64> {
-    let tp = unit_hydrograph::time_to_peak_h(step_h, timing::lag_h(c.tc_h));
+    let tp = unit_hydrograph::time_to_peak_h(step_h, c.uh_lag_h);
     unit_hydrograph::ordinates_cfs_per_in(c.shape, c.area_ac, tp, step_h)
 }
 

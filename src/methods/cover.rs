@@ -1009,10 +1009,12 @@ pub struct ShallowSurface {
     pub source: &'static str,
 }
 
-/// Shallow-concentrated-flow surfaces of TR-55 Appendix F.
-///
-/// The further surfaces of NEH 630 ch. 15 (Table 15-3) are left out: their
-/// coefficients could not be checked against a published NRCS document.
+/// Shallow-concentrated-flow surfaces: TR-55 Appendix F (paved, unpaved)
+/// and the further surfaces of NRCS NEH 630 ch. 15 (2010) Table 15-3, whose
+/// coefficients FHWA HEC-22, 3rd ed. (2009), Table 3-3 republishes (converted
+/// to ft/s with s in ft/ft they agree to rounding; reference file section
+/// 13f, transcribed). Nearly bare ground and alluvial fans are 10.0 here (some
+/// printings give 10.1); small upland gullies share the paved coefficient.
 pub static SHALLOW_SURFACES: &[ShallowSurface] = &[
     ShallowSurface {
         name: "paved",
@@ -1026,13 +1028,80 @@ pub static SHALLOW_SURFACES: &[ShallowSurface] = &[
         k_fps: 16.1345,
         source: "TR-55 (1986) Appendix F",
     },
+    ShallowSurface {
+        name: "forest-heavy-litter",
+        description: "Forest with heavy ground litter",
+        k_fps: 2.5,
+        source: "NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009) Table 3-3",
+    },
+    ShallowSurface {
+        name: "hay-meadow",
+        description: "Hay meadow",
+        k_fps: 2.5,
+        source: "NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009) Table 3-3",
+    },
+    ShallowSurface {
+        name: "minimum-tillage",
+        description: "Trash fallow or minimum tillage cultivation",
+        k_fps: 5.0,
+        source: "NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009) Table 3-3",
+    },
+    ShallowSurface {
+        name: "contour-strip-cropped",
+        description: "Contour or strip cropped land",
+        k_fps: 5.0,
+        source: "NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009) Table 3-3",
+    },
+    ShallowSurface {
+        name: "woodland",
+        description: "Woodland",
+        k_fps: 5.0,
+        source: "NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009) Table 3-3",
+    },
+    ShallowSurface {
+        name: "short-grass-pasture",
+        description: "Short grass pasture",
+        k_fps: 7.0,
+        source: "NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009) Table 3-3",
+    },
+    ShallowSurface {
+        name: "cultivated-straight-row",
+        description: "Cultivated straight row",
+        k_fps: 9.0,
+        source: "NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009) Table 3-3",
+    },
+    ShallowSurface {
+        name: "nearly-bare",
+        description: "Nearly bare and untilled ground",
+        k_fps: 10.0,
+        source: "NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009) Table 3-3",
+    },
+    ShallowSurface {
+        name: "alluvial-fan",
+        description: "Alluvial fans",
+        k_fps: 10.0,
+        source: "NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009) Table 3-3",
+    },
+    ShallowSurface {
+        name: "grassed-waterway",
+        description: "Grassed waterway",
+        k_fps: 15.0,
+        source: "NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009) Table 3-3",
+    },
+    ShallowSurface {
+        name: "upland-gully",
+        description: "Small upland gullies",
+        k_fps: 20.3282,
+        source: "NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009) Table 3-3",
+    },
 ];
 
 /// Coefficient k (ft/s) of the shallow-concentrated-flow velocity for a named surface.
 ///
 /// # Formula
 /// TR-55 Appendix F: `V = k s^0.5`, with V the average velocity (ft/s), s the
-/// watercourse slope (ft/ft); k = 16.1345 ft/s unpaved, 20.3282 ft/s paved.
+/// watercourse slope (ft/ft); k = 16.1345 ft/s unpaved, 20.3282 ft/s paved,
+/// and NEH 630 ch. 15 Table 15-3's k for the other surfaces.
 /// In SI, `V (m/s) = 0.3048 k s^0.5`.
 ///
 /// # Errors
@@ -1353,5 +1422,38 @@ mod tests {
             "{message}"
         );
         assert!(message.contains("did you mean `unpaved`"), "{message}");
+    }
+
+    #[test]
+    fn every_table_15_3_surface_gives_its_published_velocity() {
+        // NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009)
+        // Table 3-3 (transcribed, reference file 13f): V = k s^0.5 ft/s; at s = 1 %
+        // the velocity is k / 10
+        let published = [
+            ("forest-heavy-litter", 2.5),
+            ("hay-meadow", 2.5),
+            ("minimum-tillage", 5.0),
+            ("contour-strip-cropped", 5.0),
+            ("woodland", 5.0),
+            ("short-grass-pasture", 7.0),
+            ("cultivated-straight-row", 9.0),
+            ("nearly-bare", 10.0),
+            ("alluvial-fan", 10.0),
+            ("grassed-waterway", 15.0),
+            ("unpaved", 16.1345),
+            ("paved", 20.3282),
+            ("upland-gully", 20.3282),
+        ];
+        assert_eq!(SHALLOW_SURFACES.len(), published.len());
+        for (name, k) in published {
+            let got = shallow_velocity_coefficient(name).unwrap_or(f64::NAN);
+            assert_abs_diff_eq!(got, k, epsilon = 1e-12);
+            let v = crate::methods::timing::shallow_velocity_fps(got, 0.01);
+            assert_abs_diff_eq!(v, k / 10.0, epsilon = 1e-12);
+        }
+        assert!(matches!(
+            shallow_velocity_coefficient("grassed-waterwey"),
+            Err(CoverError::UnknownShallowSurface { .. })
+        ));
     }
 }

@@ -72,6 +72,20 @@ pub fn runoff_volume_ft3(runoff_in: f64, area_ac: f64) -> f64 {
     runoff_in / IN_PER_FT * area_ac * FT2_PER_AC
 }
 
+/// Acre-feet per square-mile-inch in TR-55's runoff volume, as printed.
+pub const TR55_ACFT_PER_MI2_IN: f64 = 53.33;
+
+/// Runoff volume Vr (acre-ft) in the form TR-55 chapter 6 uses with Figure 6-1.
+///
+/// # Formula
+/// TR-55 chapter 6: `Vr = 53.33 Q Am`, Vr in acre-ft, Q the runoff depth
+/// (in), Am the drainage area (mi2) (the form and constant from memory,
+/// reference file section 10; 53.33 is 640 ac/mi2 / 12 in/ft rounded, so it
+/// runs 0.006 % under the exact 53.333).
+pub fn tr55_runoff_volume_acft(runoff_in: f64, area_mi2: f64) -> f64 {
+    TR55_ACFT_PER_MI2_IN * runoff_in * area_mi2
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -160,5 +174,19 @@ mod tests {
         assert_relative_eq!(runoff_volume_ft3(1.0, 1.0), 3630.0, max_relative = 1e-12);
         assert_relative_eq!(runoff_volume_ft3(2.5, 6.2), 56_265.0, max_relative = 1e-12);
         assert_eq!(runoff_volume_ft3(0.0, 10.0), 0.0);
+    }
+
+    #[test]
+    fn tr55_runoff_volume_is_53_33_q_am_and_agrees_with_q_a() {
+        // TR-55 (1986) chapter 6, Vr = 53.33 Q Am (from memory, reference file section 10):
+        // 2.5 in over 0.75 mi2 -> 99.99 acre-ft
+        assert_abs_diff_eq!(tr55_runoff_volume_acft(2.5, 0.75), 99.99375, epsilon = 1e-9);
+        // the same volume as Q A in ft3 (480 ac = 0.75 mi2), within the rounding of 53.33
+        let exact_acft = runoff_volume_ft3(2.5, 480.0) / 43_560.0;
+        assert_relative_eq!(
+            tr55_runoff_volume_acft(2.5, 0.75),
+            exact_acft,
+            max_relative = 1e-4
+        );
     }
 }

@@ -183,15 +183,16 @@ impl Segment {
     }
 
     /// Travel time and velocity; `p2_in` is the 2-year 24-hour rainfall (in),
-    /// used by sheet flow only.
-    pub fn travel(&self, p2_in: f64) -> SegmentTime {
+    /// read by sheet flow only. Sheet flow without it has no time (NaN):
+    /// no depth is ever assumed.
+    pub fn travel(&self, p2_in: Option<f64>) -> SegmentTime {
         match self {
             Segment::Sheet {
                 n,
                 length_ft,
                 slope,
             } => {
-                let t = sheet_flow_time_h(*n, *length_ft, p2_in, *slope);
+                let t = p2_in.map_or(f64::NAN, |p2| sheet_flow_time_h(*n, *length_ft, p2, *slope));
                 SegmentTime {
                     velocity_fps: if t > 0.0 {
                         length_ft / (3600.0 * t)
@@ -230,8 +231,10 @@ impl Segment {
 }
 
 /// Time of concentration (h) as the sum of the segments' travel times
-/// (TR-55 eq. 3-2: `Tc = Tt1 + Tt2 + ... + Ttm`).
-pub fn time_of_concentration_h(segments: &[Segment], p2_in: f64) -> f64 {
+/// (TR-55 eq. 3-2: `Tc = Tt1 + Tt2 + ... + Ttm`). `p2_in` is needed by
+/// sheet flow only; a sheet segment without it makes the sum NaN (the
+/// scenario refuses such a path before it gets here).
+pub fn time_of_concentration_h(segments: &[Segment], p2_in: Option<f64>) -> f64 {
     segments.iter().map(|s| s.travel(p2_in).time_h).sum()
 }
 
@@ -239,6 +242,25 @@ pub fn time_of_concentration_h(segments: &[Segment], p2_in: f64) -> f64 {
 /// (NEH 630 ch. 15; SCS: Tc = 1.67 L).
 pub fn lag_h(tc_h: f64) -> f64 {
     0.6 * tc_h
+}
+
+/// Time of concentration (h) from a watershed lag: `Tc = L / 0.6`, the
+/// inverse of [`lag_h`] (SCS: Tc = 1.67 L, Bedient, Huber & Vieux).
+pub fn tc_from_lag_h(lag_h: f64) -> f64 {
+    lag_h / 0.6
+}
+
+/// NRCS (SCS) watershed lag (h) by the curve-number method.
+///
+/// # Formula
+/// Bedient, Huber & Vieux, *Hydrology and Floodplain Analysis*, 5th ed.,
+/// eq. 2-18 and 2-19 (cited there to SCS):
+/// `tp = L^0.8 (S + 1)^0.7 / (1900 y^0.5)`, `S = 1000/CN - 10`, with `tp`
+/// the lag (h), `L` the length to the divide (ft), `y` the average
+/// watershed slope (%), `S` in inches.
+pub fn watershed_lag_h(length_ft: f64, slope_pct: f64, cn: f64) -> f64 {
+    let s = 1000.0 / cn - 10.0;
+    length_ft.powf(0.8) * (s + 1.0).powf(0.7) / (1900.0 * slope_pct.sqrt())
 }
 
 #[cfg(test)]
@@ -269,14 +291,14 @@ mod tests {
                 perimeter_ft: 28.2,
             },
         };
-        assert!((sheet.travel(3.6).time_h - 0.30).abs() < 0.01); // from memory
-        let s = shallow.travel(3.6);
+        assert!((sheet.travel(Some(3.6)).time_h - 0.30).abs() < 0.01); // from memory
+        let s = shallow.travel(Some(3.6));
         assert!((s.velocity_fps - 1.6).abs() < 0.02); // from memory
         assert!((s.time_h - 0.24).abs() < 0.01); // from memory
-        let c = channel.travel(3.6);
+        let c = channel.travel(Some(3.6));
         assert!((c.velocity_fps - 2.05).abs() < 0.01); // from memory
         assert!((c.time_h - 0.99).abs() < 0.01); // from memory
-        let tc = time_of_concentration_h(&[sheet, shallow, channel], 3.6);
+        let tc = time_of_concentration_h(&[sheet, shallow, channel], Some(3.6));
         assert!((tc - 1.53).abs() < 0.01); // from memory
     }
 
@@ -309,5 +331,40 @@ mod tests {
     fn lag_is_six_tenths_of_tc() {
         // NEH 630 ch.15 / SCS: Tc = 1.67 L (Bedient, Huber & Vieux, verified)
         assert!((lag_h(1.0) - 0.6).abs() < 1e-12);
+    }
+
+    #[test]
+    fn watershed_lag_reproduces_bedient_example_2_6() {
+        // Bedient, Huber & Vieux (5th ed.) Example 2-6 (eq. 2-18, cited to SCS):
+        // L = 5 mi = 26,400 ft, y = 100 ft/mi = 1.9 %, CN 78 (S = 2.82 in) -> tp = 3.36 h
+        let tp = watershed_lag_h(26_400.0, 1.9, 78.0);
+        assert!((tp - 3.36).abs() < 0.005, "{tp}");
+        assert!(((1000.0f64 / 78.0 - 10.0) - 2.82).abs() < 0.005);
+        // and its Tc by SCS's Tc = 1.67 L (Bedient et al.; runnel uses L = 0.6 Tc)
+        assert!((tc_from_lag_h(tp) - tp / 0.6).abs() < 1e-12);
+        assert!((lag_h(tc_from_lag_h(tp)) - tp).abs() < 1e-12);
+        // the example goes on: T_R = D/2 + tp = 1 + 3.36 = 4.36 h (eq. 2-17) and, for
+        // 10 mi2, Qp = 484 A / T_R = 1,110 cfs (eq. 2-16)
+        let qp = crate::methods::unit_hydrograph::peak_cfs_per_in(484.0, 6400.0, 2.0 / 2.0 + 3.36);
+        assert!((qp - 1110.0).abs() < 1.0, "{qp}");
+    }
+
+    #[test]
+    fn sheet_flow_without_p2_has_no_time_and_other_segments_ignore_it() {
+        // TR-55 (1986) eq. 3-3 needs P2; shallow flow (TR-55 App. F) does not
+        let sheet = Segment::Sheet {
+            n: 0.24,
+            length_ft: 100.0,
+            slope: 0.01,
+        };
+        assert!(sheet.travel(None).time_h.is_nan());
+        let shallow = Segment::Shallow {
+            k_fps: 16.1345,
+            surface: "unpaved".into(),
+            length_ft: 1400.0,
+            slope: 0.01,
+        };
+        assert_eq!(shallow.travel(None), shallow.travel(Some(3.6)));
+        assert!(time_of_concentration_h(&[shallow], None).is_finite());
     }
 }

@@ -159,6 +159,7 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)]) -> String 
     // Verdict first.
     design_points(&mut m, s, &u);
     pond_checks(&mut m, s, &u);
+    crate::report::storms::markdown(&mut m, &s.storms, u.depth);
     worksheet(&mut m, s, &u);
     events(&mut m, s, &u);
     for e in &study.elements {
@@ -418,6 +419,7 @@ fn worksheet(m: &mut String, s: &Summary, u: &Units) {
             );
         }
         flow_path(m, c, u);
+        lag_basis(m, c, u);
         let _ = writeln!(
             m,
             "Tc = **{} h**; lag = {} h; Tp = {} h; unit-hydrograph peak {} {} per {} of runoff (PRF {}).\n",
@@ -430,6 +432,30 @@ fn worksheet(m: &mut String, s: &Summary, u: &Units) {
             f(c.prf, 0)
         );
         graphical(m, s, &c.name, u);
+    }
+}
+
+/// How a catchment timed by its lag got it (nothing for Tc-based ones,
+/// whose flow path or given Tc is shown already).
+fn lag_basis(m: &mut String, c: &CatchmentOut, u: &Units) {
+    match (c.timing, &c.watershed_lag) {
+        ("lag_time", _) => {
+            let _ = writeln!(
+                m,
+                "Lag given (`lag_time`); Tc = lag / 0.6 (SCS: Tc = 1.67 lag).\n"
+            );
+        }
+        (_, Some(w)) => {
+            let _ = writeln!(
+                m,
+                "Lag by the NRCS watershed-lag equation, L^0.8 (S + 1)^0.7 / (1900 y^0.5) (Bedient, Huber & Vieux eq. 2-18, after SCS): length {} {}, slope y = {} %, CN {}; Tc = lag / 0.6.\n",
+                f(w.length, 1),
+                u.length,
+                f(w.slope_pct, 3),
+                f(c.cn, 2)
+            );
+        }
+        _ => {}
     }
 }
 

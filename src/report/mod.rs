@@ -6,5 +6,6 @@ pub mod markdown;
 pub mod plot;
 pub mod records;
 pub mod structure;
+pub mod storms;
 pub mod summary;
 pub mod table;

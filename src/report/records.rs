@@ -100,8 +100,11 @@ pub struct RecordOut {
     pub zero_years: Vec<i32>,
     /// LP3 frequency flows.
     pub frequency: Vec<FreqOut>,
-    /// LP3 fit: mean, standard deviation and skew of log10 peaks (cfs).
+    /// LP3 fit: mean, standard deviation and skew of log10 peaks (cfs);
+    /// the skew is the one used (weighted when a regional skew is given).
     pub lp3: Option<[f64; 3]>,
+    /// Bulletin 17B details of the fit: the low-outlier test and the skew.
+    pub frequency_method: Option<FrequencyMethodOut>,
     /// Flow-duration curve.
     pub flow_duration: Vec<DurOut>,
     /// Number of rain events (catchments, event mode).
@@ -122,6 +125,133 @@ pub struct RecordOut {
     /// Volume evaporated over the record (ponds that lose water).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub evaporated_volume: Option<f64>,
+}
+
+/// What Bulletin 17B's low-outlier test did, in output units.
+#[derive(Debug, Clone, Serialize)]
+pub struct LowOutlierOut {
+    /// Whether the test was applied (10 or more peaks).
+    pub applied: bool,
+    /// Peaks tested.
+    pub n: usize,
+    /// K_N used (null when not applied).
+    pub kn: Option<f64>,
+    /// Threshold flow (null when not applied).
+    pub threshold: Option<f64>,
+    /// Peaks below it, left out of the fit (flows, ascending).
+    pub removed: Vec<f64>,
+    /// Share of the peaks kept, applied to the exceedance probabilities.
+    pub kept_share: f64,
+}
+
+/// The skew of a frequency fit.
+#[derive(Debug, Clone, Serialize)]
+pub struct FrequencyMethodOut {
+    /// The low-outlier test.
+    pub low_outliers: LowOutlierOut,
+    /// Station skew of the peaks kept.
+    pub station_skew: f64,
+    /// Regional skew as given (null without one).
+    pub regional_skew: Option<f64>,
+    /// Its mean square error.
+    pub regional_skew_mse: Option<f64>,
+    /// Mean square error of the station skew (Bulletin 17B eq. 6).
+    pub station_skew_mse: Option<f64>,
+    /// The skew the flows use.
+    pub skew_used: f64,
+}
+
+/// The Bulletin 17B details of one entry, in output units.
+fn frequency_method(o: Out, a: &stats::FrequencyAnalysis) -> FrequencyMethodOut {
+    let lo = &a.low_outliers;
+    let finite = |x: f64| x.is_finite().then_some(x);
+    FrequencyMethodOut {
+        low_outliers: LowOutlierOut {
+            applied: lo.applied,
+            n: lo.n,
+            kn: finite(lo.kn),
+            threshold: finite(lo.threshold).map(|q| o.flow(q)),
+            removed: lo.removed.iter().map(|&q| o.flow(q)).collect(),
+            kept_share: a.kept_share(),
+        },
+        station_skew: a.station_skew,
+        regional_skew: a.weighting.map(|w| w.regional.skew),
+        regional_skew_mse: a.weighting.map(|w| w.regional.mse),
+        station_skew_mse: a.weighting.map(|w| w.station_mse),
+        skew_used: a.fit.skew,
+    }
+}
+
+/// One line per entry on what the frequency fit did: low outliers left out
+/// and the skew weighting (nothing for a fit on the station skew with no
+/// outlier).
+fn frequency_notes(m: &mut String, entries: &[&RecordOut], fu: &str) {
+    let mut lines = Vec::new();
+    for e in entries {
+        let Some(f) = &e.frequency_method else {
+            continue;
+        };
+        let lo = &f.low_outliers;
+        let mut parts = Vec::new();
+        if !lo.removed.is_empty() {
+            parts.push(format!(
+                "{} low outlier{} below {} {fu} (K_N {:.3}, {} peaks) left out: {}; exceedance probabilities scaled by {:.3}",
+                lo.removed.len(),
+                if lo.removed.len() == 1 { "" } else { "s" },
+                lo.threshold.map(|t| sig(t, 4)).unwrap_or_else(|| "-".into()),
+                lo.kn.unwrap_or(f64::NAN),
+                lo.n,
+                lo.removed.iter().map(|q| sig(*q, 4)).collect::<Vec<_>>().join(", "),
+                lo.kept_share
+            ));
+        }
+        if let (Some(r), Some(rm), Some(sm)) =
+            (f.regional_skew, f.regional_skew_mse, f.station_skew_mse)
+        {
+            parts.push(format!(
+                "skew {:.3} weighted from station {:.3} (MSE {:.4}) and regional {:.3} (MSE {:.4})",
+                f.skew_used, f.station_skew, sm, r, rm
+            ));
+        }
+        if !parts.is_empty() {
+            lines.push(format!(
+                "- {}, {}: {}.",
+                e.condition,
+                e.element,
+                parts.join("; ")
+            ));
+        }
+    }
+    let tested = entries.iter().any(|e| {
+        e.frequency_method
+            .as_ref()
+            .is_some_and(|f| f.low_outliers.applied)
+    });
+    let untested = entries.iter().any(|e| {
+        e.frequency_method
+            .as_ref()
+            .is_some_and(|f| !f.low_outliers.applied)
+    });
+    let _ = writeln!(
+        m,
+        "Bulletin 17B low-outlier test (K_N at the 10 % level): {}{}.\n",
+        if tested {
+            "applied to every series of 10 or more annual peaks"
+        } else {
+            "not applied (fewer than 10 annual peaks)"
+        },
+        if tested && untested {
+            "; shorter series are not tested"
+        } else {
+            ""
+        }
+    );
+    for l in &lines {
+        let _ = writeln!(m, "{l}");
+    }
+    if !lines.is_empty() {
+        let _ = writeln!(m);
+    }
 }
 
 /// Everything a record's point plots need, in output units.
@@ -189,6 +319,10 @@ pub fn entry(study: &Study, e: &ElementRecord) -> RecordOut {
             })
             .collect(),
         lp3: e.lp3.map(|f| [f.mean_log10, f.std_log10, f.skew]),
+        frequency_method: e
+            .frequency_analysis
+            .as_ref()
+            .map(|a| frequency_method(o, a)),
         flow_duration: EXCEEDANCES
             .iter()
             .zip(&e.flow_duration_cfs)
@@ -415,16 +549,16 @@ pub fn plots(study: &Study, res: &RecordsResult, entries: &[RecordOut]) -> Vec<R
                             .map(|(i, &v)| ((m + 1.0) / (i as f64 + 1.0), v))
                             .collect(),
                     ));
-                    if let Some(fit) = e.lp3 {
-                        let f = stats::Lp3Fit {
-                            n: peaks.len(),
-                            ..fit
-                        };
+                    if let Some(a) = &e.frequency_analysis {
+                        // the fitted curve as the flows use it (low outliers'
+                        // conditional probability adjustment included)
                         fitted.push((
                             cname.clone(),
                             PLOTTED_RETURN_PERIODS
                                 .iter()
-                                .map(|&t| (t, o.flow(f.quantile(t))))
+                                .map(|&t| (t, a.quantile(t)))
+                                .filter(|(_, q)| q.is_finite())
+                                .map(|(t, q)| (t, o.flow(q)))
                                 .collect(),
                         ));
                     }
@@ -480,7 +614,7 @@ pub fn markdown(study: &Study, entries: &[RecordOut], comparisons: &[ComparisonO
     let _ = writeln!(m, "## Long records\n");
     let _ = writeln!(
         m,
-        "Event curve-number accounting (events split by dry gaps), unit hydrographs and storage-indication over the whole record. Frequency by log-Pearson Type III fitted to log10 annual peaks by moments with the station skew (Bulletin 17B frequency factors from the gamma inverse); Weibull plotting positions; complete calendar years only (>= 90 % of intervals).\n"
+        "Event curve-number accounting (events split by dry gaps), unit hydrographs and storage-indication over the whole record. Frequency by log-Pearson Type III fitted to log10 annual peaks by moments with the station skew, or the skew weighted with the record's regional skew (Bulletin 17B eq. 5 and 6), after Bulletin 17B's low-outlier test (Bulletin 17B frequency factors from the gamma inverse); Weibull plotting positions; complete calendar years only (>= 90 % of intervals).\n"
     );
     for r in &study.records {
         let _ = writeln!(m, "### Record \"{}\"\n", r.name);
@@ -531,6 +665,8 @@ pub fn markdown(study: &Study, entries: &[RecordOut], comparisons: &[ComparisonO
         m.push_str(&t.markdown());
         let _ = writeln!(m);
         pond_losses_markdown(&mut m, o, entries.iter().filter(|e| e.record == r.name));
+        let mine: Vec<&RecordOut> = entries.iter().filter(|e| e.record == r.name).collect();
+        frequency_notes(&mut m, &mine, fu);
         if comparisons
             .iter()
             .any(|c| c.record.as_deref() == Some(&r.name))
@@ -615,6 +751,7 @@ mod tests {
                 return_period_yr: 2.0,
                 flow_cfs: 4.0,
             }],
+            frequency_analysis: None,
             lp3: Some(stats::Lp3Fit {
                 mean_log10: 0.5,
                 std_log10: 0.2,

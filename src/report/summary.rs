@@ -79,6 +79,15 @@ pub struct SegmentOut {
     pub time_h: f64,
 }
 
+/// The inputs of the NRCS watershed-lag equation (Bedient et al. eq. 2-18).
+#[derive(Debug, Clone, Serialize)]
+pub struct WatershedLagOut {
+    /// Flow length to the divide (ft or m).
+    pub length: f64,
+    /// Average watershed slope, %.
+    pub slope_pct: f64,
+}
+
 /// One cover row.
 #[derive(Debug, Clone, Serialize)]
 pub struct CoverOut {
@@ -113,10 +122,18 @@ pub struct CatchmentOut {
     pub tc_h: f64,
     /// Lag, h.
     pub lag_h: f64,
+    /// Where Tc and lag come from: "tc", "flow path", "lag_time" or
+    /// "watershed_lag".
+    pub timing: &'static str,
+    /// The NRCS watershed-lag equation's inputs, when it gave the lag.
+    pub watershed_lag: Option<WatershedLagOut>,
     /// Time to peak of the unit hydrograph, h.
     pub tp_h: f64,
-    /// Unit-hydrograph peak per unit depth (flow per in or per mm).
+    /// Unit-hydrograph peak per unit depth (flow per in or per mm), the
+    /// largest ordinate sampled at the step.
     pub uh_peak_per_depth: f64,
+    /// Unit-hydrograph peak per unit depth by the formula PRF A Q / Tp.
+    pub uh_formula_peak_per_depth: f64,
     /// Peak rate factor.
     pub prf: f64,
     /// Covers.
@@ -401,6 +418,8 @@ pub struct Summary {
     pub baseline_present: bool,
     /// Catchments.
     pub catchments: Vec<CatchmentOut>,
+    /// Design storms: pattern, depth, duration and tabulation.
+    pub storms: Vec<crate::report::storms::StormOut>,
     /// Events.
     pub events: Vec<EventOut>,
     /// Point comparisons.
@@ -575,6 +594,7 @@ pub fn build(
             .collect(),
         baseline_present: !study.baseline_empty,
         catchments,
+        storms: crate::report::storms::storms_out(study),
         events,
         comparisons,
         pond_checks,
@@ -632,8 +652,19 @@ fn catchments_out(study: &Study) -> Vec<CatchmentOut> {
             retention: o.depth(c.retention_in),
             tc_h: timing.tc_h,
             lag_h: timing.lag_h,
+            timing: c.timing_basis.word(),
+            watershed_lag: match c.timing_basis {
+                crate::model::TimingBasis::WatershedLag { length_ft, slope } => {
+                    Some(WatershedLagOut {
+                        length: o.length(length_ft),
+                        slope_pct: slope * 100.0,
+                    })
+                }
+                _ => None,
+            },
             tp_h: timing.tp_h,
             uh_peak_per_depth: o.flow(timing.uh_peak_cfs_per_in) / o.depth(1.0),
+            uh_formula_peak_per_depth: o.flow(timing.uh_formula_peak_cfs_per_in) / o.depth(1.0),
             prf: c.prf,
             covers: c
                 .covers

@@ -37,7 +37,7 @@ from scipy import signal, stats
 
 G_FT_S2 = 32.174          # standard gravity, ft/s2
 FT2_PER_AC = 43560.0
-RETURN_PERIODS_YR = [1.5, 2, 5, 10, 25, 50, 100]
+RETURN_PERIODS_YR = [1.5, 2, 5, 10, 25, 50, 100, 200, 500]
 EXCEEDANCE = [0.0001, 0.001, 0.01, 0.05, 0.1, 0.2, 0.5]
 YEAR_COMPLETE_FRACTION = 0.90   # contract "Annual series"
 STAGE_GRID_FT = 0.001           # spacing of the stage grid of the routing table
@@ -504,25 +504,58 @@ def annual_series(values_per_interval, t0_s, step_s):
     return out, left_out
 
 
+def _moments(x):
+    """Mean, sample std (n-1) and station skew G = n sum((x-mean)^3)/((n-1)(n-2) s^3)."""
+    n = x.size
+    mean = float(x.mean())
+    s = float(x.std(ddof=1))
+    g = float(n * np.sum((x - mean) ** 3) / ((n - 1) * (n - 2) * s ** 3)) if s > 0 else 0.0
+    return mean, s, g
+
+
 def log_pearson3(peaks):
     """Log-Pearson III by moments of log10 peaks (BHV eq. 3-67, Bulletin 17B moments):
     sample std with n-1, station skew G = n sum((x-mean)^3) / ((n-1)(n-2) s^3)
-    (contract, Annual series); K from the exact Pearson III quantile (BHV Table 3-4)."""
+    (contract, Annual series); K from the exact Pearson III quantile (BHV Table 3-4).
+
+    Bulletin 17B low-outlier test (reference file section 13g), for N >= 10
+    peaks: K_N = -0.9043 + 3.345 sqrt(log10 N) - 0.4046 log10 N; peaks with
+    log10 Q < mean - K_N s are left out and the moments recomputed from the
+    rest; the flows then take the conditional probability adjustment: the
+    exceedance probability 1/T of the whole record is (N - L)/N times the
+    exceedance probability in the fitted (conditional) distribution."""
     x = np.log10(np.asarray(peaks, dtype=float))
     n = x.size
     if n < 3:
         return None
-    mean = float(x.mean())
-    s = float(x.std(ddof=1))
+    mean, s, g = _moments(x)
     if s == 0.0:
         return {"n": n, "mean_log10": mean, "std_log10": 0.0, "skew": 0.0,
                 "flows": [{"return_period": T, "flow": 10 ** mean} for T in RETURN_PERIODS_YR]}
-    g = float(n * np.sum((x - mean) ** 3) / ((n - 1) * (n - 2) * s ** 3))
+    removed = []
+    share = 1.0
+    if n >= 10:
+        ln = math.log10(n)
+        kn = -0.9043 + 3.345 * math.sqrt(ln) - 0.4046 * ln
+        low = mean - kn * s
+        keep = x >= low
+        removed = sorted(float(10 ** v) for v in x[~keep])
+        if removed:
+            x = x[keep]
+            share = x.size / n
+            if x.size < 3:
+                return None
+            mean, s, g = _moments(x)
     flows = []
     for T in RETURN_PERIODS_YR:
-        k = float(stats.pearson3.ppf(1.0 - 1.0 / T, g))
+        pc = (1.0 / T) / share
+        if pc >= 1.0:
+            flows.append({"return_period": T, "flow": float("nan"), "K": float("nan")})
+            continue
+        k = float(stats.pearson3.ppf(1.0 - pc, g))
         flows.append({"return_period": T, "flow": 10 ** (mean + k * s), "K": k})
-    return {"n": n, "mean_log10": mean, "std_log10": s, "skew": g, "flows": flows}
+    return {"n": int(x.size), "mean_log10": mean, "std_log10": s, "skew": g,
+            "low_outliers": removed, "flows": flows}
 
 
 def flow_duration(values_per_interval):

@@ -30,7 +30,7 @@ mod result;
 pub use result::*;
 
 /// Return periods of the frequency table, years.
-pub const RETURN_PERIODS: [f64; 7] = [1.5, 2.0, 5.0, 10.0, 25.0, 50.0, 100.0];
+pub const RETURN_PERIODS: [f64; 9] = [1.5, 2.0, 5.0, 10.0, 25.0, 50.0, 100.0, 200.0, 500.0];
 /// Exceedance fractions of the flow-duration table.
 pub const EXCEEDANCES: [f64; 9] = [0.0001, 0.001, 0.01, 0.05, 0.1, 0.2, 0.3, 0.5, 0.9];
 /// Number of flow levels of a duration control (evenly spaced in log).
@@ -204,8 +204,10 @@ fn element_record(
             zero_years.push(a.year);
         }
     }
-    let lp3 = stats::fit_lp3(&fit_values);
-    let frequency = match &lp3 {
+    // Bulletin 17B: low-outlier test, regional skew weighting (stats::b17b).
+    let frequency_analysis = stats::bulletin17b(&fit_values, run.record.regional_skew);
+    let lp3 = frequency_analysis.as_ref().map(|a| a.fit);
+    let frequency = match &frequency_analysis {
         Some(f) => RETURN_PERIODS
             .iter()
             .map(|&t| FrequencyFlow {
@@ -239,6 +241,7 @@ fn element_record(
         zero_years,
         frequency,
         lp3,
+        frequency_analysis,
         flow_duration_cfs,
         events: None,
         pond: None,
@@ -326,10 +329,7 @@ pub fn input_warnings(study: &Study) -> Vec<Warning> {
         }
         for e in &study.elements {
             if let ElementKind::Catchment(c) = &e.kind {
-                let tp = unit_hydrograph::time_to_peak_h(
-                    r.step_h,
-                    crate::methods::timing::lag_h(c.tc_h),
-                );
+                let tp = unit_hydrograph::time_to_peak_h(r.step_h, c.uh_lag_h);
                 if r.step_h > 0.25 * tp {
                     out.push(Warning::RecordStepCoarse {
                         record: r.name.clone(),
@@ -642,7 +642,7 @@ fn simulate_catchment(
     let r = run.record;
     let step_h = run.step_h;
     let clock = std::time::Instant::now();
-    let tp_h = unit_hydrograph::time_to_peak_h(step_h, crate::methods::timing::lag_h(cat.tc_h));
+    let tp_h = unit_hydrograph::time_to_peak_h(step_h, cat.uh_lag_h);
     let uh = unit_hydrograph::ordinates_cfs_per_in(cat.shape, cat.area_ac, tp_h, step_h);
     let month_of = |k: usize| calendar::month_of(r.start_s + k as i64 * run.step_s);
     // Each rainy interval's excess goes straight into the convolution (no

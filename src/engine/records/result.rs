@@ -96,8 +96,12 @@ pub struct ElementRecord {
     pub zero_years: Vec<i32>,
     /// LP3 frequency flows at [`RETURN_PERIODS`](super::RETURN_PERIODS) (empty without a fit).
     pub frequency: Vec<FrequencyFlow>,
-    /// LP3 fit of log10 annual peaks in cfs.
+    /// LP3 fit of log10 annual peaks in cfs (the skew is the one used: the
+    /// weighted skew when the record has a regional skew).
     pub lp3: Option<stats::Lp3Fit>,
+    /// The Bulletin 17B analysis behind `lp3`: the low-outlier test and the
+    /// skew weighting.
+    pub frequency_analysis: Option<stats::FrequencyAnalysis>,
     /// Flow (cfs) equalled or exceeded at each of [`EXCEEDANCES`](super::EXCEEDANCES).
     pub flow_duration_cfs: Vec<f64>,
     /// Number of rain events (catchments, event mode).

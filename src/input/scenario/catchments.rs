@@ -74,7 +74,18 @@ impl Builder<'_> {
                     .expected("0.2 (TR-55) or 0.05 (Hawkins et al. 2002)"));
             }
         };
-        let (segments, tc_h) = self.catchment_tc(rc, span, ctx, p2_in)?;
+        let (segments, tc_h, uh_lag_h, timing_basis) = match self.catchment_lag(rc, ctx, cn)? {
+            Some((lag, basis)) => (Vec::new(), timing::tc_from_lag_h(lag), lag, basis),
+            None => {
+                let (segments, tc_h) = self.catchment_tc(rc, span, ctx, p2_in)?;
+                let basis = if segments.is_empty() {
+                    TimingBasis::TcGiven
+                } else {
+                    TimingBasis::FlowPath
+                };
+                (segments, tc_h, timing::lag_h(tc_h), basis)
+            }
+        };
         let prf = match &rc.prf {
             Some(p) => self.num(p, &format!("{ctx}, prf"))?,
             None => unit_hydrograph::STANDARD_PRF,
@@ -96,6 +107,8 @@ impl Builder<'_> {
             retention_in: lambda.retention_in(cn),
             segments,
             tc_h,
+            uh_lag_h,
+            timing_basis,
             prf,
             shape,
         })
@@ -404,6 +417,85 @@ impl Builder<'_> {
         Ok(covers)
     }
 
+    /// A lag given (`lag_time`) or computed by the NRCS watershed-lag
+    /// equation (`watershed_lag`), with its basis; `None` when the catchment
+    /// gives `tc` or a flow path instead. Only one of the four may be given.
+    fn catchment_lag(
+        &mut self,
+        rc: &RawCatchment,
+        ctx: &str,
+        cn: f64,
+    ) -> R<Option<(f64, TimingBasis)>> {
+        let given: Vec<(&str, std::ops::Range<usize>)> = [
+            ("tc", rc.tc.as_ref().map(|t| t.span())),
+            ("lag_time", rc.lag_time.as_ref().map(|t| t.span())),
+            ("watershed_lag", rc.watershed_lag.as_ref().map(|t| t.span())),
+            ("[[catchment.flow]]", rc.flow.first().map(|f| f.span())),
+        ]
+        .into_iter()
+        .filter_map(|(k, s)| s.map(|s| (k, s)))
+        .collect();
+        if given.len() > 1 {
+            let (k, span) = &given[1];
+            return Err(self
+                .err(
+                    span,
+                    &format!("{ctx}, {k}"),
+                    format!("give one of `tc`, `lag_time`, `watershed_lag` or a flow path of [[catchment.flow]]; this catchment also has {}", given[0].0),
+                )
+                .expected("one timing input per catchment"));
+        }
+        if let Some(l) = &rc.lag_time {
+            let lag = self.positive(l, Quantity::Time, &format!("{ctx}, lag_time"))?;
+            self.lag_short(rc, lag);
+            return Ok(Some((lag, TimingBasis::LagGiven)));
+        }
+        let Some(w) = &rc.watershed_lag else {
+            return Ok(None);
+        };
+        let wctx = format!("{ctx}, watershed_lag");
+        let wl = w.get_ref();
+        let length = self.req(
+            &wl.length,
+            &w.span(),
+            &wctx,
+            "length",
+            "\"26400 ft\" (flow length to the divide)",
+        )?;
+        let length_ft = self.positive(length, Quantity::Length, &format!("{wctx}, length"))?;
+        let slope_raw = self.req(
+            &wl.slope,
+            &w.span(),
+            &wctx,
+            "slope",
+            "\"1.9 %\" (average watershed slope)",
+        )?;
+        let slope = self.positive(slope_raw, Quantity::Slope, &format!("{wctx}, slope"))?;
+        let lag = timing::watershed_lag_h(length_ft, slope * 100.0, cn);
+        if !(lag > 0.0 && lag.is_finite()) {
+            return Err(self
+                .err(
+                    &w.span(),
+                    &wctx,
+                    format!("the watershed lag works out to {lag} h"),
+                )
+                .expected("a length, slope and curve number that give a positive, finite lag"));
+        }
+        self.lag_short(rc, lag);
+        Ok(Some((lag, TimingBasis::WatershedLag { length_ft, slope })))
+    }
+
+    /// The short-Tc warning for a catchment timed by its lag (Tc = lag / 0.6).
+    fn lag_short(&mut self, rc: &RawCatchment, lag_h: f64) {
+        let tc_h = timing::tc_from_lag_h(lag_h);
+        if tc_h < 0.1 {
+            self.warnings.push(Warning::TcShort {
+                catchment: rc.name.get_ref().clone(),
+                tc_h,
+            });
+        }
+    }
+
     /// The flow path and the time of concentration (h): given, or summed
     /// over the flow path;
     /// warnings when it is unusually long or short.
@@ -435,15 +527,15 @@ impl Builder<'_> {
                     )
                     .expected("one of them"));
             }
-            (None, false) => timing::time_of_concentration_h(&segments, p2_in.unwrap_or(1.0)),
+            (None, false) => timing::time_of_concentration_h(&segments, p2_in),
             (None, true) => {
                 return Err(self
                     .err(
                         span,
                         ctx,
-                        "missing `tc` (or a flow path of [[catchment.flow]])",
+                        "missing `tc` (or a flow path of [[catchment.flow]], `lag_time` or `watershed_lag`)",
                     )
-                    .expected("`tc = \"12 min\"` or [[catchment.flow]] segments"));
+                    .expected("`tc = \"12 min\"`, [[catchment.flow]] segments, `lag_time = \"20 min\"` or `watershed_lag = { length = \"2600 ft\", slope = \"3 %\" }`"));
             }
         };
         if !(tc_h > 0.0 && tc_h.is_finite()) {

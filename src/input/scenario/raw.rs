@@ -166,6 +166,10 @@ pub struct RawScenario {
     pub record: Vec<Spanned<RawRecord>>,
 }
 
+/// Rows of `[duration, depth]` pairs with their positions, e.g.
+/// `[["5 min", "0.48 in"], ["24 h", "4.3 in"]]`.
+pub type DepthRows = Vec<Spanned<Vec<Spanned<RawValue>>>>;
+
 /// `[[storm]]`.
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -180,6 +184,12 @@ pub struct RawStorm {
     pub duration: Option<Spanned<RawValue>>,
     /// Mass curve for `pattern = "table"`.
     pub table: Option<Spanned<Rows>>,
+    /// Local depth-duration values for `pattern = "nested"`:
+    /// `[["5 min", "0.48 in"], ...]`.
+    pub depths: Option<Spanned<DepthRows>>,
+    /// Where a nested storm's largest block falls: a fraction of the
+    /// duration or a time from the start.
+    pub peak_at: Option<Spanned<RawValue>>,
     /// Gauge CSV path.
     pub gauge: Option<Spanned<String>>,
     /// Gauge interval.
@@ -204,6 +214,10 @@ pub struct RawCatchment {
     pub cn: Option<Spanned<f64>>,
     /// Time of concentration.
     pub tc: Option<Spanned<RawValue>>,
+    /// Watershed lag of the unit hydrograph, given directly.
+    pub lag_time: Option<Spanned<RawValue>>,
+    /// Watershed lag by the NRCS curve-number lag equation.
+    pub watershed_lag: Option<Spanned<RawWatershedLag>>,
     /// Initial-abstraction ratio.
     pub lambda: Option<Spanned<f64>>,
     /// Translation to `to`.
@@ -216,6 +230,16 @@ pub struct RawCatchment {
     /// Flow path.
     #[serde(default)]
     pub flow: Vec<Spanned<RawFlow>>,
+}
+
+/// `watershed_lag = { length, slope }`.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawWatershedLag {
+    /// Hydraulic length to the divide.
+    pub length: Option<Spanned<RawValue>>,
+    /// Average watershed slope.
+    pub slope: Option<Spanned<RawValue>>,
 }
 
 /// `[[catchment.cover]]`.
@@ -551,4 +575,8 @@ pub struct RawRecord {
     pub growing_months: Option<Spanned<Vec<i64>>>,
     /// Monthly potential evapotranspiration, depth per day (12 values).
     pub pet: Option<Spanned<Vec<RawValue>>>,
+    /// Regional (generalized) skew for the frequency fits (Bulletin 17B).
+    pub regional_skew: Option<Spanned<f64>>,
+    /// Mean square error of `regional_skew`.
+    pub regional_skew_mse: Option<Spanned<f64>>,
 }

@@ -126,7 +126,60 @@ impl Builder<'_> {
             step_h,
             start_s: series.start_s,
             moisture,
+            regional_skew: self.regional_skew(rr, r, &ctx)?,
         })
+    }
+
+    /// `regional_skew` and `regional_skew_mse`: both or neither; a skew
+    /// within Bulletin 17B's frequency-factor table (-3..3) and a positive
+    /// mean square error.
+    fn regional_skew(
+        &self,
+        rr: &RawRecord,
+        r: &Spanned<RawRecord>,
+        ctx: &str,
+    ) -> R<Option<crate::methods::stats::RegionalSkew>> {
+        let (skew, mse) = match (&rr.regional_skew, &rr.regional_skew_mse) {
+            (None, None) => return Ok(None),
+            (Some(g), Some(m)) => (g, m),
+            (Some(g), None) => {
+                return Err(self
+                    .err(&g.span(), &format!("{ctx}, regional_skew"), "a regional skew needs its mean square error `regional_skew_mse` to be weighted with the station skew (Bulletin 17B)")
+                    .expected("`regional_skew_mse = 0.30` (the regional study's mean square error) beside `regional_skew`"));
+            }
+            (None, Some(m)) => {
+                let _ = r;
+                return Err(self
+                    .err(
+                        &m.span(),
+                        &format!("{ctx}, regional_skew_mse"),
+                        "`regional_skew_mse` is given without `regional_skew`",
+                    )
+                    .expected("both `regional_skew` and `regional_skew_mse`, or neither"));
+            }
+        };
+        let g = self.num(skew, &format!("{ctx}, regional_skew"))?;
+        if !(-3.0..=3.0).contains(&g) {
+            return Err(self
+                .err(&skew.span(), &format!("{ctx}, regional_skew"), format!("a regional skew of {g} is outside -3..3"))
+                .expected("a skew coefficient between -3 and 3 (the range of Bulletin 17B's frequency factors)"));
+        }
+        let m = self.num(mse, &format!("{ctx}, regional_skew_mse"))?;
+        if m <= 0.0 {
+            return Err(self
+                .err(
+                    &mse.span(),
+                    &format!("{ctx}, regional_skew_mse"),
+                    format!("a mean square error of {m} is not above zero"),
+                )
+                .expected(
+                    "the regional skew's mean square error, a positive number such as 0.30",
+                ));
+        }
+        Ok(Some(crate::methods::stats::RegionalSkew {
+            skew: g,
+            mse: m,
+        }))
     }
 
     /// The step of a record (h): the gauge interval, or a step that divides

@@ -110,7 +110,7 @@ impl Builder<'_> {
         // Warnings that depend on the step and storms.
         for e in elements {
             if let ElementKind::Catchment(c) = &e.kind {
-                let tp = unit_hydrograph::time_to_peak_h(step_h, timing::lag_h(c.tc_h));
+                let tp = unit_hydrograph::time_to_peak_h(step_h, c.uh_lag_h);
                 let base_h = c.shape.time_base_over_tp() * tp;
                 if base_h > crate::engine::network::TAIL_H {
                     self.warnings.push(Warning::Note(format!(
@@ -185,7 +185,7 @@ impl Builder<'_> {
         let finest_step_h = records.iter().map(|r| r.step_h).fold(step_h, f64::min);
         for (i, e) in elements.iter().enumerate() {
             if let ElementKind::Catchment(c) = &e.kind {
-                let tp_h = unit_hydrograph::time_to_peak_h(finest_step_h, timing::lag_h(c.tc_h));
+                let tp_h = unit_hydrograph::time_to_peak_h(finest_step_h, c.uh_lag_h);
                 let n = c.shape.time_base_over_tp() * tp_h / finest_step_h;
                 if n.is_nan() || n > MAX_STEPS as f64 {
                     let span = match raw_elements[i] {

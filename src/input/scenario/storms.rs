@@ -1,6 +1,7 @@
 //! The `[[storm]]` section: design storms from NRCS patterns, tables and gauges.
 
 use super::*;
+use crate::methods::rainfall::nested;
 
 impl Builder<'_> {
     pub(super) fn storm(&mut self, s: &Spanned<RawStorm>) -> R<Storm> {
@@ -39,6 +40,10 @@ impl Builder<'_> {
             "pattern",
             "\"nrcs-type-ii\" (or a `gauge` file)",
         )?;
+        if pat.get_ref().eq_ignore_ascii_case("nested") {
+            return self.nested_storm(rs, s, name, &ctx);
+        }
+        self.nested_keys_unused(rs, &ctx, pat.get_ref())?;
         let depth_raw = self.req(&rs.depth, &s.span(), &ctx, "depth", "\"5.1 in\"")?;
         let depth = self.positive(depth_raw, Quantity::Depth, &format!("{ctx}, depth"))?;
         if !(STORM_DEPTH_USUAL_IN.0..=STORM_DEPTH_USUAL_IN.1).contains(&depth) {
@@ -65,6 +70,7 @@ impl Builder<'_> {
                     "nrcs-type-iii",
                     "uniform",
                     "table",
+                    "nested",
                 ];
                 return Err(self.unknown_word(
                     &pat.span(),
@@ -136,6 +142,123 @@ impl Builder<'_> {
                 key,
                 depth_in: depth,
                 duration_h,
+            },
+        })
+    }
+
+    /// `depths` and `peak_at` belong to nested storms only.
+    fn nested_keys_unused(&self, rs: &RawStorm, ctx: &str, pattern: &str) -> R<()> {
+        if let Some(d) = &rs.depths {
+            return Err(self
+                .err(
+                    &d.span(),
+                    &format!("{ctx}, depths"),
+                    format!("`depths` is only used with pattern = \"nested\", not \"{pattern}\""),
+                )
+                .expected("no `depths` key, or pattern = \"nested\""));
+        }
+        if let Some(p) = &rs.peak_at {
+            return Err(self
+                .err(
+                    &p.span(),
+                    &format!("{ctx}, peak_at"),
+                    format!("`peak_at` is only used with pattern = \"nested\", not \"{pattern}\""),
+                )
+                .expected("no `peak_at` key, or pattern = \"nested\""));
+        }
+        Ok(())
+    }
+
+    /// A nested storm: local depth-duration values arranged by the
+    /// alternating-block method at the run's step.
+    fn nested_storm(
+        &mut self,
+        rs: &RawStorm,
+        s: &Spanned<RawStorm>,
+        name: String,
+        ctx: &str,
+    ) -> R<Storm> {
+        for (key, v) in [
+            ("depth", rs.depth.as_ref().map(|d| d.span())),
+            ("table", rs.table.as_ref().map(|t| t.span())),
+        ] {
+            if let Some(span) = v {
+                return Err(self
+                    .err(
+                        &span,
+                        &format!("{ctx}, {key}"),
+                        format!("a nested storm takes its depth from `depths`; `{key}` is not used"),
+                    )
+                    .expected("`depths = [[\"5 min\", \"0.48 in\"], ..., [\"24 h\", \"5.1 in\"]]` and no `{key}`".replace("{key}", key)));
+            }
+        }
+        let t = self.req(
+            &rs.depths,
+            &s.span(),
+            ctx,
+            "depths",
+            "[[\"5 min\", \"0.48 in\"], [\"1 h\", \"1.9 in\"], ..., [\"24 h\", \"5.1 in\"]]",
+        )?;
+        let dctx = format!("{ctx}, depths");
+        let mut rows = Vec::with_capacity(t.get_ref().len());
+        for (i, row) in t.get_ref().iter().enumerate() {
+            let [d, p] = row.get_ref().as_slice() else {
+                return Err(self
+                    .err(
+                        &row.span(),
+                        &dctx,
+                        format!("row {} has {} values", i + 1, row.get_ref().len()),
+                    )
+                    .expected("[duration, depth] pairs such as [\"15 min\", \"0.9 in\"]"));
+            };
+            let rctx = format!("{dctx}, row {}", i + 1);
+            rows.push((
+                self.positive(d, Quantity::Time, &rctx)?,
+                self.positive(p, Quantity::Depth, &rctx)?,
+            ));
+        }
+        nested::check(&rows).map_err(|e| {
+            self.err(&t.span(), &dctx, e.to_string())
+                .expected("durations increasing, depths increasing, average intensities (depth / duration) never increasing")
+                .hint("list the local depth-duration values of one return period, shortest duration first")
+        })?;
+        let (last_h, _) = rows[rows.len() - 1];
+        let duration_h = match &rs.duration {
+            Some(d) => {
+                let v = self.positive(d, Quantity::Time, &format!("{ctx}, duration"))?;
+                if v > last_h * (1.0 + 1e-9) {
+                    return Err(self
+                        .err(&d.span(), &format!("{ctx}, duration"), format!("the duration {} h is longer than the longest duration in `depths` ({} h)", units::short(v, 4), units::short(last_h, 4)))
+                        .expected("a duration no longer than the last row of `depths`, or no `duration`"));
+                }
+                v.min(last_h)
+            }
+            None => last_h,
+        };
+        let peak_at = match &rs.peak_at {
+            None => 0.5,
+            Some(v) => {
+                let pctx = format!("{ctx}, peak_at");
+                let frac = match v.get_ref() {
+                    RawValue::Num(x) => *x,
+                    _ => self.qty(v, Quantity::Time, &pctx)? / duration_h,
+                };
+                if !(0.0..=1.0).contains(&frac) {
+                    return Err(self
+                        .err(&v.span(), &pctx, format!("the peak falls at {} of the duration, outside the storm", units::short(frac, 4)))
+                        .expected("a fraction of the duration from 0 to 1 (0.5, the middle, by default) or a time within the storm such as \"12 h\""));
+                }
+                frac
+            }
+        };
+        let depth_in = nested::depth_at(&rows, duration_h).0;
+        Ok(Storm {
+            name,
+            rain: StormRain::Nested {
+                depths: rows,
+                peak_at,
+                duration_h,
+                depth_in,
             },
         })
     }

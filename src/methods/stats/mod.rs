@@ -20,6 +20,9 @@
 //!
 //! Everything here is pure computation on plain values: no I/O, no printing.
 
+pub mod b17b;
+pub use b17b::{FrequencyAnalysis, RegionalSkew, bulletin17b};
+
 use crate::util::calendar;
 
 /// One plotting position of a ranked annual series.
