@@ -74,6 +74,9 @@ mod tests {
             tc_h,
             prf: 484.0,
             shape: Shape::Standard,
+            connected_fraction: 0.0,
+            rest_cn: 80.0,
+            separate_impervious: false,
         }
     }
 

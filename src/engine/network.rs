@@ -9,7 +9,6 @@
 
 use crate::engine::topology::Topology;
 use crate::methods::pond::{self, PondSummary, PondTable, Routed};
-use crate::methods::runoff;
 use crate::methods::timing;
 use crate::methods::unit_hydrograph;
 use crate::model::{Element, ElementKind, Pond, Study, Target};
@@ -560,8 +559,7 @@ impl StormRun<'_> {
         let e = &study.elements[i];
         Ok(match &e.kind {
             ElementKind::Catchment(cat) => {
-                let excess =
-                    runoff::excess_per_step_in(self.rain, cat.retention_in, cat.lambda.ratio());
+                let excess = cat.storm_excess_in(self.rain);
                 let uh = catchment_uh(cat, step_h);
                 let q = unit_hydrograph::convolve(&excess, &uh, len);
                 ElementResult {

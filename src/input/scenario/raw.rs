@@ -213,6 +213,8 @@ pub struct RawCatchment {
     /// Flow path.
     #[serde(default)]
     pub flow: Vec<Spanned<RawFlow>>,
+    /// "separate" | "composite": the connected impervious share on its own.
+    pub impervious: Option<Spanned<String>>,
 }
 
 /// `[[catchment.cover]]`.
@@ -229,6 +231,8 @@ pub struct RawCover {
     pub area: Option<Spanned<RawValue>>,
     /// Free note for the worksheet.
     pub note: Option<String>,
+    /// `false` for impervious cover not directly connected (TR-55 Figure 2-4).
+    pub connected: Option<Spanned<bool>>,
 }
 
 /// `[[catchment.flow]]`.
@@ -418,4 +422,8 @@ pub struct RawRecord {
     pub growing_months: Option<Spanned<Vec<i64>>>,
     /// Monthly potential evapotranspiration, depth per day (12 values).
     pub pet: Option<Spanned<Vec<RawValue>>>,
+    /// Recovery coefficient c of continuous accounting.
+    pub recovery: Option<Spanned<f64>>,
+    /// Starting moisture class of continuous accounting: "I", "II", "III".
+    pub initial: Option<Spanned<String>>,
 }
