@@ -544,7 +544,7 @@ pub fn markdown(study: &Study, entries: &[RecordOut], comparisons: &[ComparisonO
             );
         }
         let _ = writeln!(m);
-        m.push_str(&moisture_markdown(r, entries, &du));
+        m.push_str(&moisture_markdown(r, entries, du));
         if comparisons
             .iter()
             .any(|c| c.record.as_deref() == Some(&r.name))

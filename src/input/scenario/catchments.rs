@@ -627,7 +627,7 @@ fn impervious_split(covers: &[CoverRow], area_weighted_cn: f64) -> ImperviousSpl
     };
     let connected = sum(&|c| c.is_impervious() && c.connected);
     let unconnected = sum(&|c| c.is_impervious() && !c.connected);
-    if !(total > 0.0) || connected + unconnected <= 0.0 {
+    if total.is_nan() || total <= 0.0 || connected + unconnected <= 0.0 {
         return ImperviousSplit {
             cn: area_weighted_cn,
             connected_fraction: 0.0,

@@ -185,7 +185,7 @@ impl Builder<'_> {
                 Quantity::DepthPerDay,
                 &pctx,
             )?;
-            if !(x >= 0.0) || x > MAX_PET_IN_PER_DAY {
+            if !(0.0..=MAX_PET_IN_PER_DAY).contains(&x) {
                 return Err(self
                     .err(
                         &p.span(),
