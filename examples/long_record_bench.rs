@@ -104,8 +104,8 @@ moisture = "event"
     let continuous = dir.join("long-continuous.toml");
     let text = std::fs::read_to_string(&scenario)?
         .replace(
-            "area = \"8 ac\"\ncn = 92\n",
-            "[[catchment.cover]]\ncn = 98\narea = \"3 ac\"\n[[catchment.cover]]\ncn = 86\narea = \"5 ac\"\n",
+            "cn = 92\ntc = \"15 min\"\nto = \"basin\"\n",
+            "tc = \"15 min\"\nto = \"basin\"\n[[catchment.cover]]\ncn = 98\narea = \"3 ac\"\n[[catchment.cover]]\ncn = 86\narea = \"5 ac\"\n",
         )
         .replace(
             "moisture = \"event\"\n",
@@ -144,6 +144,13 @@ fn run_once(exe: &std::path::Path, scenario: &std::path::Path, out: &std::path::
         .output();
     let wall = t1.elapsed().as_secs_f64();
     match status {
+        Ok(o) if !matches!(o.status.code(), Some(0 | 1)) => {
+            println!(
+                "the run failed ({}):\n{}",
+                o.status,
+                String::from_utf8_lossy(&o.stderr)
+            );
+        }
         Ok(o) => {
             let err = String::from_utf8_lossy(&o.stderr);
             let rss = err
