@@ -249,3 +249,38 @@ fn summary_md_shows_the_moisture_table_of_a_continuous_record() {
     assert!(md.contains("| infiltration [in] | events | event CN min | mean | max |"));
     assert!(md.contains("| lot |"));
 }
+
+fn design_storm_runoff(catchment_keys: &str, cover_keys: &str) -> (f64, f64) {
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let sc = format!(
+        "title = \"Impervious options (invented)\"\nunits = \"us\"\n\n[[storm]]\nname = \"small\"\npattern = \"uniform\"\nduration = \"6 h\"\ndepth = \"1.0 in\"\n\n[[catchment]]\nname = \"lot\"\narea = \"10 ac\"\ntc = \"30 min\"\nto = \"outlet\"\n{catchment_keys}\n[[catchment.cover]]\ncn = 98\narea = \"2 ac\"\n{cover_keys}\n[[catchment.cover]]\ncn = 61\narea = \"8 ac\"\n\n[[point]]\nname = \"outlet\"\nlimit = \"none\"\n"
+    );
+    let path = dir.path().join("s.toml");
+    std::fs::write(&path, sc).unwrap_or_else(|e| panic!("{e}"));
+    let (code, s, _out) = run_scenario(&path);
+    assert_eq!(code, 0, "{s}");
+    let ev = event(&s, "small", "existing", "lot");
+    let cn = s["catchments"]
+        .as_array()
+        .and_then(|a| a.first())
+        .map(|c| num(&c["cn"]))
+        .unwrap_or(f64::NAN);
+    (num(&ev["runoff_depth"]), cn)
+}
+
+#[test]
+fn design_storms_offer_the_separate_share_and_the_unconnected_adjustment() {
+    // TR-55 (1986) eq. 2-3: 1 in on 20 % at CN 98 (0.7909 in, reference file 13a) and 80 % at
+    // CN 61 (no runoff below Ia = 1.28 in) gives 0.158 in when computed apart; the composite
+    // CN 68.4 (Ia = 0.92 in) gives 0.0012 in. TR-55 Figure 2-4 (from memory) with all 20 % unconnected:
+    // CNc = 61 + 0.2 (98 - 61)(1 - 0.5) = 64.7.
+    let (composite, cn) = design_storm_runoff("", "");
+    assert!((composite - q(1.0, 68.4)).abs() < 1e-9, "{composite}");
+    assert!(composite < 0.002);
+    assert!((cn - 68.4).abs() < 1e-9, "{cn}");
+    let (separate, _) = design_storm_runoff("impervious = \"separate\"", "");
+    assert!((separate - 0.2 * q(1.0, 98.0)).abs() < 1e-9, "{separate}");
+    assert!((separate - 0.158).abs() < 0.001);
+    let (_, unconnected) = design_storm_runoff("", "connected = false");
+    assert!((unconnected - 64.7).abs() < 1e-9, "{unconnected}");
+}
