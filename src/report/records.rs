@@ -501,9 +501,18 @@ pub fn markdown(study: &Study, entries: &[RecordOut], comparisons: &[ComparisonO
     let du = o.unit(Quantity::Depth);
     let mut m = String::new();
     let _ = writeln!(m, "## Long records\n");
+    let any_continuous = study
+        .records
+        .iter()
+        .any(|r| matches!(r.moisture, crate::model::MoistureMode::Continuous { .. }));
+    let accounting = if any_continuous {
+        "Curve-number accounting per event or with continuous soil moisture (each record says which; events split by dry gaps)"
+    } else {
+        "Event curve-number accounting (events split by dry gaps)"
+    };
     let _ = writeln!(
         m,
-        "Event curve-number accounting (events split by dry gaps), unit hydrographs and storage-indication over the whole record. Frequency by log-Pearson Type III fitted to log10 annual peaks by moments with the station skew (Bulletin 17B frequency factors from the gamma inverse); Weibull plotting positions; complete calendar years only (>= 90 % of intervals).\n"
+        "{accounting}, unit hydrographs and storage-indication over the whole record. Frequency by log-Pearson Type III fitted to log10 annual peaks by moments with the station skew (Bulletin 17B frequency factors from the gamma inverse); Weibull plotting positions; complete calendar years only (>= 90 % of intervals).\n"
     );
     for r in &study.records {
         let _ = writeln!(m, "### Record \"{}\"\n", r.name);
