@@ -1,7 +1,8 @@
 //! Speed and memory of a whole `runnel run` on a 100-year, 5-minute record
 //! (10.5 million intervals, dense CSV): two conditions, three catchments,
-//! one pond, one point. Writes the invented CSV and scenario into a
-//! temporary folder, runs the release binary on it and prints the time of
+//! one pond, one point, in event and in continuous soil-moisture mode
+//! (the latter with a connected impervious share). Writes the invented CSV and scenarios into a
+//! temporary folder, runs the release binary on each and prints the time of
 //! the whole run, the intervals per second of each stage (reading, excess,
 //! convolution, routing, statistics) and the peak memory.
 //!
@@ -98,13 +99,39 @@ gauge = "rain-5min-100yr.csv"
 moisture = "event"
 "#,
     )?;
+    // The same study in continuous soil-moisture mode, with the roofs and
+    // lots split into connected impervious cover and the rest.
+    let continuous = dir.join("long-continuous.toml");
+    let text = std::fs::read_to_string(&scenario)?
+        .replace(
+            "cn = 92\ntc = \"15 min\"\nto = \"basin\"\n",
+            "tc = \"15 min\"\nto = \"basin\"\n[[catchment.cover]]\ncn = 98\narea = \"3 ac\"\n[[catchment.cover]]\ncn = 86\narea = \"5 ac\"\n",
+        )
+        .replace(
+            "moisture = \"event\"\n",
+            "moisture = \"continuous\"\npet = [\"0.6 mm\", \"0.9 mm\", \"1.7 mm\", \"2.8 mm\", \"3.9 mm\", \"4.6 mm\", \"5.0 mm\", \"4.3 mm\", \"3.1 mm\", \"1.9 mm\", \"0.9 mm\", \"0.5 mm\"]\n",
+        );
+    std::fs::write(&continuous, text)?;
     let exe = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("target/release/runnel");
-    let out = dir.join("out");
+    for (label, scenario) in [("event", &scenario), ("continuous", &continuous)] {
+        println!("{label} soil moisture:");
+        run_once(&exe, scenario, &dir.join(format!("out-{label}")), n);
+    }
+    if std::env::var_os("KEEP").is_some() {
+        eprintln!("kept {}", dir.display());
+    } else {
+        let _ = std::fs::remove_dir_all(&dir);
+    }
+    Ok(())
+}
+
+/// Runs the release binary on one scenario and prints its time, memory and stages.
+fn run_once(exe: &std::path::Path, scenario: &std::path::Path, out: &std::path::Path, n: usize) {
     let t1 = Instant::now();
     let status = std::process::Command::new("/usr/bin/time")
         .env("RUNNEL_TIMINGS", "1")
         .arg("-v")
-        .arg(&exe)
+        .arg(exe)
         .args([
             "run",
             &scenario.to_string_lossy(),
@@ -117,6 +144,13 @@ moisture = "event"
         .output();
     let wall = t1.elapsed().as_secs_f64();
     match status {
+        Ok(o) if !matches!(o.status.code(), Some(0 | 1)) => {
+            println!(
+                "the run failed ({}):\n{}",
+                o.status,
+                String::from_utf8_lossy(&o.stderr)
+            );
+        }
         Ok(o) => {
             let err = String::from_utf8_lossy(&o.stderr);
             let rss = err
@@ -135,10 +169,4 @@ moisture = "event"
         }
         Err(e) => println!("could not run {}: {e}", exe.display()),
     }
-    if std::env::var_os("KEEP").is_some() {
-        eprintln!("kept {}", dir.display());
-    } else {
-        let _ = std::fs::remove_dir_all(&dir);
-    }
-    Ok(())
 }

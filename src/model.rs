@@ -289,6 +289,18 @@ pub struct CoverRow {
     pub area_ac: f64,
     /// Whether the cover is pervious (for the CN > 98 warning).
     pub pervious: bool,
+    /// `false` for impervious cover marked `connected = false` (TR-55
+    /// Figure 2-4); `true` otherwise.
+    pub connected: bool,
+}
+
+impl CoverRow {
+    /// Whether the row is impervious cover at CN 98 (roofs, paving, curbed
+    /// streets, or a `cn = 98` row), the cover TR-55 (1986) Table 2-2a
+    /// treats as directly connected unless marked otherwise.
+    pub fn is_impervious(&self) -> bool {
+        !self.pervious && (self.cn - crate::methods::moisture::IMPERVIOUS_CN).abs() < 1e-9
+    }
 }
 
 /// A validated catchment.
@@ -318,6 +330,40 @@ pub struct Catchment {
     pub prf: f64,
     /// Unit-hydrograph shape.
     pub shape: Shape,
+    /// Share (0-1) of the area that is directly connected impervious cover
+    /// at CN 98 (0 when `cn` was given directly).
+    pub connected_fraction: f64,
+    /// Curve number of the rest of the area (pervious and composite covers,
+    /// with unconnected impervious cover by TR-55 Figure 2-4); `cn` when
+    /// there is no connected impervious cover.
+    pub rest_cn: f64,
+    /// `impervious = "separate"`: design storms and event-mode records
+    /// compute the connected impervious share on its own (continuous
+    /// records always do).
+    pub separate_impervious: bool,
+}
+
+impl Catchment {
+    /// Excess per step (in over the whole area) of a design storm's rain (in per step).
+    ///
+    /// # Formula
+    /// TR-55 (1986) eq. 2-1 on the cumulative rain, with the composite CN,
+    /// or with `impervious = "separate"` for the connected impervious share
+    /// at CN 98 and the rest at its own CN, added by area.
+    pub fn storm_excess_in(&self, rain_in: &[f64]) -> Vec<f64> {
+        let ratio = self.lambda.ratio();
+        if !self.separate_impervious || self.connected_fraction <= 0.0 {
+            return crate::methods::runoff::excess_per_step_in(rain_in, self.retention_in, ratio);
+        }
+        crate::methods::runoff::split_excess_per_step_in(
+            rain_in,
+            self.connected_fraction,
+            self.lambda
+                .retention_in(crate::methods::moisture::IMPERVIOUS_CN),
+            self.lambda.retention_in(self.rest_cn),
+            ratio,
+        )
+    }
 }
 
 /// Where a catchment's timing comes from.
@@ -589,10 +635,17 @@ pub enum MoistureMode {
         /// Growing-season months.
         growing_months: [bool; 12],
     },
-    /// Soil-moisture accounting with evapotranspiration.
+    /// Soil-moisture accounting with evapotranspiration
+    /// (`methods::moisture::continuous`).
     Continuous {
-        /// Potential evapotranspiration per month, in/day.
+        /// Dry gap that ends an event, h.
+        dry_gap_h: f64,
+        /// Potential evapotranspiration per month, in/day (index 0 = January).
         pet_in_per_day: [f64; 12],
+        /// Recovery coefficient c.
+        recovery: f64,
+        /// Moisture class the record starts at.
+        initial: crate::methods::moisture::MoistureClass,
     },
 }
 

@@ -183,7 +183,12 @@ const CASES: &[Case] = &[
     case("gauge-missing-value-unknown", LineCol(14, 11), &["storm \"june\", missing", "\"skip\"", "\"zero\""]),
     case("gauge-and-pattern", LineCol(14, 11), &["storm \"june\", pattern", "either `gauge` or `pattern`"]),
     // Long records.
-    case("record-moisture-continuous", LineCol(76, 12), &["record \"june-record\", moisture", "not available in this version", "moisture = \"event\""]),
+    case("record-pet-count", LineCol(77, 7), &["record \"june-record\", pet", "11 values given", "12 monthly values"]),
+    case("record-recovery-range", LineCol(78, 12), &["record \"june-record\", recovery", "outside 0.3 to 3"]),
+    case("record-initial-unknown", LineCol(78, 11), &["record \"june-record\", initial", "\"IIII\"", "did you mean \"III\""]),
+    case("record-pet-in-event-mode", LineCol(77, 7), &["record \"june-record\", pet", "belongs to moisture = \"continuous\""]),
+    case("cover-connected-pervious", LineCol(38, 13), &["catchment \"PR-1\", cover 2, connected", "not impervious at CN 98"]),
+    case("catchment-impervious-unknown", LineCol(31, 14), &["catchment \"PR-1\", impervious", "\"seperate\"", "did you mean \"separate\""]),
     case("record-moisture-unknown", LineCol(76, 12), &["record \"june-record\", moisture", "\"bucket\""]),
     // Conditions are deliberate (issue 10, item 3).
     case("condition-typo", LineCol(57, 13), &["pond \"Pond A\", condition", "\"propsed\" is 1 letter away from condition \"proposed\"", "did you mean \"proposed\"", "conditions = [\"existing\", \"proposed\", \"propsed\"]"]),

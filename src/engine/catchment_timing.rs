@@ -71,6 +71,9 @@ mod tests {
             timing_basis: crate::model::TimingBasis::FlowPath,
             prf: 484.0,
             shape: Shape::Standard,
+            connected_fraction: 0.0,
+            rest_cn: 80.0,
+            separate_impervious: false,
         }
     }
 

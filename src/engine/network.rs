@@ -10,7 +10,6 @@
 use crate::engine::topology::Topology;
 use crate::engine::walk::{ElementSim, walk};
 use crate::methods::pond::{self, PondSummary, PondTable, Routed};
-use crate::methods::runoff;
 use crate::methods::unit_hydrograph;
 use crate::model::{ElementKind, Pond, Study};
 
@@ -557,8 +556,7 @@ impl StormRun<'_> {
         let e = &study.elements[i];
         Ok(match &e.kind {
             ElementKind::Catchment(cat) => {
-                let excess =
-                    runoff::excess_per_step_in(self.rain, cat.retention_in, cat.lambda.ratio());
+                let excess = cat.storm_excess_in(self.rain);
                 let uh = catchment_uh(cat, step_h);
                 let q = unit_hydrograph::convolve(&excess, &uh, len);
                 ElementResult {

@@ -51,6 +51,21 @@ impl Lambda {
             Lambda::Reduced => 1.33 * s20.max(0.0).powf(1.15),
         }
     }
+
+    /// The curve number (for Ia = 0.2 S, as tabulated) whose retention with
+    /// this ratio is `s_in` (in): the inverse of [`Lambda::retention_in`].
+    ///
+    /// # Formula
+    /// TR-55 eq. 2-4 inverted, `CN = 1000 / (10 + S0.20)`, with
+    /// `S0.20 = (S0.05 / 1.33)^(1/1.15)` for the reduced ratio (Hawkins et
+    /// al. 2002, inverted; S in in).
+    pub fn cn_for_retention_in(self, s_in: f64) -> f64 {
+        let s20 = match self {
+            Lambda::Standard => s_in,
+            Lambda::Reduced => (s_in.max(0.0) / 1.33).powf(1.0 / 1.15),
+        };
+        cn_from_retention_in(s20)
+    }
 }
 
 /// Curve number equivalent to the converted retention of [`Lambda::retention_in`].
@@ -97,6 +112,33 @@ pub fn composite_cn(parts: &[(f64, f64)]) -> Option<f64> {
     }
 }
 
+/// Curve number of a catchment part whose impervious cover is not all
+/// directly connected to the drainage system.
+///
+/// `pervious_cn` is the area-weighted CN of the pervious covers;
+/// `connected_pct` and `unconnected_pct` are the connected and unconnected
+/// impervious covers (CN 98) in percent of the whole area. Returns `None`
+/// when the total impervious share is 30 % or more, where TR-55 uses the
+/// connected composite (its Figure 2-3) instead.
+///
+/// # Formula
+/// TR-55 (1986) Figure 2-4 (recalled from memory: the figure's equation was
+/// not read in a published copy): `CNc = CNp + (Pimp/100)(98 - CNp)(1 - 0.5 R)`,
+/// with `Pimp` the total impervious percent and `R` the unconnected share of
+/// the impervious area; that is, the unconnected part counts at half weight:
+/// `CNc = CNp + (98 - CNp)(Pc + 0.5 Pu)/100`.
+pub fn unconnected_composite_cn(
+    pervious_cn: f64,
+    connected_pct: f64,
+    unconnected_pct: f64,
+) -> Option<f64> {
+    let total = connected_pct + unconnected_pct;
+    if total >= 30.0 {
+        return None;
+    }
+    Some(pervious_cn + (98.0 - pervious_cn) * (connected_pct + 0.5 * unconnected_pct) / 100.0)
+}
+
 /// Excess rainfall per step (in) from rainfall per step (in).
 ///
 /// The curve-number equation is applied to the cumulative rainfall and the
@@ -113,6 +155,30 @@ pub fn excess_per_step_in(rain_in: &[f64], s_in: f64, ia_ratio: f64) -> Vec<f64>
         q_prev = q;
     }
     out
+}
+
+/// Excess rainfall per step (in over the whole area) of a catchment whose
+/// directly connected impervious share is computed on its own.
+///
+/// # Formula
+/// TR-55 (1986) eq. 2-1 on the cumulative rain for each share, added by
+/// area: `q = f q(S_imp) + (1 - f) q(S_rest)`, with `f` the connected
+/// impervious fraction and `S_imp` the retention at CN 98 (S in in).
+pub fn split_excess_per_step_in(
+    rain_in: &[f64],
+    impervious_fraction: f64,
+    s_impervious_in: f64,
+    s_rest_in: f64,
+    ia_ratio: f64,
+) -> Vec<f64> {
+    let f = impervious_fraction.clamp(0.0, 1.0);
+    let imp = excess_per_step_in(rain_in, s_impervious_in, ia_ratio);
+    let rest = excess_per_step_in(rain_in, s_rest_in, ia_ratio);
+    imp.iter()
+        .zip(&rest)
+        .zip(rain_in)
+        .map(|((a, b), r)| (f * a + (1.0 - f) * b).clamp(0.0, r.max(0.0)))
+        .collect()
 }
 
 #[cfg(test)]
@@ -212,6 +278,49 @@ mod tests {
         let s = retention_in(78.0);
         let total: f64 = excess_per_step_in(&rain, s, 0.2).iter().sum();
         assert!((total - runoff_depth_in(2.45, s, 0.2)).abs() < 1e-12);
+    }
+
+    #[test]
+    fn the_inverse_retention_gives_back_the_curve_number() {
+        // TR-55 (1986) eq. 2-4; Hawkins et al. (2002) conversion (from memory, corroborated).
+        for lambda in [Lambda::Standard, Lambda::Reduced] {
+            for cn in [40.0, 61.5, 80.0, 98.0] {
+                let back = lambda.cn_for_retention_in(lambda.retention_in(cn));
+                assert!((back - cn).abs() < 1e-9, "{lambda:?} CN {cn}: {back}");
+            }
+        }
+    }
+
+    #[test]
+    fn unconnected_impervious_counts_at_half_weight_below_30_percent() {
+        // TR-55 (1986) Figure 2-4 (from memory): CNc = CNp + (Pimp/100)(98 - CNp)(1 - 0.5R).
+        // Pimp 20 %, R = 0.5, CNp 61: 61 + 0.2 * 37 * 0.75 = 66.55.
+        let got = unconnected_composite_cn(61.0, 10.0, 10.0).unwrap_or(f64::NAN);
+        assert!((got - 66.55).abs() < 1e-12, "{got}");
+        // R = 0 is the connected composite of Figure 2-3 (area weighting).
+        let connected = unconnected_composite_cn(61.0, 20.0, 0.0).unwrap_or(f64::NAN);
+        let weighted = composite_cn(&[(98.0, 20.0), (61.0, 80.0)]).unwrap_or(0.0);
+        assert!((connected - weighted).abs() < 1e-12);
+        // 30 % impervious or more: the figure does not apply.
+        assert_eq!(unconnected_composite_cn(61.0, 10.0, 20.0), None);
+    }
+
+    #[test]
+    fn a_separate_impervious_share_sheds_more_than_the_composite_on_small_storms() {
+        // TR-55 (1986) eq. 2-1 per share: 1 in on 30 % at CN 98 and 70 % at CN 61 gives
+        // 0.3 * 0.7909 = 0.237 in (reference file 13a: 1.0/98 -> 0.7909), the composite CN 72.1
+        // gives 0.04 in; the split is the sum of the shares' runoff.
+        let rain = [0.2, 0.5, 0.3];
+        let split: f64 =
+            split_excess_per_step_in(&rain, 0.3, retention_in(98.0), retention_in(61.0), 0.2)
+                .iter()
+                .sum();
+        let expected = 0.3 * runoff_depth_in(1.0, retention_in(98.0), 0.2)
+            + 0.7 * runoff_depth_in(1.0, retention_in(61.0), 0.2);
+        assert!((split - expected).abs() < 1e-12);
+        assert!((0.3 * runoff_depth_in(1.0, retention_in(98.0), 0.2) - 0.3 * 0.7909).abs() < 1e-4);
+        let composite = runoff_depth_in(1.0, retention_in(0.3 * 98.0 + 0.7 * 61.0), 0.2);
+        assert!(split > composite + 0.15, "{split} vs {composite}");
     }
 
     #[test]

@@ -125,6 +125,12 @@ pub struct RecordOut {
     /// Volume evaporated over the record (ponds that lose water).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub evaporated_volume: Option<f64>,
+    /// Rain less runoff over the record (catchments).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub infiltration_depth: Option<f64>,
+    /// Curve numbers at the events' start (catchments with events).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub event_cn: Option<EventCnOut>,
 }
 
 /// What Bulletin 17B's low-outlier test did, in output units.
@@ -254,6 +260,17 @@ fn frequency_notes(m: &mut String, entries: &[&RecordOut], fu: &str) {
     }
 }
 
+/// The `event_cn` of a catchment's record entry.
+#[derive(Debug, Clone, Copy, Serialize)]
+pub struct EventCnOut {
+    /// Smallest.
+    pub min: f64,
+    /// Mean over the events.
+    pub mean: f64,
+    /// Largest.
+    pub max: f64,
+}
+
 /// Everything a record's point plots need, in output units.
 #[derive(Debug, Clone)]
 pub struct PlotData {
@@ -358,6 +375,16 @@ pub fn entry(study: &Study, e: &ElementRecord) -> RecordOut {
         evaporated_volume: pond
             .and_then(|p| p.lost)
             .map(|l| o.volume(l.evaporated_ft3)),
+        infiltration_depth: e.moisture.as_ref().map(|m| o.depth(m.infiltration_in)),
+        event_cn: e
+            .moisture
+            .as_ref()
+            .and_then(|m| m.event_cn)
+            .map(|c| EventCnOut {
+                min: c.min,
+                mean: c.mean,
+                max: c.max,
+            }),
     }
 }
 
@@ -612,9 +639,18 @@ pub fn markdown(study: &Study, entries: &[RecordOut], comparisons: &[ComparisonO
     let du = o.unit(Quantity::Depth);
     let mut m = String::new();
     let _ = writeln!(m, "## Long records\n");
+    let any_continuous = study
+        .records
+        .iter()
+        .any(|r| matches!(r.moisture, crate::model::MoistureMode::Continuous { .. }));
+    let accounting = if any_continuous {
+        "Curve-number accounting per event or with continuous soil moisture (each record says which; events split by dry gaps)"
+    } else {
+        "Event curve-number accounting (events split by dry gaps)"
+    };
     let _ = writeln!(
         m,
-        "Event curve-number accounting (events split by dry gaps), unit hydrographs and storage-indication over the whole record. Frequency by log-Pearson Type III fitted to log10 annual peaks by moments with the station skew, or the skew weighted with the record's regional skew (Bulletin 17B eq. 5 and 6), after Bulletin 17B's low-outlier test (Bulletin 17B frequency factors from the gamma inverse); Weibull plotting positions; complete calendar years only (>= 90 % of intervals).\n"
+        "{accounting}, unit hydrographs and storage-indication over the whole record. Frequency by log-Pearson Type III fitted to log10 annual peaks by moments with the station skew, or the skew weighted with the record's regional skew (Bulletin 17B eq. 5 and 6), after Bulletin 17B's low-outlier test (Bulletin 17B frequency factors from the gamma inverse); Weibull plotting positions; complete calendar years only (>= 90 % of intervals).\n"
     );
     for r in &study.records {
         let _ = writeln!(m, "### Record \"{}\"\n", r.name);
@@ -667,6 +703,7 @@ pub fn markdown(study: &Study, entries: &[RecordOut], comparisons: &[ComparisonO
         pond_losses_markdown(&mut m, o, entries.iter().filter(|e| e.record == r.name));
         let mine: Vec<&RecordOut> = entries.iter().filter(|e| e.record == r.name).collect();
         frequency_notes(&mut m, &mine, fu);
+        m.push_str(&moisture_markdown(r, entries, du));
         if comparisons
             .iter()
             .any(|c| c.record.as_deref() == Some(&r.name))
@@ -707,6 +744,77 @@ fn pond_losses_markdown<'a>(m: &mut String, o: Out, entries: impl Iterator<Item 
         );
     }
     let _ = writeln!(m);
+}
+
+/// The soil-moisture table of one record in `summary.md`: how the record
+/// keeps soil moisture, and per catchment the water that did not run off
+/// and the curve numbers at the events' start.
+fn moisture_markdown(r: &crate::model::Record, entries: &[RecordOut], du: &str) -> String {
+    use crate::methods::moisture::MoistureClass;
+    use crate::model::MoistureMode;
+    let mut m = String::new();
+    let rows: Vec<&RecordOut> = entries
+        .iter()
+        .filter(|e| e.record == r.name && e.infiltration_depth.is_some())
+        .collect();
+    if rows.is_empty() {
+        return m;
+    }
+    match &r.moisture {
+        MoistureMode::Event { antecedent, .. } => {
+            let _ = writeln!(
+                m,
+                "Soil moisture: event mode, every event starts at {} (TR-55 eq. 2-3 per event).\n",
+                if *antecedent {
+                    "the AMC I, II or III curve number its 5-day rain gives"
+                } else {
+                    "the catchment's curve number (AMC II)"
+                }
+            );
+        }
+        MoistureMode::Continuous {
+            recovery, initial, ..
+        } => {
+            let class = match initial {
+                MoistureClass::Dry => "I",
+                MoistureClass::Average => "II",
+                MoistureClass::Wet => "III",
+            };
+            let _ = writeln!(
+                m,
+                "Soil moisture: continuous. The retention S starts at S(CN {class}), falls by the water each event infiltrates (TR-55 eq. 2-3 applied incrementally within events) and recovers between events by dS/dt = PET exp(-c S/Smax), c = {recovery} (a recovery law recalled from memory, attributed to Williams and LaSeur 1976 and Kannan et al. 2008), within [S(CN III), S(CN I)]; directly connected impervious cover at CN 98 is computed on its own.\n"
+            );
+        }
+    }
+    let _ = writeln!(
+        m,
+        "| condition | catchment | rain [{du}] | runoff [{du}] | infiltration [{du}] | events | event CN min | mean | max |\n|---|---|---:|---:|---:|---:|---:|---:|---:|"
+    );
+    for e in rows {
+        let cn = |f: fn(&EventCnOut) -> f64| {
+            e.event_cn
+                .as_ref()
+                .map(|c| format!("{:.1}", f(c)))
+                .unwrap_or_else(|| "-".into())
+        };
+        let _ = writeln!(
+            m,
+            "| {} | {} | {} | {} | {} | {} | {} | {} | {} |",
+            e.condition,
+            e.element,
+            sig(e.rain_depth, 5),
+            sig(e.runoff_depth, 5),
+            sig(e.infiltration_depth.unwrap_or(0.0), 5),
+            e.events
+                .map(|n| n.to_string())
+                .unwrap_or_else(|| "-".into()),
+            cn(|c| c.min),
+            cn(|c| c.mean),
+            cn(|c| c.max),
+        );
+    }
+    let _ = writeln!(m);
+    m
 }
 
 #[cfg(test)]
@@ -760,6 +868,7 @@ mod tests {
             }),
             flow_duration_cfs: vec![9.0, 8.0, 7.0, 6.0, 5.0, 4.0, 3.0, 2.0, 1.0],
             events: None,
+            moisture: None,
             pond: Some(PondRecord {
                 stage_duration_ft: vec![3.0; EXCEEDANCES.len()],
                 annual_max_stage_ft: vec![YearMax {

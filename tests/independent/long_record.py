@@ -611,6 +611,11 @@ def load_scenario(path):
         raise InputError(f"{path}: {e.strerror}") from None
     except tomllib.TOMLDecodeError as e:
         raise InputError(f"{path}: {e}") from None
+    return load_scenario_dict(sc, path)
+
+
+def load_scenario_dict(sc, path):
+    """The scenario as read by tomllib, checked and reduced (continuous.py reuses it)."""
     if sc.get("units", "us") != "us":
         raise InputError("only units = \"us\" is supported by this script")
     for key in ("storm", "inflow"):
@@ -766,7 +771,9 @@ def self_check():
 
 # ---------------------------------------------------------------- main
 
-def run_record(rec, catchments, ponds, points, conds, storage_mode, timing):
+def run_record(rec, catchments, ponds, points, conds, storage_mode, timing, excess_of=None):
+    """excess_of(rain, t0_s, step_s, catchments) -> ({name: excess series}, n_events) replaces
+    event accounting (continuous.py passes its soil-moisture accounting)."""
     t = time.perf_counter()
     interval_s = int(round(rec["interval_s"])) if rec["interval_s"] else None
     rain, t0_s, step_s, rows = read_gauge(rec["gauge"], interval_s, rec["missing_zero"])
@@ -778,7 +785,10 @@ def run_record(rec, catchments, ponds, points, conds, storage_mode, timing):
     # Excess, once per catchment (it depends only on the rain and the CN).
     t = time.perf_counter()
     wet, p_start, p_end, n_events = event_cumulative_rain(rain, dt_s, rec["dry_gap_s"])
-    excess = {c["name"]: excess_series(n, wet, p_start, p_end, c["cn"]) for c in catchments}
+    if excess_of is None:
+        excess = {c["name"]: excess_series(n, wet, p_start, p_end, c["cn"]) for c in catchments}
+    else:
+        excess, n_events = excess_of(rain, t0_s, step_s, catchments)
     del p_start, p_end
     timing["excess"] += time.perf_counter() - t
 

@@ -16,16 +16,14 @@ use crate::engine::network::SimulationError;
 use crate::engine::topology::Topology;
 use crate::engine::walk::{ElementSim, walk};
 use crate::error::Error;
-use crate::methods::moisture;
 use crate::methods::pond;
 use crate::methods::stats;
 use crate::methods::unit_hydrograph;
-use crate::model::{
-    Catchment, DurationControl, ElementKind, MoistureMode, Pond, Record, Study, Target,
-};
+use crate::model::{Catchment, DurationControl, ElementKind, Pond, Record, Study, Target};
 use crate::util::calendar;
 use crate::warning::Warning;
 
+mod excess;
 mod result;
 pub use result::*;
 
@@ -245,6 +243,7 @@ fn element_record(
         flow_duration_cfs,
         events: None,
         pond: None,
+        moisture: None,
     }
 }
 
@@ -644,49 +643,15 @@ fn simulate_catchment(
     let clock = std::time::Instant::now();
     let tp_h = unit_hydrograph::time_to_peak_h(step_h, cat.uh_lag_h);
     let uh = unit_hydrograph::ordinates_cfs_per_in(cat.shape, cat.area_ac, tp_h, step_h);
-    let month_of = |k: usize| calendar::month_of(r.start_s + k as i64 * run.step_s);
     // Each rainy interval's excess goes straight into the convolution (no
     // excess series is stored), so the two stages are timed together.
-    let mut runoff_in = 0.0;
-    let events = match &r.moisture {
-        MoistureMode::Event {
-            dry_gap_h,
-            antecedent,
-            growing_months,
-        } => {
-            let opts = moisture::EventOptions {
-                dry_gap_steps: moisture::dry_gap_steps_for(*dry_gap_h, step_h).unwrap_or(1),
-                antecedent: antecedent.then(|| moisture::AntecedentRule {
-                    growing_months: *growing_months,
-                    ..Default::default()
-                }),
-            };
-            moisture::event_excess_each(
-                &run.rain_in,
-                step_h,
-                cat.cn,
-                cat.lambda,
-                &opts,
-                &month_of,
-                |j, excess_in| {
-                    runoff_in += excess_in;
-                    unit_hydrograph::add_response(out, j, excess_in, &uh);
-                },
-            )
-            .map_err(|e| Error::Compute {
-                message: format!("record \"{}\": {e}", r.name),
-            })?
-        }
-        MoistureMode::Continuous { .. } => {
-            return Err(Error::Compute {
-                message: format!(
-                    "record \"{}\": {}",
-                    r.name,
-                    moisture::MoistureError::ContinuousUnavailable
-                ),
-            });
-        }
-    };
+    let excess = excess::catchment_excess(run, cat, |j, excess_in| {
+        unit_hydrograph::add_response(out, j, excess_in, &uh);
+    })
+    .map_err(|e| Error::Compute {
+        message: format!("record \"{}\": catchment \"{name}\": {e}", r.name),
+    })?;
+    let runoff_in = excess.runoff_in;
     timings.runoff_s += clock.elapsed().as_secs_f64();
     let st = run.stats(out);
     for (what, v) in [
@@ -707,7 +672,11 @@ fn simulate_catchment(
     };
     let mut entry = element_record(run, who, out, &st, None);
     entry.runoff_in = runoff_in;
-    entry.events = Some(events);
+    entry.events = Some(excess.events);
+    entry.moisture = Some(MoistureRecord {
+        infiltration_in: run.rain_total_in - runoff_in,
+        event_cn: excess.event_cn,
+    });
     Ok((entry, generated_ft3))
 }
 

@@ -108,6 +108,18 @@ pub struct ElementRecord {
     pub events: Option<usize>,
     /// Stage statistics and mass balance (ponds).
     pub pond: Option<PondRecord>,
+    /// Soil-moisture results (catchments).
+    pub moisture: Option<MoistureRecord>,
+}
+
+/// A catchment's soil-moisture results over one record and condition.
+#[derive(Debug, Clone, PartialEq)]
+pub struct MoistureRecord {
+    /// Rain less runoff over the record, in over the catchment.
+    pub infiltration_in: f64,
+    /// Curve numbers at the events' start (the moisture-accounted part in
+    /// continuous mode; the AMC-adjusted CN in event mode); `None` without events.
+    pub event_cn: Option<crate::methods::moisture::CnRange>,
 }
 
 /// A point's series over one record and condition, reduced for its plots.

@@ -54,6 +54,8 @@ impl Builder<'_> {
                     .expected("`cn = 84` or [[catchment.cover]] tables"));
             }
         };
+        let split = impervious_split(&covers, cn);
+        let cn = split.cn;
         if cn < 30.0 {
             self.warnings.push(Warning::CnLow {
                 catchment: rc.name.get_ref().clone(),
@@ -99,6 +101,23 @@ impl Builder<'_> {
             )
             .expected("a peak rate factor between 1 and 640 (484 is the NRCS standard)")
         })?;
+        let separate_impervious = match &rc.impervious {
+            None => false,
+            Some(w) => match w.get_ref().as_str() {
+                "composite" => false,
+                "separate" => true,
+                other => {
+                    return Err(self.unknown_word(
+                        &w.span(),
+                        &format!("{ctx}, impervious"),
+                        format!("unknown impervious treatment \"{other}\""),
+                        "\"composite\" (one CN for the whole area) or \"separate\" (connected impervious cover at CN 98 on its own)",
+                        other,
+                        ["composite", "separate"],
+                    ));
+                }
+            },
+        };
         Ok(Catchment {
             area_ac,
             covers,
@@ -111,6 +130,9 @@ impl Builder<'_> {
             timing_basis,
             prf,
             shape,
+            connected_fraction: split.connected_fraction,
+            rest_cn: split.rest_cn,
+            separate_impervious,
         })
     }
 
@@ -407,11 +429,26 @@ impl Builder<'_> {
                     cn,
                 });
             }
+            let connected = match &c.connected {
+                Some(k) if !*k.get_ref() && (pervious || (cn - 98.0).abs() > 1e-9) => {
+                    return Err(self
+                        .err(
+                            &k.span(),
+                            &format!("{cctx}, connected"),
+                            format!("`connected = false` marks impervious cover, but this cover has CN {cn} and is not impervious at CN 98"),
+                        )
+                        .expected("`connected = false` only on impervious covers (land = \"impervious\" or \"street-paved-curbed\", or cn = 98)")
+                        .hint("leave `connected` out for pervious and composite covers"));
+                }
+                Some(k) => *k.get_ref(),
+                None => true,
+            };
             covers.push(CoverRow {
                 label,
                 cn,
                 area_ac: area,
                 pervious,
+                connected,
             });
         }
         Ok(covers)
@@ -651,5 +688,69 @@ impl Builder<'_> {
                 }));
         }
         Ok(())
+    }
+}
+
+/// A catchment's curve numbers with its impervious cover split out.
+#[derive(Debug, Clone, Copy, PartialEq)]
+struct ImperviousSplit {
+    /// Composite CN of the whole area (TR-55 Figure 2-4 when impervious
+    /// cover is marked unconnected and is under 30 % of the area).
+    cn: f64,
+    /// Share of the area that is connected impervious cover at CN 98.
+    connected_fraction: f64,
+    /// CN of the rest of the area.
+    rest_cn: f64,
+}
+
+/// Splits the covers into connected impervious cover (CN 98) and the rest.
+///
+/// Without covers marked `connected = false`, the composite is the
+/// area-weighted `area_weighted_cn` and the rest is the area-weighted CN of
+/// the other covers. With them, and under 30 % impervious in all, TR-55
+/// (1986) Figure 2-4 (from memory) gives the composite, and the rest's CN
+/// is the same relation over the rest of the area, so that the two shares
+/// added by area give the composite. At 30 % or more TR-55 treats all
+/// impervious cover as connected (its Figure 2-3).
+fn impervious_split(covers: &[CoverRow], area_weighted_cn: f64) -> ImperviousSplit {
+    let total: f64 = covers.iter().map(|c| c.area_ac).sum();
+    let sum = |f: &dyn Fn(&CoverRow) -> bool| -> f64 {
+        covers.iter().filter(|c| f(c)).map(|c| c.area_ac).sum()
+    };
+    let connected = sum(&|c| c.is_impervious() && c.connected);
+    let unconnected = sum(&|c| c.is_impervious() && !c.connected);
+    if total.is_nan() || total <= 0.0 || connected + unconnected <= 0.0 {
+        return ImperviousSplit {
+            cn: area_weighted_cn,
+            connected_fraction: 0.0,
+            rest_cn: area_weighted_cn,
+        };
+    }
+    let other: Vec<(f64, f64)> = covers
+        .iter()
+        .filter(|c| !c.is_impervious())
+        .map(|c| (c.cn, c.area_ac))
+        .collect();
+    let pervious_cn = runoff::composite_cn(&other).unwrap_or(98.0);
+    let (pc, pu) = (100.0 * connected / total, 100.0 * unconnected / total);
+    match runoff::unconnected_composite_cn(pervious_cn, pc, pu) {
+        Some(cn) if pu > 0.0 => {
+            let rest_pct = 100.0 - pc;
+            let rest_cn = if rest_pct > 0.0 {
+                pervious_cn + (98.0 - pervious_cn) * 0.5 * pu / rest_pct
+            } else {
+                98.0
+            };
+            ImperviousSplit {
+                cn,
+                connected_fraction: connected / total,
+                rest_cn,
+            }
+        }
+        _ => ImperviousSplit {
+            cn: area_weighted_cn,
+            connected_fraction: (connected + unconnected) / total,
+            rest_cn: pervious_cn,
+        },
     }
 }

@@ -230,6 +230,8 @@ pub struct RawCatchment {
     /// Flow path.
     #[serde(default)]
     pub flow: Vec<Spanned<RawFlow>>,
+    /// "separate" | "composite": the connected impervious share on its own.
+    pub impervious: Option<Spanned<String>>,
 }
 
 /// `watershed_lag = { length, slope }`.
@@ -256,6 +258,8 @@ pub struct RawCover {
     pub area: Option<Spanned<RawValue>>,
     /// Free note for the worksheet.
     pub note: Option<String>,
+    /// `false` for impervious cover not directly connected (TR-55 Figure 2-4).
+    pub connected: Option<Spanned<bool>>,
 }
 
 /// `[[catchment.flow]]`.
@@ -579,4 +583,8 @@ pub struct RawRecord {
     pub regional_skew: Option<Spanned<f64>>,
     /// Mean square error of `regional_skew`.
     pub regional_skew_mse: Option<Spanned<f64>>,
+    /// Recovery coefficient c of continuous accounting.
+    pub recovery: Option<Spanned<f64>>,
+    /// Starting moisture class of continuous accounting: "I", "II", "III".
+    pub initial: Option<Spanned<String>>,
 }

@@ -1,6 +1,12 @@
 //! The `[[record]]` section: long rainfall records for continuous simulation.
 
 use super::*;
+use crate::methods::moisture::MoistureClass;
+use crate::util::calendar;
+
+/// Largest potential evapotranspiration (in/day) a month may hold: more
+/// than any climate's (bound of sanity, not of climate).
+const MAX_PET_IN_PER_DAY: f64 = 1.0;
 
 impl Builder<'_> {
     pub(super) fn record(&mut self, r: &Spanned<RawRecord>) -> R<Record> {
@@ -11,105 +17,7 @@ impl Builder<'_> {
         let (series, path) = self.gauge(g, &rr.interval, &rr.missing, &ctx, MAX_STEPS)?;
         let interval_h = series.interval_s as f64 / 3600.0;
         let step_h = self.record_step(rr, &ctx, series.depth.len(), interval_h)?;
-        let moisture = match rr.moisture.as_ref().map(|m| m.get_ref().as_str()) {
-            None | Some("event") => {
-                let dry_gap_h = match &rr.dry_gap {
-                    Some(d) => self.positive(d, Quantity::Time, &format!("{ctx}, dry_gap"))?,
-                    None => 6.0,
-                };
-                let antecedent = match &rr.antecedent {
-                    Some(a) if a.get_ref() == "amc" => true,
-                    Some(a) if a.get_ref() == "none" => false,
-                    Some(a) => {
-                        return Err(self
-                            .err(
-                                &a.span(),
-                                &format!("{ctx}, antecedent"),
-                                format!("unknown antecedent rule \"{}\"", a.get_ref()),
-                            )
-                            .expected("\"amc\" or \"none\""));
-                    }
-                    None => false,
-                };
-                let mut growing_months = [false; 12];
-                match &rr.growing_months {
-                    Some(m) => {
-                        for &x in m.get_ref() {
-                            if !(1..=12).contains(&x) {
-                                return Err(self
-                                    .err(
-                                        &m.span(),
-                                        &format!("{ctx}, growing_months"),
-                                        format!("{x} is not a month"),
-                                    )
-                                    .expected("month numbers 1..12"));
-                            }
-                            growing_months[(x - 1) as usize] = true;
-                        }
-                    }
-                    None => (3..9).for_each(|i| growing_months[i] = true),
-                }
-                MoistureMode::Event {
-                    dry_gap_h,
-                    antecedent,
-                    growing_months,
-                }
-            }
-            Some("continuous") => {
-                let p = self.req(
-                    &rr.pet,
-                    &r.span(),
-                    &ctx,
-                    "pet",
-                    "12 monthly values of depth per day",
-                )?;
-                if p.get_ref().len() != 12 {
-                    return Err(self
-                        .err(
-                            &p.span(),
-                            &format!("{ctx}, pet"),
-                            format!("{} values given", p.get_ref().len()),
-                        )
-                        .expected("12 monthly values, January first"));
-                }
-                let mut pet = [0.0; 12];
-                for (i, v) in p.get_ref().iter().enumerate() {
-                    let x = self.qty(
-                        &Spanned::new(p.span(), v.clone()),
-                        Quantity::DepthPerDay,
-                        &format!("{ctx}, pet"),
-                    )?;
-                    if x < 0.0 {
-                        return Err(self
-                            .err(
-                                &p.span(),
-                                &format!("{ctx}, pet"),
-                                format!("month {} is negative", i + 1),
-                            )
-                            .expected("depths of zero or more"));
-                    }
-                    pet[i] = x;
-                }
-                let _ = MoistureMode::Continuous {
-                    pet_in_per_day: pet,
-                };
-                let span = rr.moisture.as_ref().map(|m| m.span()).unwrap_or(r.span());
-                return Err(self
-                    .err(&span, &format!("{ctx}, moisture"), crate::methods::moisture::MoistureError::ContinuousUnavailable.to_string())
-                    .expected("moisture = \"event\"")
-                    .hint("no published soil-moisture-accounting formulation could be verified for this version; see the README, \"Long records\""));
-            }
-            Some(other) => {
-                let span = rr.moisture.as_ref().map(|m| m.span()).unwrap_or(r.span());
-                return Err(self
-                    .err(
-                        &span,
-                        &format!("{ctx}, moisture"),
-                        format!("unknown moisture accounting \"{other}\""),
-                    )
-                    .expected("\"event\" or \"continuous\""));
-            }
-        };
+        let moisture = self.record_moisture(r, &ctx)?;
         Ok(Record {
             name,
             path,
@@ -180,6 +88,214 @@ impl Builder<'_> {
             skew: g,
             mse: m,
         }))
+    }
+
+    /// The `moisture` key and the keys of its mode.
+    fn record_moisture(&self, r: &Spanned<RawRecord>, ctx: &str) -> R<MoistureMode> {
+        let rr = r.get_ref();
+        let dry_gap_h = match &rr.dry_gap {
+            Some(d) => self.positive(d, Quantity::Time, &format!("{ctx}, dry_gap"))?,
+            None => 6.0,
+        };
+        match rr.moisture.as_ref().map(|m| m.get_ref().as_str()) {
+            None | Some("event") => {
+                self.refuse_other_mode_keys(
+                    ctx,
+                    "event",
+                    [
+                        ("pet", rr.pet.as_ref().map(|x| x.span())),
+                        ("recovery", rr.recovery.as_ref().map(|x| x.span())),
+                        ("initial", rr.initial.as_ref().map(|x| x.span())),
+                    ],
+                )?;
+                self.event_moisture(rr, ctx, dry_gap_h)
+            }
+            Some("continuous") => {
+                self.refuse_other_mode_keys(
+                    ctx,
+                    "continuous",
+                    [
+                        ("antecedent", rr.antecedent.as_ref().map(|x| x.span())),
+                        (
+                            "growing_months",
+                            rr.growing_months.as_ref().map(|x| x.span()),
+                        ),
+                    ],
+                )?;
+                self.continuous_moisture(r, ctx, dry_gap_h)
+            }
+            Some(other) => {
+                let span = rr.moisture.as_ref().map(|m| m.span()).unwrap_or(r.span());
+                Err(self.unknown_word(
+                    &span,
+                    &format!("{ctx}, moisture"),
+                    format!("unknown moisture accounting \"{other}\""),
+                    "\"event\" or \"continuous\"",
+                    other,
+                    ["event", "continuous"],
+                ))
+            }
+        }
+    }
+
+    /// A key of the other moisture mode is an error (it would be ignored).
+    fn refuse_other_mode_keys<const N: usize>(
+        &self,
+        ctx: &str,
+        mode: &str,
+        keys: [(&str, Option<std::ops::Range<usize>>); N],
+    ) -> R<()> {
+        for (key, span) in keys {
+            if let Some(span) = span {
+                let other = if mode == "event" {
+                    "continuous"
+                } else {
+                    "event"
+                };
+                return Err(self
+                    .err(
+                        &span,
+                        &format!("{ctx}, {key}"),
+                        format!("`{key}` belongs to moisture = \"{other}\", but this record uses moisture = \"{mode}\""),
+                    )
+                    .expected(format!("no `{key}` with moisture = \"{mode}\""))
+                    .hint(format!("set moisture = \"{other}\" to use `{key}`, or remove it")));
+            }
+        }
+        Ok(())
+    }
+
+    /// Event mode: the dry gap and the optional antecedent rule.
+    fn event_moisture(&self, rr: &RawRecord, ctx: &str, dry_gap_h: f64) -> R<MoistureMode> {
+        let antecedent = match &rr.antecedent {
+            Some(a) if a.get_ref() == "amc" => true,
+            Some(a) if a.get_ref() == "none" => false,
+            Some(a) => {
+                return Err(self
+                    .err(
+                        &a.span(),
+                        &format!("{ctx}, antecedent"),
+                        format!("unknown antecedent rule \"{}\"", a.get_ref()),
+                    )
+                    .expected("\"amc\" or \"none\""));
+            }
+            None => false,
+        };
+        let mut growing_months = [false; 12];
+        match &rr.growing_months {
+            Some(m) => {
+                for &x in m.get_ref() {
+                    if !(1..=12).contains(&x) {
+                        return Err(self
+                            .err(
+                                &m.span(),
+                                &format!("{ctx}, growing_months"),
+                                format!("{x} is not a month"),
+                            )
+                            .expected("month numbers 1..12"));
+                    }
+                    growing_months[(x - 1) as usize] = true;
+                }
+            }
+            None => (3..9).for_each(|i| growing_months[i] = true),
+        }
+        Ok(MoistureMode::Event {
+            dry_gap_h,
+            antecedent,
+            growing_months,
+        })
+    }
+
+    /// Continuous mode: `pet` (required), `recovery` and `initial`.
+    fn continuous_moisture(
+        &self,
+        r: &Spanned<RawRecord>,
+        ctx: &str,
+        dry_gap_h: f64,
+    ) -> R<MoistureMode> {
+        let rr = r.get_ref();
+        let p = self.req(
+            &rr.pet,
+            &r.span(),
+            ctx,
+            "pet",
+            "12 monthly depths per day, January first: pet = [\"0.5 mm\", ...]",
+        )?;
+        if p.get_ref().len() != 12 {
+            return Err(self
+                .err(
+                    &p.span(),
+                    &format!("{ctx}, pet"),
+                    format!("{} values given", p.get_ref().len()),
+                )
+                .expected("12 monthly values of depth per day, January first"));
+        }
+        let mut pet = [0.0; 12];
+        for (i, v) in p.get_ref().iter().enumerate() {
+            let pctx = format!("{ctx}, pet ({})", calendar::month_name(i as u32 + 1));
+            let x = self.qty(
+                &Spanned::new(p.span(), v.clone()),
+                Quantity::DepthPerDay,
+                &pctx,
+            )?;
+            if !(0.0..=MAX_PET_IN_PER_DAY).contains(&x) {
+                return Err(self
+                    .err(
+                        &p.span(),
+                        &pctx,
+                        format!(
+                            "{} is not a potential evapotranspiration",
+                            self.depth_text(x)
+                        ),
+                    )
+                    .expected("a depth per day of zero or more, at most 1 in (25.4 mm) per day")
+                    .hint("pet is a depth per day for each month, e.g. \"3.6 mm\" in June"));
+            }
+            pet[i] = x;
+        }
+        let recovery = match &rr.recovery {
+            Some(c) => {
+                let v = self.num(c, &format!("{ctx}, recovery"))?;
+                if !(0.3..=3.0).contains(&v) {
+                    return Err(self
+                        .err(&c.span(), &format!("{ctx}, recovery"), format!("recovery = {v} is outside 0.3 to 3"))
+                        .expected("a recovery coefficient c between 0.3 and 3 (default 1.0)")
+                        .hint("c about 1 (0.5-2) is the recalled usual range; larger c slows the recovery"));
+                }
+                v
+            }
+            None => 1.0,
+        };
+        let initial = match &rr.initial {
+            None => MoistureClass::Average,
+            Some(w) => match w.get_ref().as_str() {
+                "I" => MoistureClass::Dry,
+                "II" => MoistureClass::Average,
+                "III" => MoistureClass::Wet,
+                other => {
+                    return Err(self.unknown_word(
+                        &w.span(),
+                        &format!("{ctx}, initial"),
+                        format!("unknown starting moisture class \"{other}\""),
+                        "\"I\" (dry), \"II\" (average) or \"III\" (wet)",
+                        other,
+                        ["I", "II", "III"],
+                    ));
+                }
+            },
+        };
+        Ok(MoistureMode::Continuous {
+            dry_gap_h,
+            pet_in_per_day: pet,
+            recovery,
+            initial,
+        })
+    }
+
+    /// A depth in the scenario's unit, for messages.
+    fn depth_text(&self, x_in: f64) -> String {
+        let f = Quantity::Depth.output_factor(self.units);
+        format!("{} {}", x_in * f, Quantity::Depth.output_unit(self.units))
     }
 
     /// The step of a record (h): the gauge interval, or a step that divides

@@ -11,14 +11,20 @@
 //! values) and the conversion formulas of Chow, Maidment & Mays (1988) as
 //! given by Harper & Baker (2007); both are used here as transcribed.
 //!
-//! A continuous soil-moisture-accounting form (retention recovering with
-//! evapotranspiration between storms) is *not* available in this version:
-//! no published formulation could be read and verified, so
-//! [`continuous_excess_in`] returns [`MoistureError::ContinuousUnavailable`].
+//! Continuous soil-moisture accounting (the retention as a state that falls
+//! with infiltration and recovers with evapotranspiration between events) is
+//! in [`continuous`]; event mode is that model with the retention reset at
+//! every event.
 //!
 //! Units: rain and excess depths in inches per interval, steps in hours.
 
 use std::collections::VecDeque;
+
+pub mod continuous;
+pub use continuous::{
+    CnAccumulator, CnRange, ContinuousParams, ContinuousTotals, IMPERVIOUS_CN, MonthRuns,
+    continuous_excess_each, continuous_excess_in, infiltration_step_in, recover_retention_in,
+};
 
 use crate::methods::runoff::{Lambda, runoff_depth_in};
 
@@ -33,12 +39,16 @@ const THRESHOLD_ROUNDING_IN: f64 = 1e-9;
 /// Errors of the long-record excess computations.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum MoistureError {
-    /// Continuous soil-moisture accounting was requested but is not implemented.
-    #[error(
-        "continuous soil-moisture accounting is not available in this version: \
-         no published formulation could be verified; use moisture = \"event\""
-    )]
-    ContinuousUnavailable,
+    /// A parameter of continuous accounting is outside its range.
+    #[error("{what} must be {expected}; got {value}")]
+    InvalidParameter {
+        /// The parameter.
+        what: &'static str,
+        /// What it must be.
+        expected: &'static str,
+        /// The value given.
+        value: f64,
+    },
     /// The step is not a positive, finite number of hours.
     #[error("the step must be a positive, finite number of hours; got {step_h}")]
     InvalidStep {
@@ -322,6 +332,32 @@ pub fn event_excess_each(
     lambda: Lambda,
     opts: &EventOptions,
     month_of_step: &dyn Fn(usize) -> u32,
+    sink: impl FnMut(usize, f64),
+) -> Result<usize, MoistureError> {
+    event_excess_each_cn(
+        rain_in,
+        step_h,
+        cn,
+        lambda,
+        opts,
+        month_of_step,
+        |_| {},
+        sink,
+    )
+}
+
+/// As [`event_excess_each`], also handing each event's curve number (the
+/// AMC II number, or the AMC I or III number the antecedent rule chose) to
+/// `on_event` as the event begins, before its first interval's excess.
+#[allow(clippy::too_many_arguments)]
+pub fn event_excess_each_cn(
+    rain_in: &[f64],
+    step_h: f64,
+    cn: f64,
+    lambda: Lambda,
+    opts: &EventOptions,
+    month_of_step: &dyn Fn(usize) -> u32,
+    mut on_event: impl FnMut(f64),
     mut sink: impl FnMut(usize, f64),
 ) -> Result<usize, MoistureError> {
     let window_steps =
@@ -337,6 +373,7 @@ pub fn event_excess_each(
     let mut p_in = 0.0;
     let mut q_prev_in = 0.0;
     let mut s_in = s_average_in;
+    let mut event_cn = cn;
 
     let mut splitter = EventSplitter::new(opts.dry_gap_steps);
     for (j, &r) in rain_in.iter().enumerate() {
@@ -351,11 +388,13 @@ pub fn event_excess_each(
                     .is_growing(month)
                     .ok_or(MoistureError::InvalidMonth { index: j, month })?;
                 let class = rule.classify(window.depth_in(), growing);
-                s_in = lambda.retention_in(cn_for_class(cn, class));
+                event_cn = cn_for_class(cn, class);
+                s_in = lambda.retention_in(event_cn);
             }
             window.push(j, r);
         }
         if starts_event {
+            on_event(event_cn);
             events += 1;
             p_in = 0.0;
             q_prev_in = 0.0;
@@ -370,14 +409,14 @@ pub fn event_excess_each(
 }
 
 /// Splits a rain series into events, one interval at a time.
-struct EventSplitter {
+pub(crate) struct EventSplitter {
     dry_gap_steps: usize,
     /// Dry intervals since the last rainy one; the record start counts as a long dry spell.
     dry_run: usize,
 }
 
 impl EventSplitter {
-    fn new(dry_gap_steps: usize) -> Self {
+    pub(crate) fn new(dry_gap_steps: usize) -> Self {
         Self {
             dry_gap_steps,
             dry_run: usize::MAX,
@@ -388,7 +427,7 @@ impl EventSplitter {
     /// `Some(true)` when it begins an event, `Some(false)` when it continues
     /// one; an error for a negative, infinite or NaN depth.
     #[inline]
-    fn feed(&mut self, index: usize, r: f64) -> Result<Option<bool>, MoistureError> {
+    pub(crate) fn feed(&mut self, index: usize, r: f64) -> Result<Option<bool>, MoistureError> {
         if r == 0.0 {
             self.dry_run = self.dry_run.saturating_add(1);
             return Ok(None);
@@ -458,35 +497,6 @@ impl AntecedentWindow {
     fn depth_in(&self) -> f64 {
         (self.sum + self.compensation).max(0.0)
     }
-}
-
-/// Parameters of continuous soil-moisture accounting.
-///
-/// Kept for the interface only: see [`continuous_excess_in`].
-#[derive(Debug, Clone, PartialEq)]
-pub struct ContinuousParams {
-    /// Average-condition (AMC II) curve number.
-    pub cn: f64,
-    /// Initial-abstraction ratio.
-    pub lambda: Lambda,
-    /// Potential evapotranspiration for each calendar month (index 0 =
-    /// January), in inches per day.
-    pub pet_in_per_day: [f64; 12],
-}
-
-/// Continuous soil-moisture accounting: not available in this version.
-///
-/// No published formulation of a curve-number retention that recovers with
-/// evapotranspiration could be read in a primary source and verified, so this
-/// always returns [`MoistureError::ContinuousUnavailable`]; use
-/// [`event_excess_in`].
-pub fn continuous_excess_in(
-    _rain_in: &[f64],
-    _step_h: f64,
-    _params: &ContinuousParams,
-    _month_of_step: &dyn Fn(usize) -> u32,
-) -> Result<Vec<f64>, MoistureError> {
-    Err(MoistureError::ContinuousUnavailable)
 }
 
 #[cfg(test)]
@@ -970,22 +980,6 @@ mod tests {
         );
         assert_eq!(ex, Ok(dry.clone()));
         assert_eq!(event_starts(&dry, 6), Ok(vec![]));
-    }
-
-    #[test]
-    fn continuous_mode_says_it_is_not_available_and_what_to_use() {
-        let p = ContinuousParams {
-            cn: 80.0,
-            lambda: Lambda::Standard,
-            pet_in_per_day: [0.1; 12],
-        };
-        let e = continuous_excess_in(&[1.0], 1.0, &p, &always_july);
-        assert_eq!(e, Err(MoistureError::ContinuousUnavailable));
-        let msg = MoistureError::ContinuousUnavailable.to_string();
-        assert!(
-            msg.contains("not available") && msg.contains("moisture = \"event\""),
-            "{msg}"
-        );
     }
 
     // --- properties ---------------------------------------------------------
