@@ -1,7 +1,7 @@
 //! `runnel run`: simulate, size, check, and write the results.
 
 use crate::cli::output::{self, Staging};
-use crate::engine::analysis::{self, Analysis};
+use crate::engine::analysis;
 use crate::engine::network;
 use crate::error::Error;
 use crate::model::{ElementKind, Study};
@@ -166,7 +166,8 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         s.warnings.push(w.to_string());
     }
     let stage = Staging::new(&out_dir, &inputs)?;
-    let plots = write_plots(&study, &a, &stage)?;
+    let figures = report::figures::storm_figures(&study, &a);
+    let plots = write_plots(&figures, &study, &stage)?;
     let mut all_plots = plots;
     let record_plots = report::records::plots(&study, &rec, &record_entries);
     all_plots.extend(write_record_plots(&record_plots, &stage)?);
@@ -438,161 +439,41 @@ pub fn check_memory(study: &Study) -> Result<(), Error> {
     Ok(())
 }
 
-/// A plot to draw: caption, file name, and the drawing job.
-type PlotJob<'a> = (
-    String,
-    String,
-    Box<dyn Fn() -> Result<Vec<u8>, plot::PlotError> + Send + Sync + 'a>,
-);
-
+/// Draws the storm and pond figures (PNG) into the staging folder, each
+/// written as soon as it is drawn so that the PNGs are never all held at
+/// once, and returns (caption, file) pairs.
+///
+/// # Errors
+/// When a plot cannot be drawn or written.
 fn write_plots(
+    figures: &[report::figures::StormFigure],
     study: &Study,
-    a: &Analysis,
     stage: &Staging,
 ) -> Result<Vec<(String, String)>, Error> {
-    let o = summary::Out(study.units);
-    let fu = o.unit(Quantity::Flow).replace("m3/s", "m³/s");
-    let du = o.unit(Quantity::Depth).to_string();
-    let lu = o.unit(Quantity::Length).to_string();
-    let mut jobs: Vec<PlotJob<'_>> = Vec::new();
-    for st in &a.storms {
-        let storm = &study.storms[st.storm];
-        for (pi, p) in study.points.iter().enumerate() {
-            let file = output::storm_plot_name(&storm.name, &p.name);
-            let hydrographs: Vec<plot::Series> = st
-                .conditions
-                .iter()
-                .map(|c| plot::Series {
-                    label: study.conditions[c.condition].clone(),
-                    values: c.points[pi].iter().map(|v| o.flow(*v)).collect(),
-                })
-                .collect();
-            let limit = st
-                .conditions
-                .iter()
-                .filter(|c| c.condition != study.baseline)
-                .find_map(|c| analysis::limit_cfs(study, &a.storms, pi, st.storm, c.condition))
-                .map(|l| {
-                    (
-                        format!(
-                            "limit ({})",
-                            p.limit_text.get(st.storm).cloned().unwrap_or_default()
-                        ),
-                        o.flow(l),
-                    )
-                });
-            let data = plot::StormPointPlot {
-                title: format!(
-                    "{} - {} at {}",
-                    if study.title.is_empty() {
-                        "runnel"
-                    } else {
-                        &study.title
-                    },
-                    storm.name,
-                    p.name
-                ),
-                subtitle: format!(
-                    "depth {} {du}, step {:.0} min; runnel {}",
-                    crate::util::units::sig(o.depth(storm.depth_in()), 3),
-                    study.step_h * 60.0,
-                    env!("CARGO_PKG_VERSION")
-                ),
-                step_h: st.step_h,
-                rain: st.rain_in.iter().map(|r| o.depth(*r)).collect(),
-                rain_unit: du.clone(),
-                flow_unit: fu.clone(),
-                hydrographs,
-                limit,
-            };
-            jobs.push((
-                format!("{} at {}", storm.name, p.name),
-                file,
-                Box::new(move || plot::storm_point_png(&data)),
-            ));
-        }
-        for c in &st.conditions {
-            for (i, er) in c.elements.iter().enumerate() {
-                let (Some(pr), ElementKind::Pond(pond)) = (
-                    er.as_ref().and_then(|e| e.pond.as_ref()),
-                    &study.elements[i].kind,
-                ) else {
-                    continue;
-                };
-                let outflow: Vec<f64> = er
-                    .as_ref()
-                    .map(|e| e.outflow_cfs.iter().map(|v| o.flow(*v)).collect())
-                    .unwrap_or_default();
-                let mut references = Vec::new();
-                for (k, d) in pond.outlets.iter().enumerate() {
-                    let label = crate::engine::sizing::outlet_label(
-                        k,
-                        pond.outlet_names.get(k).and_then(|n| n.as_deref()),
-                    );
-                    references.push((format!("{label} {}", kind_word(d)), o.length(d.lowest_ft())));
-                }
-                if let Some(t) = pond.top_ft {
-                    references.push(("top of embankment".to_string(), o.length(t)));
-                }
-                let name = &study.elements[i].name;
-                let cname = &study.conditions[c.condition];
-                let file = output::pond_plot_name(name, &storm.name, cname);
-                let data = plot::PondPlot {
-                    title: format!(
-                        "{} - {} ({cname})",
-                        summary::kind_and_name("Pond", name),
-                        storm.name
-                    ),
-                    subtitle: format!(
-                        "storage-indication routing, step {:.0} min; runnel {}",
-                        study.step_h * 60.0,
-                        env!("CARGO_PKG_VERSION")
-                    ),
-                    step_h: st.step_h,
-                    flow_unit: fu.clone(),
-                    stage_unit: lu.clone(),
-                    inflow: pr.inflow_cfs.iter().map(|v| o.flow(*v)).collect(),
-                    outflow,
-                    stage: pr.stage_ft.iter().map(|v| o.length(*v)).collect(),
-                    peak_stage: o.length(pr.summary.peak_stage_ft),
-                    references,
-                };
-                jobs.push((
-                    format!(
-                        "{}, {} ({cname})",
-                        summary::kind_and_name("pond", name),
-                        storm.name
-                    ),
-                    file,
-                    Box::new(move || plot::pond_png(&data)),
-                ));
-            }
-        }
-    }
-    // Each plot is written as soon as it is drawn, so that the PNGs are
-    // never all held at once.
-    jobs.into_par_iter()
-        .map(|(cap, file, job)| {
-            let bytes = job().map_err(|e| Error::Write {
+    figures
+        .par_iter()
+        .map(|f| {
+            let file = storm_figure_file(study, f);
+            let bytes = f.png().map_err(|e| Error::Write {
                 path: stage.temp_dir().to_path_buf(),
                 message: e.to_string(),
             })?;
             stage.write(&file, &bytes)?;
-            Ok((cap, file))
+            Ok((f.caption.clone(), file))
         })
         .collect()
 }
 
-fn kind_word(d: &crate::methods::hydraulics::Outlet) -> &'static str {
-    use crate::methods::hydraulics::Outlet as D;
-    match d {
-        D::CircularOrifice { .. } => "orifice invert",
-        D::RectangularOrifice { .. } => "orifice invert",
-        D::SharpCrestedWeir { .. } => "weir crest",
-        D::VNotchWeir { .. } => "V-notch crest",
-        D::BroadCrestedWeir { .. } => "spillway crest",
-        D::Riser { .. } => "riser rim",
-        D::Rating { .. } => "rating start",
+/// The PNG file name of a storm or pond figure.
+fn storm_figure_file(study: &Study, f: &report::figures::StormFigure) -> String {
+    let storm = &study.storms[f.storm].name;
+    match f.subject {
+        report::figures::Subject::Point(pi) => output::storm_plot_name(storm, &study.points[pi].name),
+        report::figures::Subject::Pond { element, condition } => output::pond_plot_name(
+            &study.elements[element].name,
+            storm,
+            &study.conditions[condition],
+        ),
     }
 }
 

@@ -22,12 +22,16 @@ mod pond;
 mod record;
 mod storm;
 mod style;
+mod surface;
 #[cfg(test)]
 mod tests;
 
-pub use pond::pond_png;
-pub use record::{flow_duration_png, frequency_png, overview_png};
-pub use storm::storm_point_png;
+pub use pond::{pond_png, pond_svg};
+pub use record::{
+    flow_duration_png, flow_duration_svg, frequency_png, frequency_svg, overview_png, overview_svg,
+};
+pub use storm::{storm_point_png, storm_point_svg};
+pub use axes::{WINDOW_TAIL_FRACTION, action_window};
 
 /// Width of every figure, in pixels.
 pub const WIDTH_PX: u32 = 1600;
@@ -83,6 +87,8 @@ pub struct StormPointPlot {
     pub hydrographs: Vec<Series>,
     /// Optional horizontal limit line: legend text and flow.
     pub limit: Option<(String, f64)>,
+    /// Time window shown, hours (`None`: the whole run); see [`action_window`].
+    pub window_h: Option<(f64, f64)>,
 }
 
 /// Inflow, outflow and water-surface stage of one pond for one storm.
@@ -108,6 +114,8 @@ pub struct PondPlot {
     pub peak_stage: f64,
     /// Reference elevations drawn as labelled dashed lines (outlet inverts, crests, the top).
     pub references: Vec<(String, f64)>,
+    /// Time window shown, hours (`None`: the whole run); see [`action_window`].
+    pub window_h: Option<(f64, f64)>,
 }
 
 /// Flow-duration curves, one per condition.

@@ -15,10 +15,15 @@ use crate::methods::stats::max_first;
 /// exceeded (log axis). Zero flows cannot appear on a log axis and are left out (the subtitle
 /// says so).
 pub fn flow_duration_png(p: &DurationPlot) -> Result<Vec<u8>, PlotError> {
-    encode_png(draw_flow_duration(p)?)
+    draw_flow_duration(p, Target::Png)?.png()
 }
 
-pub(super) fn draw_flow_duration(p: &DurationPlot) -> Result<Canvas, PlotError> {
+/// The same figure as SVG text, for the HTML report.
+pub fn flow_duration_svg(p: &DurationPlot) -> Result<String, PlotError> {
+    Ok(draw_flow_duration(p, Target::Svg)?.svg())
+}
+
+pub(super) fn draw_flow_duration(p: &DurationPlot, target: Target) -> Result<Drawn, PlotError> {
     let name = plot_name("flow-duration plot", &p.title);
     let mut zero_left_out = false;
     let curves: Vec<(String, Vec<(f64, f64)>)> = p
@@ -75,7 +80,7 @@ pub(super) fn draw_flow_duration(p: &DurationPlot) -> Result<Canvas, PlotError> 
         Vec::new()
     };
 
-    render(&name, |root| {
+    render_to(target, &name, |root| {
         let (body, foot, rows) = layout(root, &p.title, &subtitle, &legend)?;
         let mut chart = ChartBuilder::on(&body)
             .margin_left(24)
@@ -119,10 +124,15 @@ pub(super) const RETURN_PERIODS_YR: [f64; 13] = [
 /// Annual peak flows at their plotting positions (markers) and the fitted curve (lines) of
 /// each condition, against return period on a log axis.
 pub fn frequency_png(p: &FrequencyPlot) -> Result<Vec<u8>, PlotError> {
-    encode_png(draw_frequency(p)?)
+    draw_frequency(p, Target::Png)?.png()
 }
 
-pub(super) fn draw_frequency(p: &FrequencyPlot) -> Result<Canvas, PlotError> {
+/// The same figure as SVG text, for the HTML report.
+pub fn frequency_svg(p: &FrequencyPlot) -> Result<String, PlotError> {
+    Ok(draw_frequency(p, Target::Svg)?.svg())
+}
+
+pub(super) fn draw_frequency(p: &FrequencyPlot, target: Target) -> Result<Drawn, PlotError> {
     let name = plot_name("frequency plot", &p.title);
     let ok = |&&(t, q): &&(f64, f64)| t.is_finite() && t > 0.0 && q.is_finite();
     let all_t = p
@@ -194,7 +204,7 @@ pub(super) fn draw_frequency(p: &FrequencyPlot) -> Result<Canvas, PlotError> {
         "No annual peaks or fitted curve to show"
     };
 
-    render(&name, |root| {
+    render_to(target, &name, |root| {
         let (body, foot, rows) = layout(root, &p.title, subtitle, &legend)?;
         let mut chart = ChartBuilder::on(&body)
             .margin_left(24)
@@ -369,10 +379,15 @@ fn overview_panels(p: &OverviewPlot, z0: i64, n_days: i64) -> Vec<Panel<'_>> {
 /// The highest flow of each day over a long record against calendar years: one panel per
 /// condition, all on the same flow scale, each with its highest day labelled.
 pub fn overview_png(p: &OverviewPlot) -> Result<Vec<u8>, PlotError> {
-    encode_png(draw_overview(p)?)
+    draw_overview(p, Target::Png)?.png()
 }
 
-pub(super) fn draw_overview(p: &OverviewPlot) -> Result<Canvas, PlotError> {
+/// The same figure as SVG text, for the HTML report.
+pub fn overview_svg(p: &OverviewPlot) -> Result<String, PlotError> {
+    Ok(draw_overview(p, Target::Svg)?.svg())
+}
+
+pub(super) fn draw_overview(p: &OverviewPlot, target: Target) -> Result<Drawn, PlotError> {
     let name = plot_name("record overview", &p.title);
     let (y, m, d) = p.day_labels_start;
     let Some(z0) = calendar::day_number(y, m, d) else {
@@ -405,7 +420,7 @@ pub(super) fn draw_overview(p: &OverviewPlot) -> Result<Canvas, PlotError> {
     let subtitle = overview_subtitle(p, z0, n_days);
     let panels = overview_panels(p, z0, n_days);
 
-    render(&name, |root| {
+    render_to(target, &name, |root| {
         let (body, _, _) = layout(root, &p.title, &subtitle, &[])?;
         let n = panels.len().max(1) as u32;
         let axis_px = 70;
