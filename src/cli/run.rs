@@ -183,6 +183,21 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let record_md = report::records::markdown(&study, &record_entries, &record_comparisons);
     let md = report::markdown::render(&study, &s, &all_plots, &record_md);
     stage.write("summary.md", md.as_bytes())?;
+    let t_html = std::time::Instant::now();
+    let html = report::html::render(&report::html::HtmlInput {
+        study: &study,
+        analysis: &a,
+        summary: &s,
+        figures: &figures,
+        record_entries: &record_entries,
+        record_plots: &record_plots,
+    })
+    .map_err(|e| Error::Write {
+        path: out_dir.join(output::REPORT_HTML),
+        message: e.to_string(),
+    })?;
+    stage.write(output::REPORT_HTML, html.as_bytes())?;
+    let t_html = t_html.elapsed().as_secs_f64();
     if !study.sizing.is_empty() {
         // Paths in the sized copy are written relative to the results
         // folder; both folders are made absolute here, once.
@@ -217,7 +232,7 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
             }
         };
         format!(
-            "timings: load and read {t_load:.3} s = {}; records {t_records:.3} s (rain {:.3} s, excess and convolution {:.3} s = {}, routing {:.3} s = {}, statistics {:.3} s = {}); report {:.3} s",
+            "timings: load and read {t_load:.3} s = {}; records {t_records:.3} s (rain {:.3} s, excess and convolution {:.3} s = {}, routing {:.3} s = {}, statistics {:.3} s = {}); report {:.3} s (of which report.html {t_html:.3} s)",
             per(t_load),
             t.rain_s,
             t.runoff_s,

@@ -3,6 +3,7 @@
 
 pub mod csv;
 pub mod figures;
+pub mod html;
 pub mod markdown;
 pub mod plot;
 pub mod records;

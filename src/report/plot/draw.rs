@@ -9,7 +9,6 @@ use plotters::prelude::*;
 use super::style::*;
 use super::surface::Surface;
 // The house type, not plotters' type of the same name.
-use super::WIDTH_PX;
 use super::style::DrawResult;
 
 /// A linear f64 axis with chosen major and minor tick positions. (plotters' own key-point
@@ -130,7 +129,7 @@ pub(super) fn legend_rows(
     items: &[(String, Swatch)],
 ) -> Result<LegendRows, Box<dyn StdError>> {
     let style = font(20);
-    let max_w = WIDTH_PX as i32 - 120;
+    let max_w = root.dim_in_pixel().0 as i32 - 120;
     let mut rows: Vec<Vec<(usize, i32)>> = Vec::new();
     let mut cur: Vec<(usize, i32)> = Vec::new();
     let mut cur_w = 0;

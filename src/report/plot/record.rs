@@ -60,7 +60,7 @@ pub(super) fn draw_flow_duration(p: &DurationPlot, target: Target) -> Result<Dra
     } else if zero_left_out {
         subtitle.push_str("; zero flows are not shown on the log scale");
     }
-    let legend: Vec<(String, Swatch)> = curves
+    let mut legend: Vec<(String, Swatch)> = curves
         .iter()
         .enumerate()
         .map(|(i, (l, c))| {
@@ -72,6 +72,15 @@ pub(super) fn draw_flow_duration(p: &DurationPlot, target: Target) -> Result<Dra
             (label, Swatch::Line(colour_of(i), 3, dash_of(i)))
         })
         .collect();
+    if let Some(band) = &p.control {
+        let base = curves.get(band.baseline).map_or("baseline", |c| c.0.as_str());
+        legend.push(("controlled flow range".to_string(), Swatch::Bar(BAND_FILL, BAND_EDGE)));
+        legend.push((
+            format!("allowed: {base} time + {} %", fmt_value(band.tolerance * 100.0)),
+            Swatch::Line(LIMIT, 2, Dash::Short),
+        ));
+        legend.push(("level above the allowance".to_string(), Swatch::Marker(LIMIT, Shape::Square)));
+    }
     let x_ticks = decade_ticks(x_lo, x_hi);
     let y_ticks = decade_ticks(y_lo, y_hi);
     let y_light = if (y_hi.log10() - y_lo.log10()).abs() <= 5.0 {
@@ -103,6 +112,9 @@ pub(super) fn draw_flow_duration(p: &DurationPlot, target: Target) -> Result<Dra
             .y_desc(format!("Flow ({})", p.flow_unit))
             .draw()?;
         let area = chart.plotting_area();
+        if let Some(band) = &p.control {
+            draw_control(area, band, &curves, (x_lo, x_hi), (y_lo, y_hi))?;
+        }
         for (i, (_, pts)) in curves.iter().enumerate() {
             // Clamped so that rounding at the ends can never put a point off the plot.
             let pts = pts
@@ -525,4 +537,69 @@ pub(super) fn draw_overview(p: &OverviewPlot, target: Target) -> Result<Drawn, P
         }
         Ok(())
     })
+}
+
+/// Exceedance (% of record) at which a duration curve (sorted by exceedance, flow falling)
+/// reaches `q`: interpolated in log flow, 0 above its highest flow, `None` below its lowest.
+fn exceedance_at(curve: &[(f64, f64)], q: f64) -> Option<f64> {
+    let first = curve.first()?;
+    if q > first.1 {
+        return Some(0.0);
+    }
+    for w in curve.windows(2) {
+        let [(x0, q0), (x1, q1)] = [w[0], w[1]];
+        if q <= q0 && q >= q1 {
+            let f = if q0 > q1 { (q0.ln() - q.ln()) / (q0.ln() - q1.ln()) } else { 0.0 };
+            return Some(x0 + f * (x1 - x0));
+        }
+    }
+    None
+}
+
+/// The control band (shaded flow range), the allowance (the baseline's curve stretched by the
+/// tolerance, inside the range) and a square at each level where another condition's curve
+/// lies beyond the allowance, read from the curves as plotted.
+fn draw_control(
+    area: &DrawingArea<super::surface::Surface<'_>, impl CoordTranslate<From = (f64, f64)>>,
+    band: &super::DurationBand,
+    curves: &[(String, Vec<(f64, f64)>)],
+    (x_lo, x_hi): (f64, f64),
+    (y_lo, y_hi): (f64, f64),
+) -> super::style::DrawResult {
+    let (q0, q1) = (band.from_flow.clamp(y_lo, y_hi), band.to_flow.clamp(y_lo, y_hi));
+    area.draw(&Rectangle::new([(x_lo, q0), (x_hi, q1)], BAND_FILL.filled()))?;
+    for q in [q0, q1] {
+        draw_path(area, vec![(x_lo, q), (x_hi, q)], BAND_EDGE.stroke_width(1), Dash::Solid)?;
+    }
+    let Some((_, base)) = curves.get(band.baseline) else {
+        return Ok(());
+    };
+    let allowed: Vec<(f64, f64)> = band
+        .levels
+        .iter()
+        .filter_map(|&q| {
+            let x = exceedance_at(base, q)? * (1.0 + band.tolerance);
+            (x > 0.0).then_some((x.clamp(x_lo, x_hi), q.clamp(y_lo, y_hi)))
+        })
+        .collect();
+    if allowed.len() > 1 {
+        draw_path(area, allowed, LIMIT.stroke_width(2), Dash::Short)?;
+    }
+    let root = area.strip_coord_spec();
+    for (i, (_, c)) in curves.iter().enumerate() {
+        if i == band.baseline {
+            continue;
+        }
+        for &q in &band.levels {
+            let (Some(xb), Some(xc)) = (exceedance_at(base, q), exceedance_at(c, q)) else {
+                continue;
+            };
+            if xc > xb * (1.0 + band.tolerance) + 1e-9 && xc > 0.0 {
+                let at = area.map_coordinate(&(xc.clamp(x_lo, x_hi), q.clamp(y_lo, y_hi)));
+                let (ox, oy) = root.get_base_pixel();
+                draw_marker(&root, (at.0 - ox, at.1 - oy), Shape::Square, LIMIT, 4)?;
+            }
+        }
+    }
+    Ok(())
 }

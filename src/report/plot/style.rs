@@ -33,6 +33,8 @@ pub(super) const RAIN_FILL: RGBColor = RGBColor(168, 194, 222);
 pub(super) const RAIN_EDGE: RGBColor = RGBColor(112, 142, 178);
 pub(super) const LIMIT: RGBColor = RGBColor(176, 28, 46);
 pub(super) const REFERENCE: RGBColor = RGBColor(104, 104, 104);
+pub(super) const BAND_FILL: RGBColor = RGBColor(226, 236, 214);
+pub(super) const BAND_EDGE: RGBColor = RGBColor(150, 176, 120);
 
 /// Line colours, one per condition in order. Chosen to stay apart for the common forms of
 /// colour-vision deficiency (blue/orange first); lines also differ in dash pattern.
@@ -186,7 +188,13 @@ pub(super) fn render(
     })
 }
 
-/// Draws the same figure as SVG text (`WIDTH_PX` x `HEIGHT_PX` user units, a white ground),
+/// Width of a figure drawn as SVG, in user units: narrower than the PNG, so that the same
+/// text sizes read well at the width of a printed page.
+pub(super) const SVG_WIDTH: u32 = 1120;
+/// Height of a figure drawn as SVG, in user units.
+pub(super) const SVG_HEIGHT: u32 = 720;
+
+/// Draws the same figure as SVG text (`SVG_WIDTH` x `SVG_HEIGHT` user units, a white ground),
 /// for inline use in the HTML report.
 pub(super) fn render_svg(
     name: &str,
@@ -195,7 +203,7 @@ pub(super) fn render_svg(
     ensure_font(name)?;
     let mut text = String::new();
     {
-        let backend = SVGBackend::with_string(&mut text, (WIDTH_PX, HEIGHT_PX));
+        let backend = SVGBackend::with_string(&mut text, (SVG_WIDTH, SVG_HEIGHT));
         finish(name, Surface::Svg(backend), |root| {
             root.fill(&WHITE)?;
             draw(root)

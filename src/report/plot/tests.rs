@@ -178,6 +178,7 @@ fn flow_duration_plot_is_a_png_of_at_least_1600_by_1000() {
         title: "Flow duration, demo record".to_string(),
         flow_unit: "m³/s".to_string(),
         curves: vec![("existing".to_string(), curve)],
+        control: None,
     };
     let rgb = decoded(&flow_duration_png(&p).expect("duration plot"));
     assert_eq!(colours_present(&rgb, &[colour_of(0)]), [true]);
@@ -244,6 +245,7 @@ fn empty_duration_curves_give_a_plot_not_an_error() {
         title: String::new(),
         flow_unit: "cfs".to_string(),
         curves: vec![("existing".to_string(), Vec::new())],
+        control: None,
     };
     header_ok(&flow_duration_png(&d).expect("empty duration"));
 }
@@ -285,6 +287,7 @@ fn all_zero_duration_and_record_flows_give_a_plot_not_an_error() {
         title: String::new(),
         flow_unit: "cfs".to_string(),
         curves: vec![("existing".to_string(), vec![(0.5, 0.0), (1.0, 0.0)])],
+        control: None,
     };
     header_ok(&flow_duration_png(&d).expect("zero duration"));
     let o = OverviewPlot {
@@ -330,6 +333,7 @@ fn pond_duration_and_frequency_with_nan_and_huge_values_are_drawn_without_error(
         title: String::new(),
         flow_unit: "cfs".to_string(),
         curves: vec![(
+        control: None,
             "odd".to_string(),
             vec![(0.0, 5.0), (f64::NAN, 1.0), (0.3, 1e200), (1.5, 1e-200)],
         )],
@@ -349,6 +353,7 @@ fn pond_duration_and_frequency_with_nan_and_huge_values_are_drawn_without_error(
         title: String::new(),
         flow_unit: "cfs".to_string(),
         curves: vec![(
+        control: None,
             "max".to_string(),
             vec![(1e-300, f64::MAX), (1.0, f64::MIN_POSITIVE)],
         )],
