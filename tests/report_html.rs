@@ -13,7 +13,8 @@ fn demo() -> &'static Path {
     &DIR.get_or_init(|| {
         let tmp = tempfile::tempdir().unwrap_or_else(|e| panic!("temp dir: {e}"));
         let out = tmp.path().join("demo");
-        let scenario = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/wrenfield-commons.toml");
+        let scenario =
+            Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/wrenfield-commons.toml");
         let o = Command::new(env!("CARGO_BIN_EXE_runnel"))
             .arg("run")
             .arg(&scenario)
@@ -38,10 +39,11 @@ fn read(p: &Path) -> String {
 
 /// The value at a dotted path (`events.3.peak_flow`) in a JSON document.
 fn at<'a>(v: &'a serde_json::Value, path: &str) -> Option<&'a serde_json::Value> {
-    path.split('.').try_fold(v, |v, k| match k.parse::<usize>() {
-        Ok(i) => v.get(i),
-        Err(_) => v.get(k),
-    })
+    path.split('.')
+        .try_fold(v, |v, k| match k.parse::<usize>() {
+            Ok(i) => v.get(i),
+            Err(_) => v.get(k),
+        })
 }
 
 /// Each `data-json` cell: (path, text shown).
@@ -52,9 +54,13 @@ fn tagged_cells(html: &str) -> Vec<(String, String)> {
         let after = &rest[a + 11..];
         let Some(q) = after.find('"') else { break };
         let path = after[..q].to_string();
-        let Some(gt) = after[q..].find('>') else { break };
+        let Some(gt) = after[q..].find('>') else {
+            break;
+        };
         let text_start = &after[q + gt + 1..];
-        let Some(end) = text_start.find('<') else { break };
+        let Some(end) = text_start.find('<') else {
+            break;
+        };
         out.push((path, text_start[..end].trim().to_string()));
         rest = &text_start[end..];
     }
@@ -87,7 +93,13 @@ fn every_number_tagged_in_the_demo_report_matches_summary_json() {
         );
     }
     // Every kind of result is covered, not just one table.
-    for prefix in ["comparisons.", "pond_checks.", "catchments.", "events.", "records."] {
+    for prefix in [
+        "comparisons.",
+        "pond_checks.",
+        "catchments.",
+        "events.",
+        "records.",
+    ] {
         assert!(
             cells.iter().any(|(p, _)| p.starts_with(prefix)),
             "no number from {prefix}* in the report"
@@ -107,19 +119,41 @@ fn the_demo_report_is_self_contained_numbered_and_listed_in_the_marker() {
     // The only address is the SVG namespace, which is a name, not a request.
     let without_ns = html.replace("http://www.w3.org/2000/svg", "");
     assert!(!without_ns.contains("http://") && !without_ns.contains("https://"));
-    assert!(!html.contains("(not drawn)"), "a reference to a missing figure or table");
+    assert!(
+        !html.contains("(not drawn)"),
+        "a reference to a missing figure or table"
+    );
     assert!(!html.contains('\u{1}'), "a reference left unresolved");
     let figures = html.matches("<figcaption><b>Figure ").count();
     assert!(figures >= 12, "{figures} figures");
     for n in 1..=figures {
-        assert!(html.contains(&format!("<b>Figure {n}.</b>")), "Figure {n} missing");
+        assert!(
+            html.contains(&format!("<b>Figure {n}.</b>")),
+            "Figure {n} missing"
+        );
     }
     assert!(html.contains("class=\"caution\""));
-    for section in ["Summary of checks", "Network", "Rainfall", "Catchment worksheets", "Pond A", "Hydrographs at the points", "Long records", "Warnings", "Provenance"] {
-        assert!(html.contains(&format!("</span>{section}</h2>")), "no section {section}");
+    for section in [
+        "Summary of checks",
+        "Network",
+        "Rainfall",
+        "Catchment worksheets",
+        "Pond A",
+        "Hydrographs at the points",
+        "Long records",
+        "Warnings",
+        "Provenance",
+    ] {
+        assert!(
+            html.contains(&format!("</span>{section}</h2>")),
+            "no section {section}"
+        );
     }
     let marker = read(&dir.join(".runnel-results"));
-    assert!(marker.lines().any(|l| l == "report.html"), "marker: {marker}");
+    assert!(
+        marker.lines().any(|l| l == "report.html"),
+        "marker: {marker}"
+    );
 }
 
 /// A headless Chromium on this machine, if any (`RUNNEL_CHROMIUM` names one).
@@ -128,7 +162,12 @@ fn chromium() -> Option<PathBuf> {
         return Some(PathBuf::from(p));
     }
     let path = std::env::var_os("PATH")?;
-    for name in ["chromium-headless-shell", "chromium", "chromium-browser", "google-chrome"] {
+    for name in [
+        "chromium-headless-shell",
+        "chromium",
+        "chromium-browser",
+        "google-chrome",
+    ] {
         for dir in std::env::split_paths(&path) {
             let p = dir.join(name);
             if p.is_file() {
@@ -142,7 +181,13 @@ fn chromium() -> Option<PathBuf> {
 /// Runs headless Chromium on `url` with a fresh profile, every host unresolvable (so a request
 /// for anything outside the file fails and is logged) and the net log written to `net_log`;
 /// returns stderr.
-fn chromium_run(browser: &Path, work: &Path, extra: &[String], url: &str, net_log: &Path) -> String {
+fn chromium_run(
+    browser: &Path,
+    work: &Path,
+    extra: &[String],
+    url: &str,
+    net_log: &Path,
+) -> String {
     let profile = work.join(format!("profile-{}", extra.len()));
     let o = Command::new(browser)
         .args([
@@ -174,7 +219,10 @@ fn pdf_pages(pdf: &[u8]) -> usize {
     let text = String::from_utf8_lossy(pdf);
     text.match_indices("/Count ")
         .filter_map(|(i, _)| {
-            let digits: String = text[i + 7..].chars().take_while(char::is_ascii_digit).collect();
+            let digits: String = text[i + 7..]
+                .chars()
+                .take_while(char::is_ascii_digit)
+                .collect();
             digits.parse().ok()
         })
         .max()
@@ -184,17 +232,30 @@ fn pdf_pages(pdf: &[u8]) -> usize {
 #[test]
 #[ignore = "needs a headless Chromium: .ci/run installs it"]
 fn the_demo_report_prints_in_headless_chromium() {
-    let browser = chromium().unwrap_or_else(|| panic!("no headless Chromium found: run .ci/run, or set RUNNEL_CHROMIUM"));
+    let browser = chromium().unwrap_or_else(|| {
+        panic!("no headless Chromium found: run .ci/run, or set RUNNEL_CHROMIUM")
+    });
     let dir = demo();
     let work = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
-    let url = format!("file://{}", std::path::absolute(dir.join("report.html")).unwrap_or_default().display());
+    let url = format!(
+        "file://{}",
+        std::path::absolute(dir.join("report.html"))
+            .unwrap_or_default()
+            .display()
+    );
     let pdf = work.path().join("report.pdf");
     let shot = work.path().join("report.png");
     let mut logs = Vec::new();
     for (extra, net) in [
-        (vec![format!("--print-to-pdf={}", pdf.display())], work.path().join("net-pdf.json")),
         (
-            vec![format!("--screenshot={}", shot.display()), "--window-size=1280,1800".to_string()],
+            vec![format!("--print-to-pdf={}", pdf.display())],
+            work.path().join("net-pdf.json"),
+        ),
+        (
+            vec![
+                format!("--screenshot={}", shot.display()),
+                "--window-size=1280,1800".to_string(),
+            ],
             work.path().join("net-shot.json"),
         ),
     ] {
@@ -204,7 +265,11 @@ fn the_demo_report_prints_in_headless_chromium() {
         let console: Vec<&str> = err.lines().filter(|l| l.contains(":CONSOLE")).collect();
         assert!(console.is_empty(), "console messages: {console:?}");
         let log = read(&net);
-        assert!(!log.contains("\"url\":"), "the page made a network request: {}", log.len());
+        assert!(
+            !log.contains("\"url\":"),
+            "the page made a network request: {}",
+            log.len()
+        );
         logs.push(err);
     }
     let bytes = std::fs::read(&pdf).unwrap_or_else(|e| panic!("{e}"));
@@ -214,10 +279,22 @@ fn the_demo_report_prints_in_headless_chromium() {
     // fewer means sections or figures are missing, far more that a figure or table broke.
     assert!((18..=40).contains(&pages), "{pages} pages");
     let png = std::fs::read(&shot).unwrap_or_else(|e| panic!("{e}"));
-    let img = image::load_from_memory(&png).unwrap_or_else(|e| panic!("screenshot: {e}")).to_rgb8();
+    let img = image::load_from_memory(&png)
+        .unwrap_or_else(|e| panic!("screenshot: {e}"))
+        .to_rgb8();
     let total = img.pixels().count();
-    let inked = img.pixels().filter(|p| p.0.iter().any(|&c| c < 200)).count();
+    let inked = img
+        .pixels()
+        .filter(|p| p.0.iter().any(|&c| c < 200))
+        .count();
     let colours: std::collections::HashSet<[u8; 3]> = img.pixels().map(|p| p.0).collect();
-    assert!(inked * 100 > total, "screenshot nearly blank: {inked} of {total} pixels inked");
-    assert!(colours.len() > 16, "screenshot holds {} colours", colours.len());
+    assert!(
+        inked * 100 > total,
+        "screenshot nearly blank: {inked} of {total} pixels inked"
+    );
+    assert!(
+        colours.len() > 16,
+        "screenshot holds {} colours",
+        colours.len()
+    );
 }

@@ -483,7 +483,9 @@ fn write_plots(
 fn storm_figure_file(study: &Study, f: &report::figures::StormFigure) -> String {
     let storm = &study.storms[f.storm].name;
     match f.subject {
-        report::figures::Subject::Point(pi) => output::storm_plot_name(storm, &study.points[pi].name),
+        report::figures::Subject::Point(pi) => {
+            output::storm_plot_name(storm, &study.points[pi].name)
+        }
         report::figures::Subject::Pond { element, condition } => output::pond_plot_name(
             &study.elements[element].name,
             storm,

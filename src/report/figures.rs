@@ -240,4 +240,3 @@ pub fn kind_word(d: &crate::methods::hydraulics::Outlet) -> &'static str {
         D::Rating { .. } => "rating start",
     }
 }
-

@@ -115,7 +115,10 @@ pub(crate) fn num_col(h: &str, unit: &str) -> Col {
     if unit.is_empty() {
         Col(esc(h), true)
     } else {
-        Col(format!("{}<span class=\"u\">{}</span>", esc(h), esc(unit)), true)
+        Col(
+            format!("{}<span class=\"u\">{}</span>", esc(h), esc(unit)),
+            true,
+        )
     }
 }
 
@@ -146,7 +149,8 @@ impl Doc {
             self.sections,
             esc(title)
         );
-        self.toc.push((id.to_string(), format!("{} {}", self.sections, title)));
+        self.toc
+            .push((id.to_string(), format!("{} {}", self.sections, title)));
     }
 
     /// Closes a section.
@@ -200,7 +204,12 @@ impl Doc {
             self.tables
         );
         for c in cols {
-            let _ = write!(self.body, "<th{}>{}</th>", if c.1 { " class=\"n\"" } else { "" }, c.0);
+            let _ = write!(
+                self.body,
+                "<th{}>{}</th>",
+                if c.1 { " class=\"n\"" } else { "" },
+                c.0
+            );
         }
         self.body.push_str("</tr></thead><tbody>\n");
         for r in rows {
@@ -234,7 +243,11 @@ impl Doc {
     /// The whole file: head with the styles and the running header, the contents, the body
     /// with every reference replaced by its number.
     fn finish(self, s: &Summary) -> String {
-        let title = if s.title.is_empty() { "runnel results" } else { &s.title };
+        let title = if s.title.is_empty() {
+            "runnel results"
+        } else {
+            &s.title
+        };
         let mut out = String::with_capacity(self.body.len() + 16_384);
         let _ = write!(
             out,
@@ -303,7 +316,9 @@ impl Doc {
 /// keeps the view box and lets the style sheet size it.
 fn scalable(svg: &str) -> String {
     let body = svg.trim_start_matches(|c| c != '<');
-    let body = body.strip_prefix("<?xml version=\"1.0\" encoding=\"UTF-8\"?>").unwrap_or(body);
+    let body = body
+        .strip_prefix("<?xml version=\"1.0\" encoding=\"UTF-8\"?>")
+        .unwrap_or(body);
     let body = body.trim_start();
     if let Some(rest) = body.strip_prefix("<svg width=\"") {
         // <svg width="W" height="H" viewBox="..." ...

@@ -29,7 +29,15 @@ pub(super) fn section(doc: &mut Doc, input: &HtmlInput<'_>) {
     ));
     for (c, key) in conds.iter().zip(&keys) {
         let svg = diagram(study, *c);
-        doc.figure(key, &svg, &format!("The network in the {} condition.", esc(&study.conditions[*c])), "net");
+        doc.figure(
+            key,
+            &svg,
+            &format!(
+                "The network in the {} condition.",
+                esc(&study.conditions[*c])
+            ),
+            "net",
+        );
     }
     let rows: Vec<Vec<Cell>> = study
         .elements
@@ -54,7 +62,13 @@ pub(super) fn section(doc: &mut Doc, input: &HtmlInput<'_>) {
     doc.table(
         "tab-links",
         "Elements, the conditions they belong to, and where each drains (lag in h on the way).",
-        &[text_col("element"), text_col("kind"), text_col("conditions"), text_col("drains to"), super::num_col("lag", "h")],
+        &[
+            text_col("element"),
+            text_col("kind"),
+            text_col("conditions"),
+            text_col("drains to"),
+            super::num_col("lag", "h"),
+        ],
         &rows,
     );
     doc.end();
@@ -62,7 +76,11 @@ pub(super) fn section(doc: &mut Doc, input: &HtmlInput<'_>) {
 
 fn target_text(study: &Study, t: Target) -> String {
     match t {
-        Target::Element(j) => format!("{} {}", study.elements[j].kind_word(), study.elements[j].name),
+        Target::Element(j) => format!(
+            "{} {}",
+            study.elements[j].kind_word(),
+            study.elements[j].name
+        ),
         Target::Point(p) => format!("point {}", study.points[p].name),
     }
 }
@@ -83,7 +101,15 @@ fn depth(study: &Study, i: usize) -> usize {
 
 /// The diagram of one condition.
 fn diagram(study: &Study, c: usize) -> String {
-    let members: Vec<usize> = (0..study.elements.len()).filter(|&i| study.elements[i].conditions.get(c).copied().unwrap_or(false)).collect();
+    let members: Vec<usize> = (0..study.elements.len())
+        .filter(|&i| {
+            study.elements[i]
+                .conditions
+                .get(c)
+                .copied()
+                .unwrap_or(false)
+        })
+        .collect();
     let max_d = members.iter().map(|&i| depth(study, i)).max().unwrap_or(0);
     let cols = max_d + 2;
     let mut column: Vec<Vec<usize>> = vec![Vec::new(); cols];
@@ -91,14 +117,27 @@ fn diagram(study: &Study, c: usize) -> String {
         column[max_d - depth(study, i)].push(i);
     }
     let points: Vec<usize> = (0..study.points.len())
-        .filter(|&p| members.iter().any(|&i| study.elements[i].to == Target::Point(p)))
+        .filter(|&p| {
+            members
+                .iter()
+                .any(|&i| study.elements[i].to == Target::Point(p))
+        })
         .collect();
-    let rows = column.iter().map(Vec::len).max().unwrap_or(0).max(points.len()).max(1);
+    let rows = column
+        .iter()
+        .map(Vec::len)
+        .max()
+        .unwrap_or(0)
+        .max(points.len())
+        .max(1);
     let w = cols as f64 * (BOX_W + COL_GAP) - COL_GAP + 20.0;
     let h = rows as f64 * (BOX_H + ROW_GAP) - ROW_GAP + 20.0;
     let at = |col: usize, row: usize, n: usize| -> (f64, f64) {
         let offset = (rows - n) as f64 * (BOX_H + ROW_GAP) / 2.0;
-        (10.0 + col as f64 * (BOX_W + COL_GAP), 10.0 + offset + row as f64 * (BOX_H + ROW_GAP))
+        (
+            10.0 + col as f64 * (BOX_W + COL_GAP),
+            10.0 + offset + row as f64 * (BOX_H + ROW_GAP),
+        )
     };
     let mut pos = vec![(0.0, 0.0); study.elements.len()];
     for (ci, col) in column.iter().enumerate() {
@@ -120,7 +159,14 @@ fn diagram(study: &Study, c: usize) -> String {
             Target::Element(j) => pos[j],
             Target::Point(p) => ppos[p],
         };
-        let _ = write!(s, "<line x1=\"{:.1}\" y1=\"{:.1}\" x2=\"{:.1}\" y2=\"{:.1}\" stroke=\"#555\" stroke-width=\"1.6\" marker-end=\"url(#arrow-{c})\"/>", x + BOX_W, y + BOX_H / 2.0, tx, ty + BOX_H / 2.0);
+        let _ = write!(
+            s,
+            "<line x1=\"{:.1}\" y1=\"{:.1}\" x2=\"{:.1}\" y2=\"{:.1}\" stroke=\"#555\" stroke-width=\"1.6\" marker-end=\"url(#arrow-{c})\"/>",
+            x + BOX_W,
+            y + BOX_H / 2.0,
+            tx,
+            ty + BOX_H / 2.0
+        );
     }
     for &i in &members {
         let e = &study.elements[i];
@@ -130,11 +176,29 @@ fn diagram(study: &Study, c: usize) -> String {
             ElementKind::Pond(_) => ("#dde9f6", "#2f5f93", 2.0),
             _ => ("#ececec", "#666666", 0.0),
         };
-        let _ = write!(s, "<rect x=\"{x:.1}\" y=\"{y:.1}\" width=\"{BOX_W}\" height=\"{BOX_H}\" rx=\"{rx}\" fill=\"{fill}\" stroke=\"{edge}\" stroke-width=\"1.5\"/><text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"middle\" fill=\"#1f2328\">{}</text><text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"middle\" fill=\"#5b6470\" font-size=\"12\">{}</text>", x + BOX_W / 2.0, y + 19.0, esc(&clip(&e.name, 22)), x + BOX_W / 2.0, y + 36.0, e.kind_word());
+        let _ = write!(
+            s,
+            "<rect x=\"{x:.1}\" y=\"{y:.1}\" width=\"{BOX_W}\" height=\"{BOX_H}\" rx=\"{rx}\" fill=\"{fill}\" stroke=\"{edge}\" stroke-width=\"1.5\"/><text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"middle\" fill=\"#1f2328\">{}</text><text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"middle\" fill=\"#5b6470\" font-size=\"12\">{}</text>",
+            x + BOX_W / 2.0,
+            y + 19.0,
+            esc(&clip(&e.name, 22)),
+            x + BOX_W / 2.0,
+            y + 36.0,
+            e.kind_word()
+        );
     }
     for &p in &points {
         let (x, y) = ppos[p];
-        let _ = write!(s, "<rect x=\"{x:.1}\" y=\"{y:.1}\" width=\"{BOX_W}\" height=\"{BOX_H}\" rx=\"{:.0}\" fill=\"#fff7e6\" stroke=\"#a86b00\" stroke-width=\"1.5\"/><text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"middle\" fill=\"#1f2328\">{}</text><text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"middle\" fill=\"#5b6470\" font-size=\"12\">point</text>", BOX_H / 2.0, x + BOX_W / 2.0, y + 19.0, esc(&clip(&study.points[p].name, 22)), x + BOX_W / 2.0, y + 36.0);
+        let _ = write!(
+            s,
+            "<rect x=\"{x:.1}\" y=\"{y:.1}\" width=\"{BOX_W}\" height=\"{BOX_H}\" rx=\"{:.0}\" fill=\"#fff7e6\" stroke=\"#a86b00\" stroke-width=\"1.5\"/><text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"middle\" fill=\"#1f2328\">{}</text><text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"middle\" fill=\"#5b6470\" font-size=\"12\">point</text>",
+            BOX_H / 2.0,
+            x + BOX_W / 2.0,
+            y + 19.0,
+            esc(&clip(&study.points[p].name, 22)),
+            x + BOX_W / 2.0,
+            y + 36.0
+        );
     }
     s.push_str("</svg>");
     s

@@ -13,7 +13,10 @@ pub(super) fn section(doc: &mut Doc, input: &HtmlInput<'_>) -> Result<(), PlotEr
     let u = &input.summary.units;
     doc.section("records", "Long records");
     if !input.record_entries.is_empty() {
-        doc.para(&format!("{} gives each record's totals and peaks per element and condition.", Doc::refer("tab-record-entries")));
+        doc.para(&format!(
+            "{} gives each record's totals and peaks per element and condition.",
+            Doc::refer("tab-record-entries")
+        ));
         let rows: Vec<Vec<Cell>> = input
             .record_entries
             .iter()
@@ -48,9 +51,15 @@ pub(super) fn section(doc: &mut Doc, input: &HtmlInput<'_>) -> Result<(), PlotEr
     }
     for (k, r) in input.record_plots.iter().enumerate() {
         doc.h3(&r.caption);
-        let keys = [format!("fig-duration-{k}"), format!("fig-frequency-{k}"), format!("fig-overview-{k}")];
+        let keys = [
+            format!("fig-duration-{k}"),
+            format!("fig-frequency-{k}"),
+            format!("fig-overview-{k}"),
+        ];
         let band = match &r.data.duration.control {
-            Some(_) => " (the shaded band is the controlled flow range, the dotted red line the baseline's time plus the tolerance, and red squares mark levels where a condition's curve, as plotted, lies beyond it; the check itself counts the times, as tabulated in the summary of checks)",
+            Some(_) => {
+                " (the shaded band is the controlled flow range, the dotted red line the baseline's time plus the tolerance, and red squares mark levels where a condition's curve, as plotted, lies beyond it; the check itself counts the times, as tabulated in the summary of checks)"
+            }
             None => "",
         };
         doc.para(&format!(
@@ -59,9 +68,27 @@ pub(super) fn section(doc: &mut Doc, input: &HtmlInput<'_>) -> Result<(), PlotEr
             Doc::refer(&keys[1]),
             Doc::refer(&keys[2])
         ));
-        doc.figure(&keys[0], &plot::flow_duration_svg(&r.data.duration)?, &format!("Flow duration, {}.", esc(&r.caption)), "rec");
-        doc.figure(&keys[1], &plot::frequency_svg(&r.data.frequency)?, &format!("Annual peaks and fitted frequency curves, {}.", esc(&r.caption)), "rec");
-        doc.figure(&keys[2], &plot::overview_svg(&r.data.overview)?, &format!("Daily maximum flow, {}.", esc(&r.caption)), "rec");
+        doc.figure(
+            &keys[0],
+            &plot::flow_duration_svg(&r.data.duration)?,
+            &format!("Flow duration, {}.", esc(&r.caption)),
+            "rec",
+        );
+        doc.figure(
+            &keys[1],
+            &plot::frequency_svg(&r.data.frequency)?,
+            &format!(
+                "Annual peaks and fitted frequency curves, {}.",
+                esc(&r.caption)
+            ),
+            "rec",
+        );
+        doc.figure(
+            &keys[2],
+            &plot::overview_svg(&r.data.overview)?,
+            &format!("Daily maximum flow, {}.", esc(&r.caption)),
+            "rec",
+        );
     }
     doc.end();
     Ok(())

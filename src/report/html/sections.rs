@@ -8,7 +8,11 @@ use crate::report::markdown::DRAIN_TIME_DEFINITION;
 pub(super) fn project(doc: &mut Doc, input: &HtmlInput<'_>) {
     let s = input.summary;
     let r = &input.study.report;
-    let title = if s.title.is_empty() { "Stormwater computations" } else { &s.title };
+    let title = if s.title.is_empty() {
+        "Stormwater computations"
+    } else {
+        &s.title
+    };
     let mut html = format!(
         "<header class=\"project\"><h1>{}</h1><div>Stormwater computations by runnel {}</div><dl>",
         esc(title),
@@ -61,7 +65,12 @@ pub(super) fn checks(doc: &mut Doc, input: &HtmlInput<'_>) {
             format!("{fails} check(s) fail; see the rows marked in red.")
         }
     ));
-    let peaks: Vec<(usize, &_)> = s.comparisons.iter().enumerate().filter(|(_, c)| c.check == "peak").collect();
+    let peaks: Vec<(usize, &_)> = s
+        .comparisons
+        .iter()
+        .enumerate()
+        .filter(|(_, c)| c.check == "peak")
+        .collect();
     if !peaks.is_empty() {
         doc.para(&format!(
             "{} compares each condition's peak at each point with its limit; the hydrographs are drawn in the section on points.",
@@ -92,9 +101,19 @@ pub(super) fn checks(doc: &mut Doc, input: &HtmlInput<'_>) {
                 ]
             })
             .collect();
-        doc.table("tab-peaks", "Peak flow at the points against the limits.", &cols, &rows);
+        doc.table(
+            "tab-peaks",
+            "Peak flow at the points against the limits.",
+            &cols,
+            &rows,
+        );
     }
-    let durations: Vec<(usize, &_)> = s.comparisons.iter().enumerate().filter(|(_, c)| c.duration.is_some()).collect();
+    let durations: Vec<(usize, &_)> = s
+        .comparisons
+        .iter()
+        .enumerate()
+        .filter(|(_, c)| c.duration.is_some())
+        .collect();
     if !durations.is_empty() {
         let cols = [
             text_col("point"),
@@ -114,9 +133,21 @@ pub(super) fn checks(doc: &mut Doc, input: &HtmlInput<'_>) {
                     Cell::Text(esc(&c.point)),
                     Cell::Text(esc(c.record.as_deref().unwrap_or(""))),
                     Cell::Text(esc(&c.condition)),
-                    Doc::sig(format!("comparisons.{i}.duration.worst_flow"), d.worst_flow, 4),
-                    Doc::sig(format!("comparisons.{i}.duration.baseline_time_h"), d.baseline_time_h, 4),
-                    Doc::sig(format!("comparisons.{i}.duration.allowed_time_h"), d.allowed_time_h, 4),
+                    Doc::sig(
+                        format!("comparisons.{i}.duration.worst_flow"),
+                        d.worst_flow,
+                        4,
+                    ),
+                    Doc::sig(
+                        format!("comparisons.{i}.duration.baseline_time_h"),
+                        d.baseline_time_h,
+                        4,
+                    ),
+                    Doc::sig(
+                        format!("comparisons.{i}.duration.allowed_time_h"),
+                        d.allowed_time_h,
+                        4,
+                    ),
                     Doc::sig(format!("comparisons.{i}.duration.time_h"), d.time_h, 4),
                     verdict(c.pass),
                 ])
@@ -148,7 +179,10 @@ pub(super) fn checks(doc: &mut Doc, input: &HtmlInput<'_>) {
                     Cell::Text(esc(&c.pond)),
                     Cell::Text(esc(&c.storm)),
                     Cell::Text(esc(&c.condition)),
-                    Cell::Text(esc(&serde_json::to_value(c.check).ok().and_then(|v| v.as_str().map(str::to_string)).unwrap_or_default())),
+                    Cell::Text(esc(&serde_json::to_value(c.check)
+                        .ok()
+                        .and_then(|v| v.as_str().map(str::to_string))
+                        .unwrap_or_default())),
                     Doc::opt(format!("pond_checks.{i}.value"), c.value, 2),
                     Doc::num(format!("pond_checks.{i}.limit"), c.limit, 2),
                     Cell::Verdict(if c.pass { "meets" } else { "fails" }.into(), c.pass),
@@ -191,21 +225,71 @@ pub(super) fn catchments(doc: &mut Doc, input: &HtmlInput<'_>) {
         let cols = [text_col("quantity"), num_col("value", ""), text_col("unit")];
         let p = |f: &str| format!("catchments.{i}.{f}");
         let mut rows = vec![
-            vec![Cell::Text("area".into()), Doc::num(p("area"), c.area, 3), Cell::Text(esc(u.area))],
-            vec![Cell::Text("curve number (composite or given)".into()), Doc::num(p("cn"), c.cn, 2), Cell::Text(String::new())],
-            vec![Cell::Text("initial abstraction ratio".into()), Doc::num(p("lambda"), c.lambda, 2), Cell::Text(String::new())],
-            vec![Cell::Text("curve number used".into()), Doc::num(p("cn_used"), c.cn_used, 2), Cell::Text(String::new())],
-            vec![Cell::Text("potential retention S".into()), Doc::num(p("retention"), c.retention, 3), Cell::Text(esc(u.depth))],
-            vec![Cell::Text("time of concentration Tc".into()), Doc::num(p("tc_h"), c.tc_h, 3), Cell::Text("h".into())],
-            vec![Cell::Text("lag".into()), Doc::num(p("lag_h"), c.lag_h, 3), Cell::Text("h".into())],
-            vec![Cell::Text("time to peak Tp".into()), Doc::num(p("tp_h"), c.tp_h, 3), Cell::Text("h".into())],
-            vec![Cell::Text("unit-hydrograph peak per unit of runoff".into()), Doc::sig(p("uh_peak_per_depth"), c.uh_peak_per_depth, 4), Cell::Text(format!("{} per {}", esc(u.flow), esc(u.depth)))],
-            vec![Cell::Text("peak rate factor".into()), Doc::num(p("prf"), c.prf, 0), Cell::Text(String::new())],
+            vec![
+                Cell::Text("area".into()),
+                Doc::num(p("area"), c.area, 3),
+                Cell::Text(esc(u.area)),
+            ],
+            vec![
+                Cell::Text("curve number (composite or given)".into()),
+                Doc::num(p("cn"), c.cn, 2),
+                Cell::Text(String::new()),
+            ],
+            vec![
+                Cell::Text("initial abstraction ratio".into()),
+                Doc::num(p("lambda"), c.lambda, 2),
+                Cell::Text(String::new()),
+            ],
+            vec![
+                Cell::Text("curve number used".into()),
+                Doc::num(p("cn_used"), c.cn_used, 2),
+                Cell::Text(String::new()),
+            ],
+            vec![
+                Cell::Text("potential retention S".into()),
+                Doc::num(p("retention"), c.retention, 3),
+                Cell::Text(esc(u.depth)),
+            ],
+            vec![
+                Cell::Text("time of concentration Tc".into()),
+                Doc::num(p("tc_h"), c.tc_h, 3),
+                Cell::Text("h".into()),
+            ],
+            vec![
+                Cell::Text("lag".into()),
+                Doc::num(p("lag_h"), c.lag_h, 3),
+                Cell::Text("h".into()),
+            ],
+            vec![
+                Cell::Text("time to peak Tp".into()),
+                Doc::num(p("tp_h"), c.tp_h, 3),
+                Cell::Text("h".into()),
+            ],
+            vec![
+                Cell::Text("unit-hydrograph peak per unit of runoff".into()),
+                Doc::sig(p("uh_peak_per_depth"), c.uh_peak_per_depth, 4),
+                Cell::Text(format!("{} per {}", esc(u.flow), esc(u.depth))),
+            ],
+            vec![
+                Cell::Text("peak rate factor".into()),
+                Doc::num(p("prf"), c.prf, 0),
+                Cell::Text(String::new()),
+            ],
         ];
         rows.truncate(10);
-        doc.table(&key, &format!("Catchment {}: runoff and timing.", esc(&c.name)), &cols, &rows);
+        doc.table(
+            &key,
+            &format!("Catchment {}: runoff and timing.", esc(&c.name)),
+            &cols,
+            &rows,
+        );
         if !c.covers.is_empty() {
-            let cols = [text_col("cover"), num_col("CN", ""), num_col("area", u.area), num_col("CN × area", "")];
+            let cols = [
+                text_col("cover"),
+                num_col("CN", ""),
+                num_col("area", u.area),
+                num_col("CN × area", ""),
+            ];
             let rows: Vec<Vec<Cell>> = c
                 .covers
                 .iter()
@@ -219,7 +303,15 @@ pub(super) fn catchments(doc: &mut Doc, input: &HtmlInput<'_>) {
                     ]
                 })
                 .collect();
-            doc.table(&format!("tab-covers-{i}"), &format!("Catchment {}: covers (TR-55 Table 2-2) and the area-weighted curve number.", esc(&c.name)), &cols, &rows);
+            doc.table(
+                &format!("tab-covers-{i}"),
+                &format!(
+                    "Catchment {}: covers (TR-55 Table 2-2) and the area-weighted curve number.",
+                    esc(&c.name)
+                ),
+                &cols,
+                &rows,
+            );
         }
         if !c.flow_path.is_empty() {
             let lu = u.stage;
@@ -253,7 +345,15 @@ pub(super) fn catchments(doc: &mut Doc, input: &HtmlInput<'_>) {
                     ]
                 })
                 .collect();
-            doc.table(&format!("tab-path-{i}"), &format!("Catchment {}: flow path and travel times; their sum is Tc.", esc(&c.name)), &cols, &rows);
+            doc.table(
+                &format!("tab-path-{i}"),
+                &format!(
+                    "Catchment {}: flow path and travel times; their sum is Tc.",
+                    esc(&c.name)
+                ),
+                &cols,
+                &rows,
+            );
         }
     }
     doc.end();
@@ -304,7 +404,12 @@ pub(super) fn sizing(doc: &mut Doc, input: &HtmlInput<'_>) {
             ]
         })
         .collect();
-    doc.table("tab-sizing", "Sized outlet dimensions (outlets numbered from 1).", &cols, &rows);
+    doc.table(
+        "tab-sizing",
+        "Sized outlet dimensions (outlets numbered from 1).",
+        &cols,
+        &rows,
+    );
     doc.end();
 }
 
@@ -319,7 +424,12 @@ pub(super) fn warnings(doc: &mut Doc, input: &HtmlInput<'_>) {
         let rows: Vec<Vec<Cell>> = s
             .warning_details
             .iter()
-            .map(|w| vec![Cell::Text(format!("<code>{}</code>", esc(w.code))), Cell::Text(esc(&w.message))])
+            .map(|w| {
+                vec![
+                    Cell::Text(format!("<code>{}</code>", esc(w.code))),
+                    Cell::Text(esc(&w.message)),
+                ]
+            })
             .collect();
         doc.table("tab-warnings", "Warnings of the run.", &cols, &rows);
     }
@@ -332,13 +442,31 @@ pub(super) fn provenance(doc: &mut Doc, input: &HtmlInput<'_>) {
     let u = &s.units;
     doc.section("provenance", "Provenance");
     let mut rows = vec![
-        vec![Cell::Text("program".into()), Cell::Text(format!("runnel {}", esc(s.provenance.version)))],
-        vec![Cell::Text("run".into()), Cell::Text(esc(&s.provenance.run_date))],
-        vec![Cell::Text("scenario".into()), Cell::Text(format!("<code>{}</code>", esc(&s.provenance.scenario)))],
-        vec![Cell::Text("scenario SHA-256".into()), Cell::Text(format!("<code>{}</code>", esc(&s.provenance.scenario_sha256)))],
+        vec![
+            Cell::Text("program".into()),
+            Cell::Text(format!("runnel {}", esc(s.provenance.version))),
+        ],
+        vec![
+            Cell::Text("run".into()),
+            Cell::Text(esc(&s.provenance.run_date)),
+        ],
+        vec![
+            Cell::Text("scenario".into()),
+            Cell::Text(format!("<code>{}</code>", esc(&s.provenance.scenario))),
+        ],
+        vec![
+            Cell::Text("scenario SHA-256".into()),
+            Cell::Text(format!(
+                "<code>{}</code>",
+                esc(&s.provenance.scenario_sha256)
+            )),
+        ],
     ];
     for f in &s.provenance.inputs {
-        rows.push(vec![Cell::Text("input read".into()), Cell::Text(format!("<code>{}</code>", esc(f)))]);
+        rows.push(vec![
+            Cell::Text("input read".into()),
+            Cell::Text(format!("<code>{}</code>", esc(f))),
+        ]);
     }
     rows.push(vec![
         Cell::Text("units".into()),
@@ -347,9 +475,20 @@ pub(super) fn provenance(doc: &mut Doc, input: &HtmlInput<'_>) {
             s.unit_system, u.flow, u.stage, u.volume, u.depth, u.area
         ))),
     ]);
-    rows.push(vec![Cell::Text("step".into()), Cell::Text(format!("{} min", fixed(s.step_h * 60.0, 2)))]);
-    rows.push(vec![Cell::Text("baseline".into()), Cell::Text(esc(&s.baseline))]);
-    doc.table("tab-provenance", "What was run.", &[text_col(""), text_col("")], &rows);
+    rows.push(vec![
+        Cell::Text("step".into()),
+        Cell::Text(format!("{} min", fixed(s.step_h * 60.0, 2))),
+    ]);
+    rows.push(vec![
+        Cell::Text("baseline".into()),
+        Cell::Text(esc(&s.baseline)),
+    ]);
+    doc.table(
+        "tab-provenance",
+        "What was run.",
+        &[text_col(""), text_col("")],
+        &rows,
+    );
     doc.para("The same results are written beside this file as <code>summary.json</code> (every number here), <code>summary.md</code> (the text version, for comparing runs), one CSV of hydrographs per storm (the whole run, step by step) and PNG figures.");
     doc.end();
 }

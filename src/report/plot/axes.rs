@@ -396,7 +396,9 @@ pub(super) fn ticks_between(t0: f64, t1: f64) -> (Vec<f64>, Vec<f64>) {
 /// The time window to draw: the given one clipped to the run, or the whole run.
 pub(super) fn window_of(window_h: Option<(f64, f64)>, t_end: f64) -> (f64, f64) {
     match window_h {
-        Some((a, b)) if a.is_finite() && b.is_finite() && a >= 0.0 && b > a => (a, b.min(t_end.max(a + 1e-6))),
+        Some((a, b)) if a.is_finite() && b.is_finite() && a >= 0.0 && b > a => {
+            (a, b.min(t_end.max(a + 1e-6)))
+        }
         _ => (0.0, t_end),
     }
 }

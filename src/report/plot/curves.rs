@@ -22,20 +22,34 @@ pub fn pond_curves_svg(p: &PondCurvesPlot) -> Result<String, PlotError> {
 
 pub(super) fn draw_pond_curves(p: &PondCurvesPlot, target: Target) -> Result<Drawn, PlotError> {
     let name = plot_name("pond curves", &p.title);
-    let (s_lo, s_hi) = padded_range(p.stages.iter().copied().chain(p.top))
-        .map_err(|m| input_error(&name, m))?;
-    let (v_lo, v_hi) = value_range(p.storage.iter().copied(), 1.05).map_err(|m| input_error(&name, m))?;
-    let flows = p.total.iter().copied().chain(p.devices.iter().flat_map(|d| d.1.iter().copied()));
+    let (s_lo, s_hi) =
+        padded_range(p.stages.iter().copied().chain(p.top)).map_err(|m| input_error(&name, m))?;
+    let (v_lo, v_hi) =
+        value_range(p.storage.iter().copied(), 1.05).map_err(|m| input_error(&name, m))?;
+    let flows = p
+        .total
+        .iter()
+        .copied()
+        .chain(p.devices.iter().flat_map(|d| d.1.iter().copied()));
     let (q_lo, q_hi) = value_range(flows, 1.05).map_err(|m| input_error(&name, m))?;
     let mut legend: Vec<(String, Swatch)> = vec![
-        ("storage".to_string(), Swatch::Line(colour_of(2), 3, Dash::Solid)),
-        ("total outflow".to_string(), Swatch::Line(INK, 3, Dash::Solid)),
+        (
+            "storage".to_string(),
+            Swatch::Line(colour_of(2), 3, Dash::Solid),
+        ),
+        (
+            "total outflow".to_string(),
+            Swatch::Line(INK, 3, Dash::Solid),
+        ),
     ];
     for (i, (label, _)) in p.devices.iter().enumerate() {
         legend.push((label.clone(), Swatch::Line(colour_of(i), 2, Dash::Long)));
     }
     if p.top.is_some() {
-        legend.push(("top of embankment".to_string(), Swatch::Line(REFERENCE, 2, Dash::Short)));
+        legend.push((
+            "top of embankment".to_string(),
+            Swatch::Line(REFERENCE, 2, Dash::Short),
+        ));
     }
     render_to(target, &name, |root| {
         let (body, foot, rows) = layout(root, &p.title, &p.subtitle, &legend)?;
@@ -63,7 +77,12 @@ pub(super) fn draw_pond_curves(p: &PondCurvesPlot, target: Target) -> Result<Dra
                 .draw()?;
             let area = chart.plotting_area();
             if let Some(t) = p.top.filter(|t| t.is_finite()) {
-                draw_path(area, vec![(x0, t), (x1, t)], REFERENCE.stroke_width(2), Dash::Short)?;
+                draw_path(
+                    area,
+                    vec![(x0, t), (x1, t)],
+                    REFERENCE.stroke_width(2),
+                    Dash::Short,
+                )?;
             }
             let pairs = |xs: &[f64]| -> Vec<(f64, f64)> {
                 xs.iter().zip(&p.stages).map(|(&x, &h)| (x, h)).collect()

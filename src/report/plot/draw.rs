@@ -507,10 +507,7 @@ pub(super) fn time_chart<'a, 'b>(
         .x_label_area_size(70)
         .y_label_area_size(104)
         .right_y_label_area_size(112)
-        .build_cartesian_2d(
-            TickedAxis::new(t0, t1, x_major, x_minor),
-            ax.y.0..ax.y.1,
-        )?
+        .build_cartesian_2d(TickedAxis::new(t0, t1, x_major, x_minor), ax.y.0..ax.y.1)?
         .set_secondary_coord(t0..t1, ax.y2.0..ax.y2.1);
     house_mesh!(chart)
         .x_label_formatter(&|v| super::axes::fmt_tick(v))

@@ -27,13 +27,13 @@ mod surface;
 #[cfg(test)]
 mod tests;
 
+pub use axes::{WINDOW_TAIL_FRACTION, action_window};
 pub use curves::{pond_curves_png, pond_curves_svg};
 pub use pond::{pond_png, pond_svg};
 pub use record::{
     flow_duration_png, flow_duration_svg, frequency_png, frequency_svg, overview_png, overview_svg,
 };
 pub use storm::{storm_point_png, storm_point_svg};
-pub use axes::{WINDOW_TAIL_FRACTION, action_window};
 
 /// Width of every figure, in pixels.
 pub const WIDTH_PX: u32 = 1600;

@@ -29,7 +29,8 @@ pub(super) fn draw_pond(p: &PondPlot, target: Target) -> Result<Drawn, PlotError
         .saturating_sub(1);
     let t_end = time_end(&name, n, dt)?;
     let win = window_of(p.window_h, t_end);
-    let in_win = |v: &[f64]| -> Vec<f64> { windowed(v, dt, win).into_iter().map(|(_, q)| q).collect() };
+    let in_win =
+        |v: &[f64]| -> Vec<f64> { windowed(v, dt, win).into_iter().map(|(_, q)| q).collect() };
     let flows = in_win(&p.inflow).into_iter().chain(in_win(&p.outflow));
     let (q_lo, q_hi) = value_range(flows, 1.3).map_err(|m| input_error(&name, m))?;
     let stages = p

@@ -73,13 +73,24 @@ pub(super) fn draw_flow_duration(p: &DurationPlot, target: Target) -> Result<Dra
         })
         .collect();
     if let Some(band) = &p.control {
-        let base = curves.get(band.baseline).map_or("baseline", |c| c.0.as_str());
-        legend.push(("controlled flow range".to_string(), Swatch::Bar(BAND_FILL, BAND_EDGE)));
+        let base = curves
+            .get(band.baseline)
+            .map_or("baseline", |c| c.0.as_str());
         legend.push((
-            format!("allowed: {base} time + {} %", fmt_value(band.tolerance * 100.0)),
+            "controlled flow range".to_string(),
+            Swatch::Bar(BAND_FILL, BAND_EDGE),
+        ));
+        legend.push((
+            format!(
+                "allowed: {base} time + {} %",
+                fmt_value(band.tolerance * 100.0)
+            ),
             Swatch::Line(LIMIT, 2, Dash::Short),
         ));
-        legend.push(("level above the allowance".to_string(), Swatch::Marker(LIMIT, Shape::Square)));
+        legend.push((
+            "level above the allowance".to_string(),
+            Swatch::Marker(LIMIT, Shape::Square),
+        ));
     }
     let x_ticks = decade_ticks(x_lo, x_hi);
     let y_ticks = decade_ticks(y_lo, y_hi);
@@ -549,7 +560,11 @@ fn exceedance_at(curve: &[(f64, f64)], q: f64) -> Option<f64> {
     for w in curve.windows(2) {
         let [(x0, q0), (x1, q1)] = [w[0], w[1]];
         if q <= q0 && q >= q1 {
-            let f = if q0 > q1 { (q0.ln() - q.ln()) / (q0.ln() - q1.ln()) } else { 0.0 };
+            let f = if q0 > q1 {
+                (q0.ln() - q.ln()) / (q0.ln() - q1.ln())
+            } else {
+                0.0
+            };
             return Some(x0 + f * (x1 - x0));
         }
     }
@@ -566,10 +581,21 @@ fn draw_control(
     (x_lo, x_hi): (f64, f64),
     (y_lo, y_hi): (f64, f64),
 ) -> super::style::DrawResult {
-    let (q0, q1) = (band.from_flow.clamp(y_lo, y_hi), band.to_flow.clamp(y_lo, y_hi));
-    area.draw(&Rectangle::new([(x_lo, q0), (x_hi, q1)], BAND_FILL.filled()))?;
+    let (q0, q1) = (
+        band.from_flow.clamp(y_lo, y_hi),
+        band.to_flow.clamp(y_lo, y_hi),
+    );
+    area.draw(&Rectangle::new(
+        [(x_lo, q0), (x_hi, q1)],
+        BAND_FILL.filled(),
+    ))?;
     for q in [q0, q1] {
-        draw_path(area, vec![(x_lo, q), (x_hi, q)], BAND_EDGE.stroke_width(1), Dash::Solid)?;
+        draw_path(
+            area,
+            vec![(x_lo, q), (x_hi, q)],
+            BAND_EDGE.stroke_width(1),
+            Dash::Solid,
+        )?;
     }
     let Some((_, base)) = curves.get(band.baseline) else {
         return Ok(());

@@ -33,7 +33,8 @@ pub(super) fn draw_storm_point(p: &StormPointPlot, target: Target) -> Result<Dra
         .unwrap_or(0);
     let t_end = time_end(&name, n_flow.max(p.rain.len()), dt)?;
     let win = window_of(p.window_h, t_end);
-    let in_win = |v: &[f64]| -> Vec<f64> { windowed(v, dt, win).into_iter().map(|(_, q)| q).collect() };
+    let in_win =
+        |v: &[f64]| -> Vec<f64> { windowed(v, dt, win).into_iter().map(|(_, q)| q).collect() };
     let limit_value = p.limit.as_ref().map(|(_, v)| *v).filter(|v| v.is_finite());
     let flows = p
         .hydrographs

@@ -20,9 +20,13 @@ pub(crate) enum Surface<'a> {
 #[error("{0}")]
 pub(crate) struct SurfaceError(String);
 
-fn lift<E: std::error::Error + Send + Sync>(e: DrawingErrorKind<E>) -> DrawingErrorKind<SurfaceError> {
+fn lift<E: std::error::Error + Send + Sync>(
+    e: DrawingErrorKind<E>,
+) -> DrawingErrorKind<SurfaceError> {
     match e {
-        DrawingErrorKind::DrawingError(e) => DrawingErrorKind::DrawingError(SurfaceError(e.to_string())),
+        DrawingErrorKind::DrawingError(e) => {
+            DrawingErrorKind::DrawingError(SurfaceError(e.to_string()))
+        }
         DrawingErrorKind::FontError(e) => DrawingErrorKind::FontError(e),
     }
 }
@@ -61,7 +65,12 @@ impl DrawingBackend for Surface<'_> {
         both!(self, b => b.draw_pixel(point, color))
     }
 
-    fn draw_line<S: BackendStyle>(&mut self, from: BackendCoord, to: BackendCoord, style: &S) -> Drawn {
+    fn draw_line<S: BackendStyle>(
+        &mut self,
+        from: BackendCoord,
+        to: BackendCoord,
+        style: &S,
+    ) -> Drawn {
         both!(self, b => b.draw_line(from, to, style))
     }
 
@@ -101,7 +110,12 @@ impl DrawingBackend for Surface<'_> {
         both!(self, b => b.fill_polygon(vert, style))
     }
 
-    fn draw_text<T: BackendTextStyle>(&mut self, text: &str, style: &T, pos: BackendCoord) -> Drawn {
+    fn draw_text<T: BackendTextStyle>(
+        &mut self,
+        text: &str,
+        style: &T,
+        pos: BackendCoord,
+    ) -> Drawn {
         both!(self, b => b.draw_text(text, style, pos))
     }
 

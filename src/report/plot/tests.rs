@@ -141,7 +141,9 @@ fn storm_plot_is_a_png_of_at_least_1600_by_1000_with_every_condition_in_its_colo
 #[test]
 fn title_band_has_rendered_text() {
     let p = storm(vec![series("existing", bump(50, 20, 3.0))], vec![0.1; 20]);
-    let c = draw_storm_point(&p, Target::Png).expect("storm plot").canvas();
+    let c = draw_storm_point(&p, Target::Png)
+        .expect("storm plot")
+        .canvas();
     let dark = c
         .rgb
         .chunks_exact(3)
@@ -312,12 +314,20 @@ fn storm_with_single_nan_and_huge_values_is_drawn_without_error() {
         ],
         vec![f64::NAN, -1.0, 0.2, 1e300],
     );
-    drawn(&draw_storm_point(&s, Target::Png).expect("storm with odd values").canvas());
+    drawn(
+        &draw_storm_point(&s, Target::Png)
+            .expect("storm with odd values")
+            .canvas(),
+    );
     let s = storm(
         vec![series("largest float", vec![0.0, f64::MAX])],
         Vec::new(),
     );
-    drawn(&draw_storm_point(&s, Target::Png).expect("storm at f64::MAX").canvas());
+    drawn(
+        &draw_storm_point(&s, Target::Png)
+            .expect("storm at f64::MAX")
+            .canvas(),
+    );
 }
 
 #[test]
@@ -328,17 +338,25 @@ fn pond_duration_and_frequency_with_nan_and_huge_values_are_drawn_without_error(
         vec![50.0, f64::NAN, 51.0],
         f64::NAN,
     );
-    drawn(&draw_pond(&p, Target::Png).expect("pond with odd values").canvas());
+    drawn(
+        &draw_pond(&p, Target::Png)
+            .expect("pond with odd values")
+            .canvas(),
+    );
     let d = DurationPlot {
         title: String::new(),
         flow_unit: "cfs".to_string(),
-        curves: vec![(
         control: None,
+        curves: vec![(
             "odd".to_string(),
             vec![(0.0, 5.0), (f64::NAN, 1.0), (0.3, 1e200), (1.5, 1e-200)],
         )],
     };
-    drawn(&draw_flow_duration(&d, Target::Png).expect("duration with odd values").canvas());
+    drawn(
+        &draw_flow_duration(&d, Target::Png)
+            .expect("duration with odd values")
+            .canvas(),
+    );
     let f = FrequencyPlot {
         title: String::new(),
         flow_unit: "cfs".to_string(),
@@ -348,24 +366,36 @@ fn pond_duration_and_frequency_with_nan_and_huge_values_are_drawn_without_error(
         )],
         fitted: vec![("a".to_string(), vec![(1e9, 4.0)])],
     };
-    drawn(&draw_frequency(&f, Target::Png).expect("frequency with odd values").canvas());
+    drawn(
+        &draw_frequency(&f, Target::Png)
+            .expect("frequency with odd values")
+            .canvas(),
+    );
     let d = DurationPlot {
         title: String::new(),
         flow_unit: "cfs".to_string(),
-        curves: vec![(
         control: None,
+        curves: vec![(
             "max".to_string(),
             vec![(1e-300, f64::MAX), (1.0, f64::MIN_POSITIVE)],
         )],
     };
-    drawn(&draw_flow_duration(&d, Target::Png).expect("duration at the float limits").canvas());
+    drawn(
+        &draw_flow_duration(&d, Target::Png)
+            .expect("duration at the float limits")
+            .canvas(),
+    );
     let f = FrequencyPlot {
         title: String::new(),
         flow_unit: "cfs".to_string(),
         observed: vec![("max".to_string(), vec![(f64::MAX, f64::MAX)])],
         fitted: Vec::new(),
     };
-    drawn(&draw_frequency(&f, Target::Png).expect("frequency at the float limits").canvas());
+    drawn(
+        &draw_frequency(&f, Target::Png)
+            .expect("frequency at the float limits")
+            .canvas(),
+    );
 }
 
 #[test]
