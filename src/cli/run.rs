@@ -117,6 +117,49 @@ fn write_record_plots(
     Ok(out)
 }
 
+/// Writes `report.html` into the staging folder; returns the seconds it took.
+///
+/// # Errors
+/// When a figure cannot be drawn or the file cannot be written.
+fn write_report_html(input: &report::html::HtmlInput<'_>, stage: &Staging) -> Result<f64, Error> {
+    let t = std::time::Instant::now();
+    let html = report::html::render(input).map_err(|e| Error::Write {
+        path: stage.temp_dir().join(output::REPORT_HTML),
+        message: e.to_string(),
+    })?;
+    stage.write(output::REPORT_HTML, html.as_bytes())?;
+    Ok(t.elapsed().as_secs_f64())
+}
+
+/// The stage timings line (`RUNNEL_TIMINGS`), for stderr.
+fn timings_line(
+    t: &crate::engine::records::Timings,
+    t_load: f64,
+    t_records: f64,
+    t_report: f64,
+    t_html: f64,
+) -> String {
+    let per = |s: f64| {
+        if s > 0.0 {
+            format!("{:.1} M intervals/s", t.intervals as f64 / s / 1e6)
+        } else {
+            "-".into()
+        }
+    };
+    format!(
+        "timings: load and read {t_load:.3} s = {}; records {t_records:.3} s (rain {:.3} s, excess and convolution {:.3} s = {}, routing {:.3} s = {}, statistics {:.3} s = {}); report {:.3} s (of which report.html {t_html:.3} s)",
+        per(t_load),
+        t.rain_s,
+        t.runoff_s,
+        per(t.runoff_s),
+        t.routing_s,
+        per(t.routing_s),
+        t.statistics_s,
+        per(t.statistics_s),
+        t_report
+    )
+}
+
 /// Runs a scenario and writes its results.
 ///
 /// # Errors
@@ -183,21 +226,17 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let record_md = report::records::markdown(&study, &record_entries, &record_comparisons);
     let md = report::markdown::render(&study, &s, &all_plots, &record_md);
     stage.write("summary.md", md.as_bytes())?;
-    let t_html = std::time::Instant::now();
-    let html = report::html::render(&report::html::HtmlInput {
-        study: &study,
-        analysis: &a,
-        summary: &s,
-        figures: &figures,
-        record_entries: &record_entries,
-        record_plots: &record_plots,
-    })
-    .map_err(|e| Error::Write {
-        path: out_dir.join(output::REPORT_HTML),
-        message: e.to_string(),
-    })?;
-    stage.write(output::REPORT_HTML, html.as_bytes())?;
-    let t_html = t_html.elapsed().as_secs_f64();
+    let t_html = write_report_html(
+        &report::html::HtmlInput {
+            study: &study,
+            analysis: &a,
+            summary: &s,
+            figures: &figures,
+            record_entries: &record_entries,
+            record_plots: &record_plots,
+        },
+        &stage,
+    )?;
     if !study.sizing.is_empty() {
         // Paths in the sized copy are written relative to the results
         // folder; both folders are made absolute here, once.
@@ -223,25 +262,12 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         ));
     }
     let timings = std::env::var_os("RUNNEL_TIMINGS").map(|_| {
-        let t = &rec.timings;
-        let per = |s: f64| {
-            if s > 0.0 {
-                format!("{:.1} M intervals/s", t.intervals as f64 / s / 1e6)
-            } else {
-                "-".into()
-            }
-        };
-        format!(
-            "timings: load and read {t_load:.3} s = {}; records {t_records:.3} s (rain {:.3} s, excess and convolution {:.3} s = {}, routing {:.3} s = {}, statistics {:.3} s = {}); report {:.3} s (of which report.html {t_html:.3} s)",
-            per(t_load),
-            t.rain_s,
-            t.runoff_s,
-            per(t.runoff_s),
-            t.routing_s,
-            per(t.routing_s),
-            t.statistics_s,
-            per(t.statistics_s),
-            t2.elapsed().as_secs_f64()
+        timings_line(
+            &rec.timings,
+            t_load,
+            t_records,
+            t2.elapsed().as_secs_f64(),
+            t_html,
         )
     });
     let o = summary::Out(study.units);

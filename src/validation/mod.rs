@@ -66,7 +66,15 @@ pub fn group(name: &str) -> Vec<Case> {
 pub fn assert_group(name: &str) {
     let cases = group(name);
     assert!(!cases.is_empty(), "no published cases in group {name}");
-    for c in &cases {
+    assert_cases(&cases);
+}
+
+/// Asserts each case.
+///
+/// # Panics
+/// When a case is off, naming it and its source.
+pub fn assert_cases(cases: &[Case]) {
+    for c in cases {
         let o = c.check();
         assert!(
             o.pass,
@@ -85,14 +93,7 @@ mod tests {
         // Each case names its published source (see `cases.rs`).
         let all = cases::all();
         assert!(all.len() > 150, "{} cases", all.len());
-        for c in &all {
-            let o = c.check();
-            assert!(
-                o.pass,
-                "{} ({}): runnel {} against published {} (tolerance {})",
-                c.quantity, c.source, o.value, c.published, c.tolerance
-            );
-        }
+        assert_cases(&all);
     }
 
     #[test]

@@ -143,9 +143,9 @@ impl Doc {
     /// Opens a numbered section (each starts a new printed page, except the first).
     pub(crate) fn section(&mut self, id: &str, title: &str) {
         self.sections += 1;
-        let _ = write!(
+        let _ = writeln!(
             self.body,
-            "<section class=\"sec\" id=\"{id}\"><h2><span class=\"no\">{}</span>{}</h2>\n",
+            "<section class=\"sec\" id=\"{id}\"><h2><span class=\"no\">{}</span>{}</h2>",
             self.sections,
             esc(title)
         );

@@ -160,7 +160,18 @@ pub(super) fn checks(doc: &mut Doc, input: &HtmlInput<'_>) {
             &rows,
         );
     }
-    if !s.pond_checks.is_empty() {
+    pond_checks(doc, input);
+    doc.end();
+}
+
+/// Every pond check: freeboard, stage, drain time, overtopping.
+fn pond_checks(doc: &mut Doc, input: &HtmlInput<'_>) {
+    let s = input.summary;
+    let u = &s.units;
+    if s.pond_checks.is_empty() {
+        return;
+    }
+    {
         let cols = [
             text_col("pond"),
             text_col("storm or record"),
@@ -200,7 +211,6 @@ pub(super) fn checks(doc: &mut Doc, input: &HtmlInput<'_>) {
             &rows,
         );
     }
-    doc.end();
 }
 
 fn sig_opt(path: String, v: Option<f64>) -> Cell {
