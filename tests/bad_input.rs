@@ -184,6 +184,9 @@ const CASES: &[Case] = &[
     case("stage-huge", LineCol(59, 14), &["pond \"Pond A\", stage_area", "row 3", "stage", "far beyond"]),
     // Ponds (issue 10, item 5).
     case("start-above-top", LineCol(61, 9), &["pond \"Pond A\", start", "105 is above the top of embankment 104"]),
+    // The report's project block (issue 14).
+    case("report-unknown-key", LineCol(78, 1), &["report, clinet", "unknown key `clinet`", "did you mean `client`"]),
+    case("report-empty", LineCol(77, 15), &["report, prepared_by", "prepared_by is empty", "leave the key out"]),
 ];
 
 fn root() -> PathBuf {

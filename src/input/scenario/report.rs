@@ -27,7 +27,7 @@ impl Builder<'_> {
 
     fn report_text(&self, v: Option<&Spanned<String>>, key: &str) -> R<Option<String>> {
         let Some(v) = v else { return Ok(None) };
-        let ctx = format!("[report] {key}");
+        let ctx = format!("report, {key}");
         let text = v.get_ref().trim();
         if text.is_empty() {
             return Err(self
