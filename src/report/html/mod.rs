@@ -133,6 +133,9 @@ pub(crate) struct Doc {
     toc: Vec<(String, String)>,
 }
 
+/// Tables of at most this many rows are kept on one printed page.
+const SHORT_TABLE_ROWS: usize = 24;
+
 /// Where the contents go.
 pub(crate) const TOC_MARK: &str = "<!--contents-->";
 
@@ -199,8 +202,14 @@ impl Doc {
             .insert(key.to_string(), format!("Table {}", self.tables));
         let _ = write!(
             self.body,
-            "<table id=\"{}\"><caption><b>Table {}.</b> {caption}</caption><thead><tr>",
+            "<table id=\"{}\"{}><caption><b>Table {}.</b> {caption}</caption><thead><tr>",
             esc(key),
+            // A short table stays on one page with its caption.
+            if rows.len() <= SHORT_TABLE_ROWS {
+                " class=\"short\""
+            } else {
+                ""
+            },
             self.tables
         );
         for c in cols {

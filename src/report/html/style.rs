@@ -30,13 +30,15 @@ td.n, th.n { text-align: right; font-variant-numeric: tabular-nums; white-space:
 td.ok { color: var(--ok); font-weight: 600; }
 td.bad { color: var(--bad); font-weight: 700; }
 thead { display: table-header-group; }
+table.short { break-inside: avoid; }
+caption { break-after: avoid; }
 tr { break-inside: avoid; }
 figure { margin: 3mm 0 5mm; break-inside: avoid; }
 figure svg { display: block; width: 100%; height: auto; }
 figure.half svg { width: 100%; }
 figcaption { font-size: 9pt; margin-top: 1mm; }
 a.ref { color: var(--accent); text-decoration: none; }
-.toc ol { columns: 2; padding-left: 6mm; margin: 1mm 0 4mm; }
+.toc ol { columns: 2; list-style: none; padding-left: 0; margin: 1mm 0 4mm; }
 .toc h2 { border: none; font-size: 11pt; margin: 0; }
 .note { color: var(--muted); font-size: 8.6pt; }
 .net { margin: 2mm 0; }

@@ -192,7 +192,7 @@ pub(super) fn render(
 /// text sizes read well at the width of a printed page.
 pub(super) const SVG_WIDTH: u32 = 1120;
 /// Height of a figure drawn as SVG, in user units.
-pub(super) const SVG_HEIGHT: u32 = 720;
+pub(super) const SVG_HEIGHT: u32 = 660;
 
 /// Draws the same figure as SVG text (`SVG_WIDTH` x `SVG_HEIGHT` user units, a white ground),
 /// for inline use in the HTML report.
