@@ -35,7 +35,7 @@ caption { break-after: avoid; }
 tr { break-inside: avoid; }
 figure { margin: 3mm 0 5mm; break-inside: avoid; }
 figure svg { display: block; width: 100%; height: auto; }
-figure.half svg { width: 100%; }
+figure.point svg, figure.pond svg, figure.rec svg, figure.curves svg { max-width: 168mm; margin: 0 auto; }
 figcaption { font-size: 9pt; margin-top: 1mm; }
 a.ref { color: var(--accent); text-decoration: none; }
 .toc ol { columns: 2; list-style: none; padding-left: 0; margin: 1mm 0 4mm; }
