@@ -25,6 +25,7 @@ pub mod methods;
 pub mod model;
 pub mod report;
 pub mod util;
+pub mod validation;
 pub mod warning;
 
 pub use error::{Error, InputError};

@@ -38,6 +38,12 @@ enum Command {
         /// The scenario TOML file.
         scenario: PathBuf,
     },
+    /// Check runnel against the published tables and worked examples the tests check; exit 1 if any is off.
+    Validate {
+        /// Also write validation.md and validation.html into this folder.
+        #[arg(long)]
+        out: Option<PathBuf>,
+    },
     /// Write a commented starter scenario and a small rainfall CSV (never over an existing file).
     Init {
         /// Folder to write into.
@@ -122,6 +128,10 @@ fn main() -> ExitCode {
         Command::Estimate { scenario } => runnel::cli::estimate(&scenario).map(|text| {
             con.out(&text);
             0
+        }),
+        Command::Validate { out } => runnel::cli::validate(out.as_deref()).map(|v| {
+            con.out(&v.text);
+            u8::from(!v.pass)
         }),
         Command::Init { dir } => runnel::cli::init(&dir).map(|files| {
             for f in files {

@@ -52,6 +52,8 @@ pub struct Study {
     pub sizing: Vec<SizedDim>,
     /// Memory cap for one run, bytes.
     pub memory_limit_bytes: u64,
+    /// The report's project block (`[report]`).
+    pub report: ReportInfo,
 }
 
 impl Study {
@@ -67,6 +69,19 @@ impl Study {
         self.baseline_empty
             && matches!(limit, Limit::Relative { condition, .. } if *condition == self.baseline)
     }
+}
+
+/// The project block of the HTML report (`[report]`), each entry as written.
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct ReportInfo {
+    /// Project number.
+    pub project_number: Option<String>,
+    /// Client.
+    pub client: Option<String>,
+    /// Prepared by.
+    pub prepared_by: Option<String>,
+    /// Date of the report.
+    pub date: Option<String>,
 }
 
 /// What was read, for the report's provenance.

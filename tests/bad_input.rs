@@ -218,6 +218,9 @@ const CASES: &[Case] = &[
     case("evaporation-eleven-months", LineCol(61, 15), &["evaporation", "11 values", "12 depths per day"]),
     case("infiltration-vault-only", LineCol(60, 16), &["infiltration", "no area to infiltrate", "vaults and pipe galleries are closed"]),
     case("range-increment-no-multiple", LineCol(66, 12), &["outlet 1, diameter, increment", "no multiple", "0.5000 in", "finer `increment`"]),
+    // The report's project block (issue 14).
+    case("report-unknown-key", LineCol(78, 1), &["report, clinet", "unknown key `clinet`", "did you mean `client`"]),
+    case("report-empty", LineCol(77, 15), &["report, prepared_by", "prepared_by is empty", "leave the key out"]),
 ];
 
 fn root() -> PathBuf {

@@ -76,6 +76,15 @@ pub fn record_plot_base(record: &str, point: &str) -> String {
     format!("record-{}-{}", slug(record), slug(point))
 }
 
+/// The printable report written into every results folder.
+pub const REPORT_HTML: &str = "report.html";
+
+/// `runnel validate --out`: the validation report as Markdown.
+pub const VALIDATION_MD: &str = "validation.md";
+
+/// `runnel validate --out`: the validation report as HTML.
+pub const VALIDATION_HTML: &str = "validation.html";
+
 /// Every result file a run of `study` writes (other than the summaries),
 /// with what writes it, e.g. `("storm-10-yr.csv", "storm \"10-yr\"")`.
 pub fn result_files(study: &Study) -> Vec<(String, String)> {
@@ -125,6 +134,9 @@ fn is_result_name(name: &str) -> bool {
         return false;
     }
     matches!(name, "summary.json" | "summary.md" | "sized-scenario.toml")
+        || name == REPORT_HTML
+        || name == VALIDATION_MD
+        || name == VALIDATION_HTML
         || (name.starts_with("storm-") && (name.ends_with(".csv") || name.ends_with(".png")))
         || (name.starts_with("pond-") && name.ends_with(".png"))
         || (name.starts_with("record-")

@@ -1,7 +1,7 @@
 //! `runnel run`: simulate, size, check, and write the results.
 
 use crate::cli::output::{self, Staging};
-use crate::engine::analysis::{self, Analysis};
+use crate::engine::analysis;
 use crate::engine::network;
 use crate::error::Error;
 use crate::model::{ElementKind, Study};
@@ -117,6 +117,49 @@ fn write_record_plots(
     Ok(out)
 }
 
+/// Writes `report.html` into the staging folder; returns the seconds it took.
+///
+/// # Errors
+/// When a figure cannot be drawn or the file cannot be written.
+fn write_report_html(input: &report::html::HtmlInput<'_>, stage: &Staging) -> Result<f64, Error> {
+    let t = std::time::Instant::now();
+    let html = report::html::render(input).map_err(|e| Error::Write {
+        path: stage.temp_dir().join(output::REPORT_HTML),
+        message: e.to_string(),
+    })?;
+    stage.write(output::REPORT_HTML, html.as_bytes())?;
+    Ok(t.elapsed().as_secs_f64())
+}
+
+/// The stage timings line (`RUNNEL_TIMINGS`), for stderr.
+fn timings_line(
+    t: &crate::engine::records::Timings,
+    t_load: f64,
+    t_records: f64,
+    t_report: f64,
+    t_html: f64,
+) -> String {
+    let per = |s: f64| {
+        if s > 0.0 {
+            format!("{:.1} M intervals/s", t.intervals as f64 / s / 1e6)
+        } else {
+            "-".into()
+        }
+    };
+    format!(
+        "timings: load and read {t_load:.3} s = {}; records {t_records:.3} s (rain {:.3} s, excess and convolution {:.3} s = {}, routing {:.3} s = {}, statistics {:.3} s = {}); report {:.3} s (of which report.html {t_html:.3} s)",
+        per(t_load),
+        t.rain_s,
+        t.runoff_s,
+        per(t.runoff_s),
+        t.routing_s,
+        per(t.routing_s),
+        t.statistics_s,
+        per(t.statistics_s),
+        t_report
+    )
+}
+
 /// Runs a scenario and writes its results.
 ///
 /// # Errors
@@ -146,7 +189,8 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let run_date = now_utc();
     let s = summary::build(&study, &a, sized.outputs.clone(), &rec, run_date);
     let stage = Staging::new(&out_dir, &inputs)?;
-    let plots = write_plots(&study, &a, &stage)?;
+    let figures = report::figures::storm_figures(&study, &a);
+    let plots = write_plots(&figures, &study, &stage)?;
     let mut all_plots = plots;
     let record_plots = report::records::plots(&study, &rec, &s.records);
     all_plots.extend(write_record_plots(&record_plots, &stage)?);
@@ -161,6 +205,17 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     stage.write("summary.json", json.as_bytes())?;
     let md = report::markdown::render(&study, &s, &all_plots);
     stage.write("summary.md", md.as_bytes())?;
+    let t_html = write_report_html(
+        &report::html::HtmlInput {
+            study: &study,
+            analysis: &a,
+            summary: &s,
+            figures: &figures,
+            record_entries: &s.records,
+            record_plots: &record_plots,
+        },
+        &stage,
+    )?;
     if !study.sizing.is_empty() {
         // Paths in the sized copy are written relative to the results
         // folder; both folders are made absolute here, once.
@@ -186,25 +241,12 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
         ));
     }
     let timings = std::env::var_os("RUNNEL_TIMINGS").map(|_| {
-        let t = &rec.timings;
-        let per = |s: f64| {
-            if s > 0.0 {
-                format!("{:.1} M intervals/s", t.intervals as f64 / s / 1e6)
-            } else {
-                "-".into()
-            }
-        };
-        format!(
-            "timings: load and read {t_load:.3} s = {}; records {t_records:.3} s (rain {:.3} s, excess and convolution {:.3} s = {}, routing {:.3} s = {}, statistics {:.3} s = {}); report {:.3} s",
-            per(t_load),
-            t.rain_s,
-            t.runoff_s,
-            per(t.runoff_s),
-            t.routing_s,
-            per(t.routing_s),
-            t.statistics_s,
-            per(t.statistics_s),
-            t2.elapsed().as_secs_f64()
+        timings_line(
+            &rec.timings,
+            t_load,
+            t_records,
+            t2.elapsed().as_secs_f64(),
+            t_html,
         )
     });
     let o = summary::Out(study.units);
@@ -417,189 +459,43 @@ pub fn check_memory(study: &Study) -> Result<(), Error> {
     Ok(())
 }
 
-/// A plot to draw: caption, file name, and the drawing job.
-type PlotJob<'a> = (
-    String,
-    String,
-    Box<dyn Fn() -> Result<Vec<u8>, plot::PlotError> + Send + Sync + 'a>,
-);
-
+/// Draws the storm and pond figures (PNG) into the staging folder, each
+/// written as soon as it is drawn so that the PNGs are never all held at
+/// once, and returns (caption, file) pairs.
+///
+/// # Errors
+/// When a plot cannot be drawn or written.
 fn write_plots(
+    figures: &[report::figures::StormFigure],
     study: &Study,
-    a: &Analysis,
     stage: &Staging,
 ) -> Result<Vec<(String, String)>, Error> {
-    let o = summary::Out(study.units);
-    let fu = o.unit(Quantity::Flow).replace("m3/s", "m³/s");
-    let du = o.unit(Quantity::Depth).to_string();
-    let lu = o.unit(Quantity::Length).to_string();
-    let mut jobs: Vec<PlotJob<'_>> = Vec::new();
-    for st in &a.storms {
-        let storm = &study.storms[st.storm];
-        for (pi, p) in study.points.iter().enumerate() {
-            let file = output::storm_plot_name(&storm.name, &p.name);
-            let hydrographs: Vec<plot::Series> = st
-                .conditions
-                .iter()
-                .map(|c| plot::Series {
-                    label: study.conditions[c.condition].clone(),
-                    values: c.points[pi].iter().map(|v| o.flow(*v)).collect(),
-                })
-                .collect();
-            let limit = st
-                .conditions
-                .iter()
-                .filter(|c| c.condition != study.baseline)
-                .find_map(|c| {
-                    analysis::limit_cfs(study, &a.topology, &a.storms, pi, st.storm, c.condition)
-                })
-                .map(|l| {
-                    (
-                        format!(
-                            "limit ({})",
-                            p.limit_text.get(st.storm).cloned().unwrap_or_default()
-                        ),
-                        o.flow(l),
-                    )
-                });
-            let data = plot::StormPointPlot {
-                title: format!(
-                    "{} - {} at {}",
-                    if study.title.is_empty() {
-                        "runnel"
-                    } else {
-                        &study.title
-                    },
-                    storm.name,
-                    p.name
-                ),
-                subtitle: format!(
-                    "depth {} {du}, step {:.0} min; runnel {}",
-                    crate::util::units::sig(o.depth(storm.depth_in()), 3),
-                    study.step_h * 60.0,
-                    env!("CARGO_PKG_VERSION")
-                ),
-                step_h: st.step_h,
-                rain: st.rain_in.iter().map(|r| o.depth(*r)).collect(),
-                rain_unit: du.clone(),
-                flow_unit: fu.clone(),
-                hydrographs,
-                limit,
-            };
-            jobs.push((
-                format!("{} at {}", storm.name, p.name),
-                file,
-                Box::new(move || plot::storm_point_png(&data)),
-            ));
-        }
-        for c in &st.conditions {
-            for (i, er) in c.elements.iter().enumerate() {
-                let (Some(pr), ElementKind::Pond(pond)) = (
-                    er.as_ref().and_then(|e| e.pond.as_ref()),
-                    &study.elements[i].kind,
-                ) else {
-                    continue;
-                };
-                let outflow: Vec<f64> = er
-                    .as_ref()
-                    .map(|e| e.outflow_cfs.iter().map(|v| o.flow(*v)).collect())
-                    .unwrap_or_default();
-                let mut references = Vec::new();
-                for (k, d) in pond.outlets.iter().enumerate() {
-                    let label = crate::engine::sizing::outlet_label(
-                        k,
-                        pond.outlet_names.get(k).and_then(|n| n.as_deref()),
-                    );
-                    references.push((format!("{label} {}", kind_word(d)), o.length(d.lowest_ft())));
-                }
-                references.extend(structure_references(pond, o));
-                if let Some(t) = pond.top_ft {
-                    references.push(("top of embankment".to_string(), o.length(t)));
-                }
-                let name = &study.elements[i].name;
-                let cname = &study.conditions[c.condition];
-                let file = output::pond_plot_name(name, &storm.name, cname);
-                let data = plot::PondPlot {
-                    title: format!(
-                        "{} - {} ({cname})",
-                        summary::kind_and_name("Pond", name),
-                        storm.name
-                    ),
-                    subtitle: format!(
-                        "storage-indication routing, step {:.0} min; runnel {}",
-                        study.step_h * 60.0,
-                        env!("CARGO_PKG_VERSION")
-                    ),
-                    step_h: st.step_h,
-                    flow_unit: fu.clone(),
-                    stage_unit: lu.clone(),
-                    inflow: pr.inflow_cfs.iter().map(|v| o.flow(*v)).collect(),
-                    outflow,
-                    stage: pr.stage_ft.iter().map(|v| o.length(*v)).collect(),
-                    peak_stage: o.length(pr.summary.peak_stage_ft),
-                    references,
-                };
-                jobs.push((
-                    format!(
-                        "{}, {} ({cname})",
-                        summary::kind_and_name("pond", name),
-                        storm.name
-                    ),
-                    file,
-                    Box::new(move || plot::pond_png(&data)),
-                ));
-            }
-        }
-    }
-    // Each plot is written as soon as it is drawn, so that the PNGs are
-    // never all held at once.
-    jobs.into_par_iter()
-        .map(|(cap, file, job)| {
-            let bytes = job().map_err(|e| Error::Write {
+    figures
+        .par_iter()
+        .map(|f| {
+            let file = storm_figure_file(study, f);
+            let bytes = f.png().map_err(|e| Error::Write {
                 path: stage.temp_dir().to_path_buf(),
                 message: e.to_string(),
             })?;
             stage.write(&file, &bytes)?;
-            Ok((cap, file))
+            Ok((f.caption.clone(), file))
         })
         .collect()
 }
 
-/// Reference lines of a pond plot for its outlet structure: each barrel's
-/// inlet invert and the tailwater (fixed, or with no outflow).
-fn structure_references(pond: &crate::model::Pond, o: summary::Out) -> Vec<(String, f64)> {
-    let st = &pond.structure;
-    let mut v: Vec<(String, f64)> = st
-        .barrels
-        .iter()
-        .zip(&st.barrel_names)
-        .map(|(b, n)| (format!("barrel \"{n}\" inlet"), o.length(b.inlet_invert_ft)))
-        .collect();
-    match &st.tailwater {
-        Some(crate::methods::hydraulics::Tailwater::Fixed(x)) => {
-            v.push(("tailwater".to_string(), o.length(*x)))
+/// The PNG file name of a storm or pond figure.
+fn storm_figure_file(study: &Study, f: &report::figures::StormFigure) -> String {
+    let storm = &study.storms[f.storm].name;
+    match f.subject {
+        report::figures::Subject::Point(pi) => {
+            output::storm_plot_name(storm, &study.points[pi].name)
         }
-        Some(t) => v.push((
-            "tailwater at no outflow".to_string(),
-            o.length(t.still_ft()),
-        )),
-        None => {}
-    }
-    v
-}
-
-fn kind_word(d: &crate::methods::hydraulics::Outlet) -> &'static str {
-    use crate::methods::hydraulics::Outlet as D;
-    match d {
-        D::CircularOrifice { .. } => "orifice invert",
-        D::RectangularOrifice { .. } => "orifice invert",
-        D::SharpCrestedWeir { .. } => "weir crest",
-        D::VNotchWeir { .. } => "V-notch crest",
-        D::BroadCrestedWeir { .. } => "spillway crest",
-        D::Riser { .. } => "riser rim",
-        D::Rating { .. } => "rating start",
-        D::PerforatedRiser { .. } => "lowest row of holes",
-        D::VaryingWeir { .. } => "weir crest",
+        report::figures::Subject::Pond { element, condition } => output::pond_plot_name(
+            &study.elements[element].name,
+            storm,
+            &study.conditions[condition],
+        ),
     }
 }
 

@@ -1134,37 +1134,12 @@ mod tests {
 
     #[test]
     fn urban_cells_match_tr55_table_2_2a() {
-        // TR-55 (1986) Table 2-2a (transcribed)
-        assert_eq!(cn("open-space-fair", Soil::C), 79.0);
-        assert_eq!(cn("impervious", Soil::A), 98.0);
-        assert_eq!(cn("street-gravel", Soil::D), 91.0);
-        assert_eq!(cn("desert-landscape-artificial", Soil::B), 96.0);
-        assert_eq!(cn("residential-quarter-acre", Soil::B), 75.0);
-        assert_eq!(cn("newly-graded", Soil::B), 86.0);
-        assert_eq!(cn("commercial", Soil::D), 95.0);
+        // TR-55 (1986) Table 2-2a to 2-2d (transcribed): the cells of
+        // `validation::cases::TR55_TABLE_2_2`, the list `runnel validate` reports.
+        crate::validation::assert_group("tr55-table-2-2");
+        // TR-55 (1986) Table 2-2a (transcribed): 1/4-acre lots are 38 % impervious.
         let quarter = find("residential-quarter-acre").map(|c| c.impervious_percent);
         assert_eq!(quarter, Some(Some(38.0)));
-    }
-
-    #[test]
-    fn cultivated_cells_match_tr55_table_2_2b() {
-        // TR-55 (1986) Table 2-2b (transcribed)
-        assert_eq!(cn("fallow-bare", Soil::A), 77.0);
-        assert_eq!(
-            cn("row-crops-contoured-terraced-residue-good", Soil::D),
-            80.0
-        );
-        assert_eq!(cn("small-grain-straight-residue-good", Soil::B), 72.0);
-        assert_eq!(cn("legumes-contoured-good", Soil::A), 55.0);
-    }
-
-    #[test]
-    fn other_agricultural_cells_match_tr55_table_2_2c() {
-        // TR-55 (1986) Table 2-2c (transcribed)
-        assert_eq!(cn("meadow", Soil::B), 58.0);
-        assert_eq!(cn("woods-grass-fair", Soil::C), 76.0);
-        assert_eq!(cn("farmstead", Soil::D), 86.0);
-        assert_eq!(cn("pasture-good", Soil::A), 39.0);
     }
 
     #[test]
@@ -1175,15 +1150,6 @@ mod tests {
             let described = find(key).is_some_and(|c| c.description.contains("less than 30"));
             assert!(described, "{key} should mention note 4");
         }
-    }
-
-    #[test]
-    fn arid_cells_match_tr55_table_2_2d() {
-        // TR-55 (1986) Table 2-2d (transcribed)
-        assert_eq!(cn("arid-pinyon-juniper-fair", Soil::C), 73.0);
-        assert_eq!(cn("arid-desert-shrub-good", Soil::A), 49.0);
-        assert_eq!(cn("arid-herbaceous-poor", Soil::D), 93.0);
-        assert_eq!(cn("arid-oak-aspen-good", Soil::B), 30.0);
     }
 
     #[test]
@@ -1362,23 +1328,12 @@ mod tests {
 
     #[test]
     fn sheet_flow_n_matches_tr55_table_3_1() {
-        // TR-55 (1986) Table 3-1 (transcribed)
-        let expected = [
-            ("smooth", 0.011),
-            ("fallow", 0.05),
-            ("cultivated-light-residue", 0.06),
-            ("cultivated-heavy-residue", 0.17),
-            ("grass-short-prairie", 0.15),
-            ("grass-dense", 0.24),
-            ("grass-bermuda", 0.41),
-            ("range", 0.13),
-            ("woods-light-underbrush", 0.40),
-            ("woods-dense-underbrush", 0.80),
-        ];
-        assert_eq!(SHEET_SURFACES.len(), expected.len());
-        for (name, n) in expected {
-            assert_eq!(sheet_flow_n(name), Ok(n), "{name}");
-        }
+        // TR-55 (1986) Table 3-1 (transcribed), from `validation::cases::TR55_TABLE_3_1`.
+        assert_eq!(
+            SHEET_SURFACES.len(),
+            crate::validation::cases::TR55_TABLE_3_1.len()
+        );
+        crate::validation::assert_group("tr55-table-3-1");
     }
 
     #[test]

@@ -2,6 +2,8 @@
 //! are written in one place (`output`).
 
 pub mod csv;
+pub mod figures;
+pub mod html;
 pub mod markdown;
 pub mod plot;
 pub mod records;

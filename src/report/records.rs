@@ -607,6 +607,7 @@ pub fn plots(study: &Study, res: &RecordsResult, entries: &[RecordOut]) -> Vec<R
                     duration: plot::DurationPlot {
                         title: format!("Flow duration - {title}"),
                         flow_unit: fu.clone(),
+                        control: duration_band(study, res, &r.name, pi),
                         curves,
                     },
                     frequency: plot::FrequencyPlot {
@@ -626,6 +627,38 @@ pub fn plots(study: &Study, res: &RecordsResult, entries: &[RecordOut]) -> Vec<R
         }
     }
     out
+}
+
+/// The duration control of a point over a record as drawn (the baseline is the first curve:
+/// curves follow `simulated_conditions`, baseline first), or `None` without a checked control.
+fn duration_band(
+    study: &Study,
+    res: &RecordsResult,
+    record: &str,
+    point: usize,
+) -> Option<plot::DurationBand> {
+    let o = Out(study.units);
+    let check = res
+        .comparisons
+        .iter()
+        .filter(|c| c.record == record && c.point == point)
+        .find_map(|c| c.check)?;
+    let baseline = study
+        .simulated_conditions()
+        .iter()
+        .position(|&c| c == study.baseline)?;
+    let (lo, hi) = (check.from_cfs, check.to_cfs);
+    let last = check.levels.saturating_sub(1).max(1) as f64;
+    let levels = (0..check.levels)
+        .map(|k| o.flow((lo.ln() + (hi.ln() - lo.ln()) * k as f64 / last).exp()))
+        .collect();
+    Some(plot::DurationBand {
+        from_flow: o.flow(lo),
+        to_flow: o.flow(hi),
+        tolerance: check.tolerance,
+        baseline,
+        levels,
+    })
 }
 
 /// The "Long records" section of `summary.md` (empty without records),

@@ -18,6 +18,7 @@ mod ponds;
 pub mod raw;
 mod records;
 mod refs;
+mod report;
 pub mod sized;
 mod steps;
 mod storms;
@@ -415,6 +416,7 @@ impl<'a> Builder<'a> {
             provenance: Provenance::default(),
             sizing: sizing_raw,
             memory_limit_bytes,
+            report: self.report(&raw)?,
         };
         self.check_result_files(&study)?;
         Ok(study)

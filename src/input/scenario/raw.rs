@@ -164,6 +164,23 @@ pub struct RawScenario {
     /// Long records.
     #[serde(default)]
     pub record: Vec<Spanned<RawRecord>>,
+    /// The report's project block (optional; runnel's own keys).
+    pub report: Option<Spanned<RawReport>>,
+}
+
+/// `[report]`: free text for the project block of `report.html`, printed as
+/// written.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawReport {
+    /// The consultant's or the agency's project number.
+    pub project_number: Option<Spanned<String>>,
+    /// Who the report is for.
+    pub client: Option<Spanned<String>>,
+    /// Who prepared it.
+    pub prepared_by: Option<Spanned<String>>,
+    /// The report's date, as it should print.
+    pub date: Option<Spanned<String>>,
 }
 
 /// Rows of `[duration, depth]` pairs with their positions, e.g.

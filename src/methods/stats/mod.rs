@@ -1249,55 +1249,11 @@ mod tests {
 
     /// Exceedance probabilities of the table columns T = 1.0101, 2, 5, 10,
     /// 25, 50, 100, 200 yr.
-    const TABLE_EXCEEDANCE: [f64; 8] = [0.99, 0.5, 0.2, 0.1, 0.04, 0.02, 0.01, 0.005];
-
     #[test]
     fn exact_frequency_factors_match_the_bulletin_17b_table() {
         // Bulletin 17B frequency factors via Bedient, Huber & Vieux Table 3-4
-        let rows: [(f64, [f64; 8]); 9] = [
-            (
-                3.0,
-                [-0.667, -0.396, 0.420, 1.180, 2.278, 3.152, 4.051, 4.970],
-            ),
-            (
-                2.0,
-                [-0.990, -0.307, 0.609, 1.302, 2.219, 2.912, 3.605, 4.298],
-            ),
-            (
-                1.0,
-                [-1.588, -0.164, 0.758, 1.340, 2.043, 2.542, 3.022, 3.489],
-            ),
-            (
-                0.5,
-                [-1.955, -0.083, 0.808, 1.323, 1.910, 2.311, 2.686, 3.041],
-            ),
-            (0.0, [-2.326, 0.0, 0.842, 1.282, 1.751, 2.054, 2.326, 2.576]),
-            (
-                -0.5,
-                [-2.686, 0.083, 0.856, 1.216, 1.567, 1.777, 1.955, 2.108],
-            ),
-            (
-                -1.0,
-                [-3.022, 0.164, 0.852, 1.128, 1.366, 1.492, 1.588, 1.664],
-            ),
-            (
-                -2.0,
-                [-3.605, 0.307, 0.777, 0.895, 0.959, 0.980, 0.990, 0.995],
-            ),
-            (
-                -3.0,
-                [-4.051, 0.396, 0.636, 0.660, 0.666, 0.666, 0.667, 0.667],
-            ),
-        ];
-        for (cs, ks) in rows {
-            for (pe, k_table) in TABLE_EXCEEDANCE.iter().zip(ks) {
-                let k = frequency_factor(cs, 1.0 - pe);
-                assert!(
-                    (k - k_table).abs() <= 0.002,
-                    "Cs = {cs}, exceedance {pe}: K = {k}, table {k_table}"
-                );
-            }
-        }
+        // (`validation::cases::B17B_FREQUENCY_FACTORS`, the list `runnel validate` reports).
+        crate::validation::assert_group("b17b-frequency-factors");
     }
 
     #[test]

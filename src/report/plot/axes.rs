@@ -35,9 +35,10 @@ pub(super) fn fmt_stage(v: f64) -> String {
     }
 }
 
-/// A time in hours for a label, without trailing zeros.
+/// A time in hours for a label: always two decimals, the one time format of every figure and
+/// table (`12.00 h`, `12.08 h`).
 pub(super) fn fmt_hours(t: f64) -> String {
-    trim_decimals(format!("{t:.2}"))
+    format!("{t:.2}")
 }
 
 pub(super) fn trim_decimals(s: String) -> String {
@@ -317,5 +318,87 @@ pub(super) fn decade_ticks(lo: f64, hi: f64) -> Vec<f64> {
             .into_iter()
             .filter(|v| (v.log10().round() as i64).rem_euclid(every as i64) == 0)
             .collect()
+    }
+}
+
+/// Fraction of its own peak below which a series counts as drained, for the hydrograph window.
+pub const WINDOW_TAIL_FRACTION: f64 = 0.03;
+
+/// Fraction of its own peak above which a series counts as running, for the window's start.
+const WINDOW_START_FRACTION: f64 = 1e-3;
+
+/// The time window around the action of uniformly sampled series, hours: from the first step at
+/// which any series runs (above 0.1 % of its peak) to the step after each series' peak at which
+/// every series has fallen below [`WINDOW_TAIL_FRACTION`] of its own peak, widened by 5 % of the
+/// span on each side and rounded out to the time axis's major step, within `[0, t_end]`.
+/// `None` when no series has a positive value.
+pub fn action_window(series: &[&[f64]], step_h: f64) -> Option<(f64, f64)> {
+    if !(step_h.is_finite() && step_h > 0.0) {
+        return None;
+    }
+    let mut first = usize::MAX;
+    let mut last = 0usize;
+    let mut n = 0usize;
+    for s in series {
+        n = n.max(s.len().saturating_sub(1));
+        let Some((peak, k_peak)) = crate::methods::stats::max_first(s) else {
+            continue;
+        };
+        if !(peak > 0.0 && peak.is_finite()) {
+            continue;
+        }
+        if let Some(k) = s.iter().position(|v| *v > WINDOW_START_FRACTION * peak) {
+            first = first.min(k);
+        }
+        let tail = s
+            .iter()
+            .enumerate()
+            .skip(k_peak)
+            .find(|(_, v)| **v < WINDOW_TAIL_FRACTION * peak)
+            .map_or(s.len().saturating_sub(1), |(k, _)| k);
+        last = last.max(tail);
+    }
+    if first == usize::MAX {
+        return None;
+    }
+    let t_end = n as f64 * step_h;
+    let (a, b) = (first as f64 * step_h, last as f64 * step_h);
+    let pad = 0.05 * (b - a).max(step_h);
+    let (a, b) = ((a - pad).max(0.0), (b + pad).min(t_end));
+    let (major, _) = time_ticks((b - a).max(step_h));
+    let step = match major.as_slice() {
+        [x0, x1, ..] => x1 - x0,
+        _ => 1.0,
+    };
+    let t0 = ((a / step).floor() * step).max(0.0);
+    let t1 = ((b / step).ceil() * step).min(t_end.max(t0 + step_h));
+    Some((t0, t1))
+}
+
+/// Major and minor ticks of a time axis from `t0` to `t1` hours (multiples of the steps that
+/// [`time_ticks`] would choose for the span).
+pub(super) fn ticks_between(t0: f64, t1: f64) -> (Vec<f64>, Vec<f64>) {
+    let (major, minor) = time_ticks((t1 - t0).max(1e-9));
+    let step_of = |v: &[f64]| match v {
+        [x0, x1, ..] => x1 - x0,
+        _ => (t1 - t0).max(1e-9),
+    };
+    let within = |step: f64, max: usize| -> Vec<f64> {
+        let k0 = (t0 / step - 1e-9).ceil() as i64;
+        (0..=max as i64)
+            .map(|i| (k0 + i) as f64 * step)
+            .take_while(|t| *t <= t1 + 1e-9)
+            .collect()
+    };
+    (within(step_of(&major), 40), within(step_of(&minor), 120))
+}
+
+/// The time window to draw: the given one clipped to the run, or the whole run.
+pub(super) fn window_of(window_h: Option<(f64, f64)>, t_end: f64) -> (f64, f64) {
+    match window_h {
+        Some((a, b)) if a.is_finite() && b.is_finite() && a >= 0.0 && b > a => {
+            (a, b.min(t_end.max(a + 1e-6)))
+        }
+        _ => (0.0, t_end),
     }
 }

@@ -7,8 +7,8 @@ use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 
 use super::style::*;
+use super::surface::Surface;
 // The house type, not plotters' type of the same name.
-use super::WIDTH_PX;
 use super::style::DrawResult;
 
 /// A linear f64 axis with chosen major and minor tick positions. (plotters' own key-point
@@ -52,7 +52,7 @@ impl Ranged for TickedAxis {
 }
 
 pub(super) fn draw_path<CT>(
-    area: &DrawingArea<BitMapBackend<'_>, CT>,
+    area: &DrawingArea<Surface<'_>, CT>,
     points: Vec<(f64, f64)>,
     style: ShapeStyle,
     dash: Dash,
@@ -129,7 +129,7 @@ pub(super) fn legend_rows(
     items: &[(String, Swatch)],
 ) -> Result<LegendRows, Box<dyn StdError>> {
     let style = font(20);
-    let max_w = WIDTH_PX as i32 - 120;
+    let max_w = root.dim_in_pixel().0 as i32 - 120;
     let mut rows: Vec<Vec<(usize, i32)>> = Vec::new();
     let mut cur: Vec<(usize, i32)> = Vec::new();
     let mut cur_w = 0;
@@ -445,7 +445,7 @@ pub(super) fn layout<'a>(
 }
 
 pub(super) fn plot_bounds<CT: CoordTranslate>(
-    area: &DrawingArea<BitMapBackend<'_>, CT>,
+    area: &DrawingArea<Surface<'_>, CT>,
 ) -> (i32, i32, i32, i32) {
     let (xr, yr) = area.get_pixel_range();
     (xr.start, yr.start, xr.end, yr.end)
@@ -465,3 +465,93 @@ macro_rules! house_mesh {
 }
 
 pub(super) use house_mesh;
+
+/// The axes of a time chart with a second value axis on the right: flow on the left, and rain
+/// (inverted) or stage on the right.
+pub(super) struct TimeAxes {
+    /// Time axis, hours.
+    pub(super) t: (f64, f64),
+    /// Left axis range.
+    pub(super) y: (f64, f64),
+    /// Right axis range (high to low for an axis that hangs from the top).
+    pub(super) y2: (f64, f64),
+    /// Left axis description.
+    pub(super) y_desc: String,
+    /// Right axis description.
+    pub(super) y2_desc: String,
+    /// How many labels on the right axis.
+    pub(super) y2_labels: usize,
+}
+
+/// A time chart with its second axis.
+pub(super) type TimeChart<'a, 'b> = plotters::chart::DualCoordChartContext<
+    'a,
+    Surface<'b>,
+    Cartesian2d<TickedAxis, plotters::coord::types::RangedCoordf64>,
+    Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
+>;
+
+/// Builds the house time chart on `body` and draws its grid and both axes (the storm and the
+/// pond figures share it).
+pub(super) fn time_chart<'a, 'b>(
+    body: &'a DrawingArea<Surface<'b>, plotters::coord::Shift>,
+    ax: &TimeAxes,
+) -> Result<TimeChart<'a, 'b>, Box<dyn StdError>> {
+    let (t0, t1) = ax.t;
+    let (x_major, x_minor) = super::axes::ticks_between(t0, t1);
+    let mut chart = ChartBuilder::on(body)
+        .margin_left(24)
+        .margin_right(24)
+        .margin_top(12)
+        .margin_bottom(6)
+        .x_label_area_size(70)
+        .y_label_area_size(104)
+        .right_y_label_area_size(112)
+        .build_cartesian_2d(TickedAxis::new(t0, t1, x_major, x_minor), ax.y.0..ax.y.1)?
+        .set_secondary_coord(t0..t1, ax.y2.0..ax.y2.1);
+    house_mesh!(chart)
+        .x_label_formatter(&|v| super::axes::fmt_tick(v))
+        .y_label_formatter(&|v| super::axes::fmt_tick(v))
+        .y_labels(10)
+        .y_max_light_lines(1)
+        .x_desc("Time from start of storm (h)")
+        .y_desc(ax.y_desc.clone())
+        .draw()?;
+    chart
+        .configure_secondary_axes()
+        .axis_style(MUTED.stroke_width(1))
+        .label_style(font(19))
+        .axis_desc_style(font(22))
+        .y_label_formatter(&|v| super::axes::fmt_tick(v))
+        .y_labels(ax.y2_labels)
+        .y_desc(ax.y2_desc.clone())
+        .draw()?;
+    Ok(chart)
+}
+
+/// Points of a uniformly sampled series inside the time window `[t0, t1]`.
+pub(super) fn windowed(values: &[f64], step_h: f64, (t0, t1): (f64, f64)) -> Vec<(f64, f64)> {
+    super::axes::timed(values, step_h)
+        .filter(|(t, _)| *t >= t0 - 1e-9 && *t <= t1 + 1e-9)
+        .collect()
+}
+
+/// Peak notes with the same text after the series' name (same value, same time) merged into
+/// one note that names every series, so that equal peaks never print on top of each other.
+/// Each entry: (series label, rest of the text, note); the first note of a group is kept.
+pub(super) fn merge_equal_notes(notes: Vec<(String, String, Note)>) -> Vec<Note> {
+    let mut out: Vec<(Vec<String>, String, Note)> = Vec::new();
+    for (label, rest, note) in notes {
+        if let Some(g) = out.iter_mut().find(|g| g.1 == rest) {
+            g.0.push(label);
+        } else {
+            out.push((vec![label], rest, note));
+        }
+    }
+    out.into_iter()
+        .map(|(labels, rest, mut note)| {
+            note.text = format!("{}: {rest}", labels.join(", "));
+            note
+        })
+        .collect()
+}

@@ -17,17 +17,23 @@
 //! `draw.rs` (axes, lines, markers, titles, legends and the placement of notes).
 
 mod axes;
+mod curves;
 mod draw;
 mod pond;
 mod record;
 mod storm;
 mod style;
+mod surface;
 #[cfg(test)]
 mod tests;
 
-pub use pond::pond_png;
-pub use record::{flow_duration_png, frequency_png, overview_png};
-pub use storm::storm_point_png;
+pub use axes::{WINDOW_TAIL_FRACTION, action_window};
+pub use curves::{pond_curves_png, pond_curves_svg};
+pub use pond::{pond_png, pond_svg};
+pub use record::{
+    flow_duration_png, flow_duration_svg, frequency_png, frequency_svg, overview_png, overview_svg,
+};
+pub use storm::{storm_point_png, storm_point_svg};
 
 /// Width of every figure, in pixels.
 pub const WIDTH_PX: u32 = 1600;
@@ -83,6 +89,8 @@ pub struct StormPointPlot {
     pub hydrographs: Vec<Series>,
     /// Optional horizontal limit line: legend text and flow.
     pub limit: Option<(String, f64)>,
+    /// Time window shown, hours (`None`: the whole run); see [`action_window`].
+    pub window_h: Option<(f64, f64)>,
 }
 
 /// Inflow, outflow and water-surface stage of one pond for one storm.
@@ -108,6 +116,8 @@ pub struct PondPlot {
     pub peak_stage: f64,
     /// Reference elevations drawn as labelled dashed lines (outlet inverts, crests, the top).
     pub references: Vec<(String, f64)>,
+    /// Time window shown, hours (`None`: the whole run); see [`action_window`].
+    pub window_h: Option<(f64, f64)>,
 }
 
 /// Flow-duration curves, one per condition.
@@ -119,6 +129,24 @@ pub struct DurationPlot {
     pub flow_unit: String,
     /// Per condition: (fraction of time equalled or exceeded, 0..1; flow), sorted.
     pub curves: Vec<(String, Vec<(f64, f64)>)>,
+    /// The duration control at this point, if it has one: shaded, with its allowance drawn.
+    pub control: Option<DurationBand>,
+}
+
+/// A flow-duration control as drawn: the controlled flow range, the allowance over the
+/// baseline's curve, and the levels at which a condition's curve exceeds it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DurationBand {
+    /// Lowest controlled flow, in the flow unit.
+    pub from_flow: f64,
+    /// Highest controlled flow, in the flow unit.
+    pub to_flow: f64,
+    /// Relative tolerance on the baseline's time (0.1 = 10 %).
+    pub tolerance: f64,
+    /// Index into `curves` of the baseline.
+    pub baseline: usize,
+    /// Flow levels compared (in the flow unit), evenly spaced in log over the range.
+    pub levels: Vec<f64>,
 }
 
 /// Annual peak flows against return period, with the fitted curve of each condition.
@@ -145,4 +173,29 @@ pub struct OverviewPlot {
     pub day_labels_start: (i32, u32, u32),
     /// Per condition: one value per day, starting at day 0.
     pub daily_max: Vec<(String, Vec<f64>)>,
+}
+
+/// A pond's stage-storage and stage-discharge relations at the same stages.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PondCurvesPlot {
+    /// First title line.
+    pub title: String,
+    /// Second, smaller title line.
+    pub subtitle: String,
+    /// Unit of stage.
+    pub stage_unit: String,
+    /// Unit of volume.
+    pub volume_unit: String,
+    /// Unit of flow.
+    pub flow_unit: String,
+    /// Stages, rising, in the stage unit.
+    pub stages: Vec<f64>,
+    /// Storage at each stage.
+    pub storage: Vec<f64>,
+    /// Each outlet device: legend text and its discharge at each stage.
+    pub devices: Vec<(String, Vec<f64>)>,
+    /// Total discharge at each stage.
+    pub total: Vec<f64>,
+    /// Top of the embankment, in the stage unit.
+    pub top: Option<f64>,
 }

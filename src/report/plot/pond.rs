@@ -11,10 +11,15 @@ use crate::methods::stats::max_first;
 /// Inflow and outflow of a pond (left axis) and its water-surface elevation (right axis), with
 /// a labelled dashed line at each reference elevation and the peaks marked.
 pub fn pond_png(p: &PondPlot) -> Result<Vec<u8>, PlotError> {
-    encode_png(draw_pond(p)?)
+    draw_pond(p, Target::Png)?.png()
 }
 
-pub(super) fn draw_pond(p: &PondPlot) -> Result<Canvas, PlotError> {
+/// The same figure as SVG text, for the HTML report.
+pub fn pond_svg(p: &PondPlot) -> Result<String, PlotError> {
+    Ok(draw_pond(p, Target::Svg)?.svg())
+}
+
+pub(super) fn draw_pond(p: &PondPlot, target: Target) -> Result<Drawn, PlotError> {
     let name = plot_name("pond plot", &p.title);
     let dt = check_step(&name, p.step_h)?;
     let n = [p.inflow.len(), p.outflow.len(), p.stage.len()]
@@ -23,7 +28,10 @@ pub(super) fn draw_pond(p: &PondPlot) -> Result<Canvas, PlotError> {
         .unwrap_or(0)
         .saturating_sub(1);
     let t_end = time_end(&name, n, dt)?;
-    let flows = p.inflow.iter().chain(&p.outflow).copied();
+    let win = window_of(p.window_h, t_end);
+    let in_win =
+        |v: &[f64]| -> Vec<f64> { windowed(v, dt, win).into_iter().map(|(_, q)| q).collect() };
+    let flows = in_win(&p.inflow).into_iter().chain(in_win(&p.outflow));
     let (q_lo, q_hi) = value_range(flows, 1.3).map_err(|m| input_error(&name, m))?;
     let stages = p
         .stage
@@ -32,7 +40,6 @@ pub(super) fn draw_pond(p: &PondPlot) -> Result<Canvas, PlotError> {
         .chain(std::iter::once(p.peak_stage))
         .chain(p.references.iter().map(|(_, v)| *v));
     let (s_lo, s_hi) = padded_range(stages).map_err(|m| input_error(&name, m))?;
-    let (x_major, x_minor) = time_ticks(t_end);
 
     let inflow_c = colour_of(0);
     let outflow_c = colour_of(1);
@@ -56,49 +63,28 @@ pub(super) fn draw_pond(p: &PondPlot) -> Result<Canvas, PlotError> {
         ),
     ];
 
-    render(&name, |root| {
-        let (body, foot, rows) = layout(root, &p.title, &p.subtitle, &legend)?;
-        let mut chart = ChartBuilder::on(&body)
-            .margin_left(24)
-            .margin_right(24)
-            .margin_top(12)
-            .margin_bottom(6)
-            .x_label_area_size(70)
-            .y_label_area_size(104)
-            .right_y_label_area_size(112)
-            .build_cartesian_2d(
-                TickedAxis::new(0.0, t_end, x_major.clone(), x_minor.clone()),
-                q_lo..q_hi,
-            )?
-            .set_secondary_coord(0.0..t_end, s_lo..s_hi);
-        house_mesh!(chart)
-            .x_label_formatter(&|v| fmt_tick(v))
-            .y_label_formatter(&|v| fmt_tick(v))
-            .y_labels(10)
-            .y_max_light_lines(1)
-            .x_desc("Time from start of storm (h)")
-            .y_desc(format!("Flow ({})", p.flow_unit))
-            .draw()?;
-        chart
-            .configure_secondary_axes()
-            .axis_style(MUTED.stroke_width(1))
-            .label_style(font(19))
-            .axis_desc_style(font(22))
-            .y_label_formatter(&|v| fmt_tick(v))
-            .y_labels(10)
-            .y_desc(format!("Water-surface elevation ({})", p.stage_unit))
-            .draw()?;
+    let axes = TimeAxes {
+        t: win,
+        y: (q_lo, q_hi),
+        y2: (s_lo, s_hi),
+        y_desc: format!("Flow ({})", p.flow_unit),
+        y2_desc: format!("Water-surface elevation ({})", p.stage_unit),
+        y2_labels: 10,
+    };
 
+    render_to(target, &name, |root| {
+        let (body, foot, rows) = layout(root, &p.title, &p.subtitle, &legend)?;
+        let chart = time_chart(&body, &axes)?;
         let bounds = plot_bounds(chart.plotting_area());
         let mut crowd = Crowding::new(bounds);
         let stage_area = chart.secondary_plotting_area();
         let area = chart.plotting_area();
         let mut ref_notes = Vec::new();
         for (label, v) in p.references.iter().filter(|(_, v)| v.is_finite()) {
-            let line = vec![(0.0, *v), (t_end, *v)];
+            let line = vec![(win.0, *v), (win.1, *v)];
             crowd.trace(line.iter().map(|pt| stage_area.map_coordinate(pt)));
             draw_path(stage_area, line, REFERENCE.stroke_width(2), Dash::Short)?;
-            let (_, y) = stage_area.map_coordinate(&(t_end, *v));
+            let (_, y) = stage_area.map_coordinate(&(win.1, *v));
             ref_notes.push(Note {
                 anchor: (bounds.2 - 4, y),
                 text: format!("{label} {} {}", fmt_stage(*v), p.stage_unit),
@@ -110,12 +96,12 @@ pub(super) fn draw_pond(p: &PondPlot) -> Result<Canvas, PlotError> {
             (&p.inflow, inflow_c, Dash::Solid),
             (&p.outflow, outflow_c, Dash::Long),
         ] {
-            for run in runs(timed(values, dt)) {
+            for run in runs(windowed(values, dt, win)) {
                 crowd.trace(run.iter().map(|pt| area.map_coordinate(pt)));
                 draw_path(area, run, c.stroke_width(3), dash)?;
             }
         }
-        for run in runs(timed(&p.stage, dt)) {
+        for run in runs(windowed(&p.stage, dt, win)) {
             crowd.trace(run.iter().map(|pt| stage_area.map_coordinate(pt)));
             draw_path(stage_area, run, stage_c.stroke_width(3), Dash::Solid)?;
         }

@@ -15,10 +15,15 @@ use crate::methods::stats::max_first;
 /// exceeded (log axis). Zero flows cannot appear on a log axis and are left out (the subtitle
 /// says so).
 pub fn flow_duration_png(p: &DurationPlot) -> Result<Vec<u8>, PlotError> {
-    encode_png(draw_flow_duration(p)?)
+    draw_flow_duration(p, Target::Png)?.png()
 }
 
-pub(super) fn draw_flow_duration(p: &DurationPlot) -> Result<Canvas, PlotError> {
+/// The same figure as SVG text, for the HTML report.
+pub fn flow_duration_svg(p: &DurationPlot) -> Result<String, PlotError> {
+    Ok(draw_flow_duration(p, Target::Svg)?.svg())
+}
+
+pub(super) fn draw_flow_duration(p: &DurationPlot, target: Target) -> Result<Drawn, PlotError> {
     let name = plot_name("flow-duration plot", &p.title);
     let mut zero_left_out = false;
     let curves: Vec<(String, Vec<(f64, f64)>)> = p
@@ -55,7 +60,7 @@ pub(super) fn draw_flow_duration(p: &DurationPlot) -> Result<Canvas, PlotError> 
     } else if zero_left_out {
         subtitle.push_str("; zero flows are not shown on the log scale");
     }
-    let legend: Vec<(String, Swatch)> = curves
+    let mut legend: Vec<(String, Swatch)> = curves
         .iter()
         .enumerate()
         .map(|(i, (l, c))| {
@@ -67,6 +72,26 @@ pub(super) fn draw_flow_duration(p: &DurationPlot) -> Result<Canvas, PlotError> 
             (label, Swatch::Line(colour_of(i), 3, dash_of(i)))
         })
         .collect();
+    if let Some(band) = &p.control {
+        let base = curves
+            .get(band.baseline)
+            .map_or("baseline", |c| c.0.as_str());
+        legend.push((
+            "controlled flow range".to_string(),
+            Swatch::Bar(BAND_FILL, BAND_EDGE),
+        ));
+        legend.push((
+            format!(
+                "allowed: {base} time + {} %",
+                fmt_value(band.tolerance * 100.0)
+            ),
+            Swatch::Line(LIMIT, 2, Dash::Short),
+        ));
+        legend.push((
+            "level above the allowance".to_string(),
+            Swatch::Marker(LIMIT, Shape::Square),
+        ));
+    }
     let x_ticks = decade_ticks(x_lo, x_hi);
     let y_ticks = decade_ticks(y_lo, y_hi);
     let y_light = if (y_hi.log10() - y_lo.log10()).abs() <= 5.0 {
@@ -75,7 +100,7 @@ pub(super) fn draw_flow_duration(p: &DurationPlot) -> Result<Canvas, PlotError> 
         Vec::new()
     };
 
-    render(&name, |root| {
+    render_to(target, &name, |root| {
         let (body, foot, rows) = layout(root, &p.title, &subtitle, &legend)?;
         let mut chart = ChartBuilder::on(&body)
             .margin_left(24)
@@ -98,6 +123,9 @@ pub(super) fn draw_flow_duration(p: &DurationPlot) -> Result<Canvas, PlotError> 
             .y_desc(format!("Flow ({})", p.flow_unit))
             .draw()?;
         let area = chart.plotting_area();
+        if let Some(band) = &p.control {
+            draw_control(area, band, &curves, (x_lo, x_hi), (y_lo, y_hi))?;
+        }
         for (i, (_, pts)) in curves.iter().enumerate() {
             // Clamped so that rounding at the ends can never put a point off the plot.
             let pts = pts
@@ -119,10 +147,15 @@ pub(super) const RETURN_PERIODS_YR: [f64; 13] = [
 /// Annual peak flows at their plotting positions (markers) and the fitted curve (lines) of
 /// each condition, against return period on a log axis.
 pub fn frequency_png(p: &FrequencyPlot) -> Result<Vec<u8>, PlotError> {
-    encode_png(draw_frequency(p)?)
+    draw_frequency(p, Target::Png)?.png()
 }
 
-pub(super) fn draw_frequency(p: &FrequencyPlot) -> Result<Canvas, PlotError> {
+/// The same figure as SVG text, for the HTML report.
+pub fn frequency_svg(p: &FrequencyPlot) -> Result<String, PlotError> {
+    Ok(draw_frequency(p, Target::Svg)?.svg())
+}
+
+pub(super) fn draw_frequency(p: &FrequencyPlot, target: Target) -> Result<Drawn, PlotError> {
     let name = plot_name("frequency plot", &p.title);
     let ok = |&&(t, q): &&(f64, f64)| t.is_finite() && t > 0.0 && q.is_finite();
     let all_t = p
@@ -194,7 +227,7 @@ pub(super) fn draw_frequency(p: &FrequencyPlot) -> Result<Canvas, PlotError> {
         "No annual peaks or fitted curve to show"
     };
 
-    render(&name, |root| {
+    render_to(target, &name, |root| {
         let (body, foot, rows) = layout(root, &p.title, subtitle, &legend)?;
         let mut chart = ChartBuilder::on(&body)
             .margin_left(24)
@@ -369,10 +402,15 @@ fn overview_panels(p: &OverviewPlot, z0: i64, n_days: i64) -> Vec<Panel<'_>> {
 /// The highest flow of each day over a long record against calendar years: one panel per
 /// condition, all on the same flow scale, each with its highest day labelled.
 pub fn overview_png(p: &OverviewPlot) -> Result<Vec<u8>, PlotError> {
-    encode_png(draw_overview(p)?)
+    draw_overview(p, Target::Png)?.png()
 }
 
-pub(super) fn draw_overview(p: &OverviewPlot) -> Result<Canvas, PlotError> {
+/// The same figure as SVG text, for the HTML report.
+pub fn overview_svg(p: &OverviewPlot) -> Result<String, PlotError> {
+    Ok(draw_overview(p, Target::Svg)?.svg())
+}
+
+pub(super) fn draw_overview(p: &OverviewPlot, target: Target) -> Result<Drawn, PlotError> {
     let name = plot_name("record overview", &p.title);
     let (y, m, d) = p.day_labels_start;
     let Some(z0) = calendar::day_number(y, m, d) else {
@@ -405,7 +443,7 @@ pub(super) fn draw_overview(p: &OverviewPlot) -> Result<Canvas, PlotError> {
     let subtitle = overview_subtitle(p, z0, n_days);
     let panels = overview_panels(p, z0, n_days);
 
-    render(&name, |root| {
+    render_to(target, &name, |root| {
         let (body, _, _) = layout(root, &p.title, &subtitle, &[])?;
         let n = panels.len().max(1) as u32;
         let axis_px = 70;
@@ -510,4 +548,84 @@ pub(super) fn draw_overview(p: &OverviewPlot) -> Result<Canvas, PlotError> {
         }
         Ok(())
     })
+}
+
+/// Exceedance (% of record) at which a duration curve (sorted by exceedance, flow falling)
+/// reaches `q`: interpolated in log flow, 0 above its highest flow, `None` below its lowest.
+fn exceedance_at(curve: &[(f64, f64)], q: f64) -> Option<f64> {
+    let first = curve.first()?;
+    if q > first.1 {
+        return Some(0.0);
+    }
+    for w in curve.windows(2) {
+        let [(x0, q0), (x1, q1)] = [w[0], w[1]];
+        if q <= q0 && q >= q1 {
+            let f = if q0 > q1 {
+                (q0.ln() - q.ln()) / (q0.ln() - q1.ln())
+            } else {
+                0.0
+            };
+            return Some(x0 + f * (x1 - x0));
+        }
+    }
+    None
+}
+
+/// The control band (shaded flow range), the allowance (the baseline's curve stretched by the
+/// tolerance, inside the range) and a square at each level where another condition's curve
+/// lies beyond the allowance, read from the curves as plotted.
+fn draw_control(
+    area: &DrawingArea<super::surface::Surface<'_>, impl CoordTranslate<From = (f64, f64)>>,
+    band: &super::DurationBand,
+    curves: &[(String, Vec<(f64, f64)>)],
+    (x_lo, x_hi): (f64, f64),
+    (y_lo, y_hi): (f64, f64),
+) -> super::style::DrawResult {
+    let (q0, q1) = (
+        band.from_flow.clamp(y_lo, y_hi),
+        band.to_flow.clamp(y_lo, y_hi),
+    );
+    area.draw(&Rectangle::new(
+        [(x_lo, q0), (x_hi, q1)],
+        BAND_FILL.filled(),
+    ))?;
+    for q in [q0, q1] {
+        draw_path(
+            area,
+            vec![(x_lo, q), (x_hi, q)],
+            BAND_EDGE.stroke_width(1),
+            Dash::Solid,
+        )?;
+    }
+    let Some((_, base)) = curves.get(band.baseline) else {
+        return Ok(());
+    };
+    let allowed: Vec<(f64, f64)> = band
+        .levels
+        .iter()
+        .filter_map(|&q| {
+            let x = exceedance_at(base, q)? * (1.0 + band.tolerance);
+            (x > 0.0).then_some((x.clamp(x_lo, x_hi), q.clamp(y_lo, y_hi)))
+        })
+        .collect();
+    if allowed.len() > 1 {
+        draw_path(area, allowed, LIMIT.stroke_width(2), Dash::Short)?;
+    }
+    let root = area.strip_coord_spec();
+    for (i, (_, c)) in curves.iter().enumerate() {
+        if i == band.baseline {
+            continue;
+        }
+        for &q in &band.levels {
+            let (Some(xb), Some(xc)) = (exceedance_at(base, q), exceedance_at(c, q)) else {
+                continue;
+            };
+            if xc > xb * (1.0 + band.tolerance) + 1e-9 && xc > 0.0 {
+                let at = area.map_coordinate(&(xc.clamp(x_lo, x_hi), q.clamp(y_lo, y_hi)));
+                let (ox, oy) = root.get_base_pixel();
+                draw_marker(&root, (at.0 - ox, at.1 - oy), Shape::Square, LIMIT, 4)?;
+            }
+        }
+    }
+    Ok(())
 }

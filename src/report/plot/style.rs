@@ -10,6 +10,7 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 use plotters::style::register_font;
 
+use super::surface::Surface;
 use super::{HEIGHT_PX, PlotError, WIDTH_PX};
 
 /// The bundled DejaVu Sans font (Bitstream Vera licence; see `assets/DejaVuSans-LICENSE.txt`).
@@ -32,6 +33,8 @@ pub(super) const RAIN_FILL: RGBColor = RGBColor(168, 194, 222);
 pub(super) const RAIN_EDGE: RGBColor = RGBColor(112, 142, 178);
 pub(super) const LIMIT: RGBColor = RGBColor(176, 28, 46);
 pub(super) const REFERENCE: RGBColor = RGBColor(104, 104, 104);
+pub(super) const BAND_FILL: RGBColor = RGBColor(226, 236, 214);
+pub(super) const BAND_EDGE: RGBColor = RGBColor(150, 176, 120);
 
 /// Line colours, one per condition in order. Chosen to stay apart for the common forms of
 /// colour-vision deficiency (blue/orange first); lines also differ in dash pattern.
@@ -44,7 +47,7 @@ pub(super) const SERIES_COLOURS: [RGBColor; 6] = [
     RGBColor(181, 151, 22),
 ];
 
-pub(super) type Area<'a> = DrawingArea<BitMapBackend<'a>, Shift>;
+pub(super) type Area<'a> = DrawingArea<Surface<'a>, Shift>;
 pub(super) type DrawResult = Result<(), Box<dyn StdError>>;
 
 /// Dash pattern of a line.
@@ -177,15 +180,50 @@ pub(super) fn render(
     {
         let backend = BitMapBackend::with_buffer_and_format(&mut rgb, (WIDTH_PX, HEIGHT_PX))
             .map_err(|e| draw_error(name, e))?;
-        let root = backend.into_drawing_area();
-        draw(&root)
-            .and_then(|()| root.present().map_err(Into::into))
-            .map_err(|e| draw_error(name, e))?;
+        finish(name, Surface::Bitmap(backend), draw)?;
     }
     Ok(Canvas {
         name: name.to_string(),
         rgb,
     })
+}
+
+/// Width of a figure drawn as SVG, in user units: narrower than the PNG, so that the same
+/// text sizes read well at the width of a printed page.
+pub(super) const SVG_WIDTH: u32 = 1120;
+/// Height of a figure drawn as SVG, in user units.
+pub(super) const SVG_HEIGHT: u32 = 660;
+
+/// Draws the same figure as SVG text (`SVG_WIDTH` x `SVG_HEIGHT` user units, a white ground),
+/// for inline use in the HTML report.
+pub(super) fn render_svg(
+    name: &str,
+    draw: impl for<'a> FnOnce(&Area<'a>) -> DrawResult,
+) -> Result<String, PlotError> {
+    ensure_font(name)?;
+    let mut text = String::new();
+    {
+        let backend = SVGBackend::with_string(&mut text, (SVG_WIDTH, SVG_HEIGHT));
+        finish(name, Surface::Svg(backend), |root| {
+            root.fill(&WHITE)?;
+            draw(root)
+        })?;
+    }
+    Ok(text)
+}
+
+fn finish(
+    name: &str,
+    surface: Surface<'_>,
+    draw: impl for<'a> FnOnce(&Area<'a>) -> DrawResult,
+) -> Result<(), PlotError> {
+    let root = surface.into_drawing_area();
+    draw(&root)
+        .and_then(|()| root.present().map_err(Into::into))
+        .map_err(|e| match e.downcast::<PlotError>() {
+            Ok(p) => *p,
+            Err(e) => draw_error(name, e),
+        })
 }
 
 /// Encodes a drawn figure as PNG.
@@ -195,4 +233,61 @@ pub(super) fn encode_png(canvas: Canvas) -> Result<Vec<u8>, PlotError> {
         .write_image(&canvas.rgb, WIDTH_PX, HEIGHT_PX, image::ColorType::Rgb8)
         .map_err(|e| draw_error(&canvas.name, e))?;
     Ok(png)
+}
+
+/// Which file a figure is drawn for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(super) enum Target {
+    /// Pixels, encoded as PNG.
+    Png,
+    /// SVG text, for the HTML report.
+    Svg,
+}
+
+/// A drawn figure: pixels or SVG text.
+pub(super) enum Drawn {
+    Canvas(Canvas),
+    Svg(String),
+}
+
+impl Drawn {
+    /// The PNG bytes (SVG text is returned as it is, as bytes).
+    pub(super) fn png(self) -> Result<Vec<u8>, PlotError> {
+        match self {
+            Drawn::Canvas(c) => encode_png(c),
+            Drawn::Svg(s) => Ok(s.into_bytes()),
+        }
+    }
+
+    /// The SVG text (an empty string for pixels).
+    pub(super) fn svg(self) -> String {
+        match self {
+            Drawn::Svg(s) => s,
+            Drawn::Canvas(_) => String::new(),
+        }
+    }
+
+    /// The pixels (for the figures' tests).
+    #[cfg(test)]
+    pub(super) fn canvas(self) -> Canvas {
+        match self {
+            Drawn::Canvas(c) => c,
+            Drawn::Svg(_) => Canvas {
+                name: String::new(),
+                rgb: Vec::new(),
+            },
+        }
+    }
+}
+
+/// Draws a figure for `target`.
+pub(super) fn render_to(
+    target: Target,
+    name: &str,
+    draw: impl for<'a> FnOnce(&Area<'a>) -> DrawResult,
+) -> Result<Drawn, PlotError> {
+    match target {
+        Target::Png => render(name, draw).map(Drawn::Canvas),
+        Target::Svg => render_svg(name, draw).map(Drawn::Svg),
+    }
 }

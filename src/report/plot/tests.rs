@@ -92,6 +92,7 @@ fn storm(hydrographs: Vec<Series>, rain: Vec<f64>) -> StormPointPlot {
         flow_unit: "cfs".to_string(),
         hydrographs,
         limit: Some(("allowed (existing peak)".to_string(), 12.0)),
+        window_h: None,
     }
 }
 
@@ -118,6 +119,7 @@ fn pond(inflow: Vec<f64>, outflow: Vec<f64>, stage: Vec<f64>, peak_stage: f64) -
             ("weir crest".to_string(), 52.5),
             ("top of embankment".to_string(), 54.0),
         ],
+        window_h: None,
     }
 }
 
@@ -139,7 +141,9 @@ fn storm_plot_is_a_png_of_at_least_1600_by_1000_with_every_condition_in_its_colo
 #[test]
 fn title_band_has_rendered_text() {
     let p = storm(vec![series("existing", bump(50, 20, 3.0))], vec![0.1; 20]);
-    let c = draw_storm_point(&p).expect("storm plot");
+    let c = draw_storm_point(&p, Target::Png)
+        .expect("storm plot")
+        .canvas();
     let dark = c
         .rgb
         .chunks_exact(3)
@@ -176,6 +180,7 @@ fn flow_duration_plot_is_a_png_of_at_least_1600_by_1000() {
         title: "Flow duration, demo record".to_string(),
         flow_unit: "m³/s".to_string(),
         curves: vec![("existing".to_string(), curve)],
+        control: None,
     };
     let rgb = decoded(&flow_duration_png(&p).expect("duration plot"));
     assert_eq!(colours_present(&rgb, &[colour_of(0)]), [true]);
@@ -242,6 +247,7 @@ fn empty_duration_curves_give_a_plot_not_an_error() {
         title: String::new(),
         flow_unit: "cfs".to_string(),
         curves: vec![("existing".to_string(), Vec::new())],
+        control: None,
     };
     header_ok(&flow_duration_png(&d).expect("empty duration"));
 }
@@ -283,6 +289,7 @@ fn all_zero_duration_and_record_flows_give_a_plot_not_an_error() {
         title: String::new(),
         flow_unit: "cfs".to_string(),
         curves: vec![("existing".to_string(), vec![(0.5, 0.0), (1.0, 0.0)])],
+        control: None,
     };
     header_ok(&flow_duration_png(&d).expect("zero duration"));
     let o = OverviewPlot {
@@ -307,12 +314,20 @@ fn storm_with_single_nan_and_huge_values_is_drawn_without_error() {
         ],
         vec![f64::NAN, -1.0, 0.2, 1e300],
     );
-    drawn(&draw_storm_point(&s).expect("storm with odd values"));
+    drawn(
+        &draw_storm_point(&s, Target::Png)
+            .expect("storm with odd values")
+            .canvas(),
+    );
     let s = storm(
         vec![series("largest float", vec![0.0, f64::MAX])],
         Vec::new(),
     );
-    drawn(&draw_storm_point(&s).expect("storm at f64::MAX"));
+    drawn(
+        &draw_storm_point(&s, Target::Png)
+            .expect("storm at f64::MAX")
+            .canvas(),
+    );
 }
 
 #[test]
@@ -323,16 +338,25 @@ fn pond_duration_and_frequency_with_nan_and_huge_values_are_drawn_without_error(
         vec![50.0, f64::NAN, 51.0],
         f64::NAN,
     );
-    drawn(&draw_pond(&p).expect("pond with odd values"));
+    drawn(
+        &draw_pond(&p, Target::Png)
+            .expect("pond with odd values")
+            .canvas(),
+    );
     let d = DurationPlot {
         title: String::new(),
         flow_unit: "cfs".to_string(),
+        control: None,
         curves: vec![(
             "odd".to_string(),
             vec![(0.0, 5.0), (f64::NAN, 1.0), (0.3, 1e200), (1.5, 1e-200)],
         )],
     };
-    drawn(&draw_flow_duration(&d).expect("duration with odd values"));
+    drawn(
+        &draw_flow_duration(&d, Target::Png)
+            .expect("duration with odd values")
+            .canvas(),
+    );
     let f = FrequencyPlot {
         title: String::new(),
         flow_unit: "cfs".to_string(),
@@ -342,23 +366,36 @@ fn pond_duration_and_frequency_with_nan_and_huge_values_are_drawn_without_error(
         )],
         fitted: vec![("a".to_string(), vec![(1e9, 4.0)])],
     };
-    drawn(&draw_frequency(&f).expect("frequency with odd values"));
+    drawn(
+        &draw_frequency(&f, Target::Png)
+            .expect("frequency with odd values")
+            .canvas(),
+    );
     let d = DurationPlot {
         title: String::new(),
         flow_unit: "cfs".to_string(),
+        control: None,
         curves: vec![(
             "max".to_string(),
             vec![(1e-300, f64::MAX), (1.0, f64::MIN_POSITIVE)],
         )],
     };
-    drawn(&draw_flow_duration(&d).expect("duration at the float limits"));
+    drawn(
+        &draw_flow_duration(&d, Target::Png)
+            .expect("duration at the float limits")
+            .canvas(),
+    );
     let f = FrequencyPlot {
         title: String::new(),
         flow_unit: "cfs".to_string(),
         observed: vec![("max".to_string(), vec![(f64::MAX, f64::MAX)])],
         fitted: Vec::new(),
     };
-    drawn(&draw_frequency(&f).expect("frequency at the float limits"));
+    drawn(
+        &draw_frequency(&f, Target::Png)
+            .expect("frequency at the float limits")
+            .canvas(),
+    );
 }
 
 #[test]
@@ -444,7 +481,7 @@ fn label_values_carry_report_precision() {
     assert_eq!(fmt_value(250.4), "250");
     assert_eq!(fmt_value(1.5e9), "1.500e9");
     assert_eq!(fmt_hours(12.1333), "12.13");
-    assert_eq!(fmt_hours(13.0), "13");
+    assert_eq!(fmt_hours(13.0), "13.00");
     assert_eq!(fmt_step(0.1), "6-min");
     assert_eq!(fmt_step(1.0), "1-h");
     assert_eq!(fmt_log_tick(&0.0005), "0.0005");
