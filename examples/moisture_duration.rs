@@ -62,6 +62,7 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         title,
         flow_unit: "cfs".into(),
         curves,
+        control: None,
     };
     let png = plot::flow_duration_png(&fig)?;
     let out = root.join("docs/moisture-duration.png");

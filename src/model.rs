@@ -706,6 +706,28 @@ pub enum SizedField {
 }
 
 impl SizedField {
+    /// A sized value (internal units: ft or degrees) with its unit in
+    /// `units`; a diameter, width or height also in inches or millimetres:
+    /// "1.604 ft (19.25 in)", "0.4889 m (488.9 mm)", "5.450 ft", "90 deg".
+    pub fn value_text(self, units: crate::util::units::UnitSystem, v: f64) -> String {
+        use crate::util::units::{Quantity, UnitSystem, sig};
+        if self == SizedField::Angle {
+            return format!("{} deg", sig(v, 4));
+        }
+        let length = v * Quantity::Length.output_factor(units);
+        let main = format!("{} {}", sig(length, 4), Quantity::Length.output_unit(units));
+        if !matches!(
+            self,
+            SizedField::Diameter | SizedField::Width | SizedField::Height
+        ) {
+            return main;
+        }
+        match units {
+            UnitSystem::Us => format!("{main} ({} in)", sig(v * 12.0, 4)),
+            UnitSystem::Si => format!("{main} ({} mm)", sig(length * 1000.0, 4)),
+        }
+    }
+
     /// Key as written in scenarios.
     pub fn key(self) -> &'static str {
         match self {

@@ -26,7 +26,7 @@ pub fn check(scenario: &Path) -> Result<(String, Vec<String>), Error> {
     let s = summary::build(
         &study,
         &a,
-        Vec::new(),
+        &[],
         &crate::engine::records::RecordsResult::default(),
         String::new(),
     );

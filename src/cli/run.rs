@@ -187,7 +187,7 @@ pub fn run(scenario: &Path, out: Option<&Path>, progress: bool) -> Result<RunOut
     let t_records = t1.elapsed().as_secs_f64();
     let t2 = std::time::Instant::now();
     let run_date = now_utc();
-    let s = summary::build(&study, &a, sized.outputs.clone(), &rec, run_date);
+    let s = summary::build(&study, &a, &sized.outputs, &rec, run_date);
     let stage = Staging::new(&out_dir, &inputs)?;
     let figures = report::figures::storm_figures(&study, &a);
     let plots = write_plots(&figures, &study, &stage)?;

@@ -28,14 +28,50 @@ use crate::engine::topology::Topology;
 use crate::error::Error;
 use crate::methods::hydraulics::Outlet;
 use crate::model::{ElementKind, SizedDim, SizedField, Study};
-use crate::report::summary::{SizedOut, kind_and_name};
+use crate::util::text::kind_and_name;
 use rayon::prelude::*;
 
 /// Results of sizing, for the report.
 #[derive(Debug, Clone, Default)]
 pub struct Sizing {
     /// One row per sized dimension.
-    pub outputs: Vec<SizedOut>,
+    pub outputs: Vec<SizedResult>,
+}
+
+/// One sized dimension, in internal units (ft, or degrees for an angle).
+#[derive(Debug, Clone, PartialEq)]
+pub struct SizedResult {
+    /// Pond element index.
+    pub element: usize,
+    /// 0-based outlet index.
+    pub outlet: usize,
+    /// The outlet's `name`, when the scenario gives one.
+    pub outlet_name: Option<String>,
+    /// What was sized.
+    pub field: SizedField,
+    /// Chosen value (ft or degrees).
+    pub value: f64,
+    /// Range min (ft or degrees).
+    pub min: f64,
+    /// Range max (ft or degrees).
+    pub max: f64,
+    /// Buildable increment (ft or degrees): `value` is a whole multiple of it.
+    pub increment: f64,
+    /// The storm whose limit governs (index).
+    pub governing_storm: Option<usize>,
+    /// The point or pond limit that governs, in words.
+    pub governing_check: Option<String>,
+    /// (limit - peak) / limit of the governing check.
+    pub margin: Option<f64>,
+    /// When not feasible: the limits that fail at every size, and why.
+    pub reason: Option<String>,
+}
+
+impl SizedResult {
+    /// Whether the range could meet every limit.
+    pub fn feasible(&self) -> bool {
+        self.reason.is_none()
+    }
 }
 
 /// One check that sizing must keep.
@@ -297,35 +333,7 @@ pub fn outlet_label(index: usize, name: Option<&str>) -> String {
 /// A value of a sized dimension with its unit, in the scenario's system:
 /// "1.604 ft (19.25 in)", "0.4889 m (488.9 mm)", "5.450 ft", "90 deg".
 pub fn with_unit(study: &Study, d: &SizedDim, v: f64) -> String {
-    sized_value_text(study.units, d.field, v)
-}
-
-/// A sized value (internal units: ft or degrees) with its unit in `units`;
-/// a diameter, width or height also in inches or millimetres.
-pub fn sized_value_text(
-    units: crate::util::units::UnitSystem,
-    field: SizedField,
-    v: f64,
-) -> String {
-    use crate::util::units::sig;
-    if field == SizedField::Angle {
-        return format!("{} deg", sig(v, 4));
-    }
-    let o = crate::report::summary::Out(units);
-    let lu = o.unit(crate::util::units::Quantity::Length);
-    let main = format!("{} {lu}", sig(o.length(v), 4));
-    if !matches!(
-        field,
-        SizedField::Diameter | SizedField::Width | SizedField::Height
-    ) {
-        return main;
-    }
-    match units {
-        crate::util::units::UnitSystem::Us => format!("{main} ({} in)", sig(v * 12.0, 4)),
-        crate::util::units::UnitSystem::Si => {
-            format!("{main} ({} mm)", sig(o.length(v) * 1000.0, 4))
-        }
-    }
+    d.field.value_text(study.units, v)
 }
 
 /// What every trial of a sizing reuses: the network, the storms of the
@@ -794,9 +802,8 @@ fn sized_outputs(
     dims: &[SizedDim],
     values: &[f64],
     infeasible: &[Option<String>],
-) -> Vec<SizedOut> {
+) -> Vec<SizedResult> {
     let mut outputs = Vec::new();
-    let o = crate::report::summary::Out(study.units);
     for (k, d) in dims.iter().enumerate() {
         let v = values[k];
         let at_max = {
@@ -809,33 +816,19 @@ fn sized_outputs(
             }
         };
         let governing = governing_check(study, trials, d, v, at_max);
-        let conv = |x: f64| {
-            if d.field == SizedField::Angle {
-                x
-            } else {
-                o.length(x)
-            }
-        };
         let pond_name = study.elements[d.element].name.clone();
         let outlet_name = outlet_name(study, d);
         let reason = infeasible[k].clone();
-        outputs.push(SizedOut {
-            pond: pond_name.clone(),
+        outputs.push(SizedResult {
+            element: d.element,
             outlet: d.outlet,
             outlet_name: outlet_name.clone(),
-            field: d.field.key(),
-            unit: if d.field == SizedField::Angle {
-                "deg"
-            } else {
-                o.unit(crate::util::units::Quantity::Length)
-            },
-            value: conv(v),
-            min: conv(d.min),
-            max: conv(d.max),
-            increment: conv(d.increment),
-            governing_storm: governing
-                .as_ref()
-                .map(|c| study.storms[c.storm].name.clone()),
+            field: d.field,
+            value: v,
+            min: d.min,
+            max: d.max,
+            increment: d.increment,
+            governing_storm: governing.as_ref().map(|c| c.storm),
             governing_check: governing.as_ref().map(|c| {
                 if at_max && c.pass() {
                     format!("{} (range max reached)", c.what)
@@ -851,7 +844,6 @@ fn sized_outputs(
                     .map(Check::margin)
                     .filter(|m| m.is_finite())
             },
-            feasible: reason.is_none(),
             reason: reason.clone(),
         });
         if let Some(r) = reason {

@@ -7,7 +7,7 @@ pub mod html;
 pub mod markdown;
 pub mod plot;
 pub mod records;
-pub mod structure;
 pub mod storms;
+pub mod structure;
 pub mod summary;
 pub mod table;

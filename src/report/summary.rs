@@ -497,18 +497,7 @@ impl Out {
     }
 }
 
-/// `name` with its kind in front ("pond \"basin\""), unless the name
-/// already begins with that kind ("Pond A", "Point 3"), so that no report
-/// reads "Pond Pond A". `kind` is written as given (capitalise it for a
-/// heading).
-pub fn kind_and_name(kind: &str, name: &str) -> String {
-    let first = name.split_whitespace().next().unwrap_or("");
-    if first.eq_ignore_ascii_case(kind) {
-        name.to_string()
-    } else {
-        format!("{kind} \"{name}\"")
-    }
-}
+pub use crate::util::text::kind_and_name;
 
 impl Summary {
     /// `summary.json`'s text.
@@ -520,12 +509,40 @@ impl Summary {
     }
 }
 
+/// One sized dimension in output units (lengths in the scenario's length
+/// unit; angles in degrees).
+pub fn sized_out(study: &Study, r: &crate::engine::sizing::SizedResult) -> SizedOut {
+    let o = Out(study.units);
+    let angle = r.field == crate::model::SizedField::Angle;
+    let conv = |x: f64| if angle { x } else { o.length(x) };
+    SizedOut {
+        pond: study.elements[r.element].name.clone(),
+        outlet: r.outlet,
+        outlet_name: r.outlet_name.clone(),
+        field: r.field.key(),
+        unit: if angle {
+            "deg"
+        } else {
+            o.unit(Quantity::Length)
+        },
+        value: conv(r.value),
+        min: conv(r.min),
+        max: conv(r.max),
+        increment: conv(r.increment),
+        governing_storm: r.governing_storm.map(|k| study.storms[k].name.clone()),
+        governing_check: r.governing_check.clone(),
+        margin: r.margin,
+        feasible: r.feasible(),
+        reason: r.reason.clone(),
+    }
+}
+
 /// Builds the summary from a study, its design-storm analysis, its sized
 /// outlets and its long records.
 pub fn build(
     study: &Study,
     a: &Analysis,
-    sized: Vec<SizedOut>,
+    sized: &[crate::engine::sizing::SizedResult],
     rec: &RecordsResult,
     run_date: String,
 ) -> Summary {
@@ -572,7 +589,7 @@ pub fn build(
 
     let all_pass = !comparisons.iter().any(ComparisonOut::fails)
         && pond_checks.iter().all(|c| c.pass)
-        && sized.iter().all(|s| s.feasible)
+        && sized.iter().all(|s| s.feasible())
         && a.failures.iter().all(|f| f.pass);
     Summary {
         title: study.title.clone(),
@@ -599,7 +616,7 @@ pub fn build(
         comparisons,
         pond_checks,
         graphical_checks,
-        sized,
+        sized: sized.iter().map(|r| sized_out(study, r)).collect(),
         records: crate::report::records::entries(study, rec),
         warnings,
         warning_details,

@@ -3,5 +3,6 @@
 pub mod calendar;
 pub mod interp;
 pub mod suggest;
+pub mod text;
 pub mod tolerances;
 pub mod units;

@@ -355,8 +355,7 @@ impl Builder<'_> {
             let inc = d.increment;
             let first = (d.min / inc - 1e-9).ceil() * inc;
             if first > d.max * (1.0 + 1e-12) + 1e-12 {
-                let show_v =
-                    |x: f64| crate::engine::sizing::sized_value_text(self.units, d.field, x);
+                let show_v = |x: f64| d.field.value_text(self.units, x);
                 let span = given
                     .as_ref()
                     .map(|v| v.span())

@@ -54,7 +54,9 @@ pub(super) fn rainfall(doc: &mut Doc, input: &HtmlInput<'_>) {
             StormRain::Pattern { key, .. } => {
                 format!("pattern \"{}\" scaled to the depth", esc(key))
             }
-            StormRain::Nested { depths, peak_at, .. } => format!(
+            StormRain::Nested {
+                depths, peak_at, ..
+            } => format!(
                 "nested storm from {} local depth-duration values, alternating blocks, largest at {} % of the duration",
                 depths.len(),
                 fixed(peak_at * 100.0, 0)
