@@ -1,19 +1,31 @@
 //! Piecewise-linear interpolation in tables, shared by the rainfall
 //! patterns, the unit hydrograph and user tables.
 
+/// Where `x` falls in `points` (x increasing): `Ok(i)` with
+/// `points[i - 1].0 <= x < points[i].0`, or `Err(y)` with the first y at or
+/// below the first x, the last y at or above the last x (0 without points).
+/// The one table lookup of every interpolation (linear here, the monotone
+/// cubic of the rainfall patterns).
+pub fn interval(points: &[(f64, f64)], x: f64) -> Result<usize, f64> {
+    let (Some(first), Some(last)) = (points.first(), points.last()) else {
+        return Err(0.0);
+    };
+    if x <= first.0 {
+        return Err(first.1);
+    }
+    if x >= last.0 {
+        return Err(last.1);
+    }
+    Ok(points.partition_point(|p| p.0 <= x))
+}
+
 /// Linear interpolation in `points` (x strictly increasing). Below the first
 /// x the first y is returned, above the last the last y.
 pub fn linear(points: &[(f64, f64)], x: f64) -> f64 {
-    let (Some(first), Some(last)) = (points.first(), points.last()) else {
-        return 0.0;
+    let i = match interval(points, x) {
+        Ok(i) => i,
+        Err(end) => return end,
     };
-    if x <= first.0 {
-        return first.1;
-    }
-    if x >= last.0 {
-        return last.1;
-    }
-    let i = points.partition_point(|p| p.0 <= x);
     let (x0, y0) = points[i - 1];
     let (x1, y1) = points[i];
     if x1 > x0 {

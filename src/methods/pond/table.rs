@@ -185,6 +185,19 @@ fn grid_bound(
     Ok((end, storage.volume_ft3(end)))
 }
 
+/// An embankment's top must be a number and its crest and coefficient positive.
+fn check_embankment(e: &Embankment) -> Result<(), PondError> {
+    if !e.top_ft.is_finite() {
+        return Err(PondError::InvalidParameter {
+            what: "the embankment top (ft)",
+            value: e.top_ft,
+            expected: "a finite number",
+        });
+    }
+    check_positive("the embankment crest length (ft)", e.crest_length_ft)?;
+    check_positive("the embankment weir coefficient", e.coefficient)
+}
+
 impl PondTable {
     /// Tabulates stage, storage, outflow and `2S/dt + O` for a time step
     /// `dt_s` (s).
@@ -264,15 +277,7 @@ impl PondTable {
             });
         }
         if let Some(e) = embankment {
-            if !e.top_ft.is_finite() {
-                return Err(PondError::InvalidParameter {
-                    what: "the embankment top (ft)",
-                    value: e.top_ft,
-                    expected: "a finite number",
-                });
-            }
-            check_positive("the embankment crest length (ft)", e.crest_length_ft)?;
-            check_positive("the embankment weir coefficient", e.coefficient)?;
+            check_embankment(e)?;
         }
         let bottom = storage.bottom_ft();
         let step = grid_step_ft;

@@ -89,16 +89,10 @@ pub fn interval_slopes(points: &[(f64, f64)], straight: Option<usize>) -> Vec<[f
 /// With `h = x_{k+1} - x_k` and `s = (x - x_k)/h`:
 /// `y = (2s^3 - 3s^2 + 1) y_k + (s^3 - 2s^2 + s) h m_k + (-2s^3 + 3s^2) y_{k+1} + (s^3 - s^2) h m_{k+1}`.
 pub fn eval(points: &[(f64, f64)], slopes: &[[f64; 2]], x: f64) -> f64 {
-    let (Some(first), Some(last)) = (points.first(), points.last()) else {
-        return 0.0;
+    let i = match crate::util::interp::interval(points, x) {
+        Ok(i) => i,
+        Err(end) => return end,
     };
-    if x <= first.0 {
-        return first.1;
-    }
-    if x >= last.0 {
-        return last.1;
-    }
-    let i = points.partition_point(|p| p.0 <= x);
     let (x0, y0) = points[i - 1];
     let (x1, y1) = points[i];
     let h = x1 - x0;
