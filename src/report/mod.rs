@@ -1,6 +1,7 @@
 //! Exporters: result structures to bytes. One file per format; the files
 //! are written in one place (`output`).
 
+pub mod check;
 pub mod csv;
 pub mod figures;
 pub mod html;
