@@ -172,7 +172,7 @@ pub const B17B_FREQUENCY_FACTORS: [(f64, [f64; 8]); 9] = [
     ),
 ];
 
-fn case(
+pub(super) fn case(
     group: &'static str,
     source: &'static str,
     quantity: String,
@@ -199,6 +199,8 @@ pub fn all() -> Vec<Case> {
     cover_cases(&mut out);
     hydrograph_cases(&mut out);
     frequency_cases(&mut out);
+    super::timing_cases::push_all(&mut out);
+    super::hydraulics_cases::push_all(&mut out);
     out
 }
 

@@ -7,7 +7,9 @@
 //! the reference file says the table was transcribed, and `from memory` where it was.
 
 pub mod cases;
+pub mod hydraulics_cases;
 pub mod report;
+pub mod timing_cases;
 
 /// One published value and how runnel computes it.
 pub struct Case {

@@ -1,0 +1,81 @@
+//! Published cases of outlet hydraulics (part of the one list, [`super::cases::all`]).
+
+use super::Case;
+use super::cases::case;
+use crate::methods::hydraulics::culvert::{Barrel, BarrelShape, entrance};
+
+/// Every case of this family.
+pub fn push_all(out: &mut Vec<Case>) {
+    culvert_cases(out);
+}
+
+/// The 36 in barrel of the reference file's section 13b cases: 100 ft long, inverts 101 and
+/// 100 ft, n 0.012.
+pub fn pipe36(entrance_word: &str) -> Option<Barrel> {
+    Some(Barrel {
+        shape: BarrelShape::Circular { diameter_ft: 3.0 },
+        length_ft: 100.0,
+        inlet_invert_ft: 101.0,
+        outlet_invert_ft: 100.0,
+        n: 0.012,
+        entrance: entrance(entrance_word)?,
+    })
+}
+
+fn culvert_cases(out: &mut Vec<Case>) {
+    // (source, entrance, Q cfs, published HW ft, relative tolerance)
+    let inlet: [(&'static str, &'static str, f64, f64, f64); 4] = [
+        (
+            "FHWA HDS-5 (2012) App. A form 1 with Table A.1 constants (transcribed); reference file section 13b",
+            "concrete-square-edge",
+            30.0,
+            2.674,
+            1e-3,
+        ),
+        (
+            "FHWA HDS-5 (2012) App. A submerged form, Table A.1 (transcribed); reference file section 13b",
+            "concrete-square-edge",
+            60.0,
+            4.863,
+            2e-4,
+        ),
+        (
+            "FHWA HDS-5 (2012) App. A submerged form, Table A.1 (transcribed); reference file section 13b",
+            "concrete-square-edge",
+            100.0,
+            9.961,
+            2e-4,
+        ),
+        (
+            "FHWA HDS-5 (2012) App. A submerged form, Table A.1 (transcribed); reference file section 13b",
+            "metal-projecting",
+            100.0,
+            12.673,
+            2e-4,
+        ),
+    ];
+    for (source, word, q, hw, rel) in inlet {
+        out.push(case(
+            "hds5-inlet-control",
+            source,
+            format!("inlet-control headwater, 36 in {word}, Q {q} cfs"),
+            "ft",
+            hw,
+            rel * hw,
+            move || pipe36(word).map_or(f64::NAN, |b| b.inlet_headwater_ft(q)),
+        ));
+    }
+    out.push(case(
+        "hds5-outlet-control",
+        "FHWA HDS-5 (2012) full-flow outlet control (from memory); reference file section 13b",
+        "outlet-control headwater, 36 in concrete-square-edge, Q 100 cfs, ke 0.5, tailwater 2 ft"
+            .into(),
+        "ft",
+        8.518,
+        3e-4 * 8.518,
+        || {
+            pipe36("concrete-square-edge")
+                .map_or(f64::NAN, |b| b.outlet_headwater_ft(100.0, Some(102.0)))
+        },
+    ));
+}
