@@ -97,12 +97,11 @@ mod tests {
     #[test]
     fn type_ii_and_iii_ratios_reproduce_the_table_f2_cubic() {
         // TR-55 (1986) Table F-2 (transcribed); values computed from it
-        let expected = [0.5546, 0.4552, 0.3789, 0.2765, 0.1760];
+        // (`validation::timing_cases`, the list `runnel validate` reports, within 0.001)
+        crate::validation::assert_group("tr55-table-f-2");
         for storm in [StormType::II, StormType::III] {
-            for (r, vs) in RATIOS.iter().zip(expected) {
-                let s = storage_ratio(storm, *r);
-                assert_abs_diff_eq!(s.vs_over_vr, vs, epsilon = 0.001);
-                assert!(!s.outside_range);
+            for r in RATIOS {
+                assert!(!storage_ratio(storm, r).outside_range);
             }
         }
     }
@@ -110,12 +109,11 @@ mod tests {
     #[test]
     fn type_i_and_ia_ratios_reproduce_the_table_f2_cubic() {
         // TR-55 (1986) Table F-2 (transcribed); values computed from it
-        let expected = [0.5029, 0.3806, 0.2887, 0.1788, 0.1326];
+        // (`validation::timing_cases`, the list `runnel validate` reports, within 0.001)
+        crate::validation::assert_group("tr55-table-f-2");
         for storm in [StormType::I, StormType::IA] {
-            for (r, vs) in RATIOS.iter().zip(expected) {
-                let s = storage_ratio(storm, *r);
-                assert_abs_diff_eq!(s.vs_over_vr, vs, epsilon = 0.001);
-                assert!(!s.outside_range);
+            for r in RATIOS {
+                assert!(!storage_ratio(storm, r).outside_range);
             }
         }
     }
