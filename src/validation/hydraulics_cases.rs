@@ -3,10 +3,45 @@
 use super::Case;
 use super::cases::case;
 use crate::methods::hydraulics::culvert::{Barrel, BarrelShape, entrance};
+use crate::methods::hydraulics::submerged::villemonte_factor;
 
 /// Every case of this family.
 pub fn push_all(out: &mut Vec<Case>) {
     culvert_cases(out);
+    villemonte_cases(out);
+}
+
+/// Villemonte (1947) (from memory), reference file section 13c: (H2/H1, factor at n 1.5,
+/// factor at n 2.5).
+pub const VILLEMONTE_1947: [(f64, f64, f64); 4] = [
+    (0.2, 0.9646, 0.9931),
+    (0.5, 0.8454, 0.9278),
+    (0.8, 0.6163, 0.7210),
+    (0.95, 0.3671, 0.4426),
+];
+
+fn villemonte_cases(out: &mut Vec<Case>) {
+    const SOURCE: &str = "Villemonte (1947) (from memory); reference file section 13c";
+    for (r, n15, n25) in VILLEMONTE_1947 {
+        out.push(case(
+            "villemonte-1947",
+            SOURCE,
+            format!("submergence factor, H2/H1 {r}, n 1.5"),
+            "",
+            n15,
+            2e-4 * n15,
+            move || villemonte_factor(1.0, r, 1.5),
+        ));
+        out.push(case(
+            "villemonte-1947",
+            SOURCE,
+            format!("submergence factor, H2/H1 {r}, n 2.5"),
+            "",
+            n25,
+            2e-4 * n25,
+            move || villemonte_factor(2.0, 2.0 * r, 2.5),
+        ));
+    }
 }
 
 /// The 36 in barrel of the reference file's section 13b cases: 100 ft long, inverts 101 and

@@ -7,7 +7,7 @@ use crate::methods::cover::shallow_velocity_coefficient;
 use crate::methods::graphical_peak::{StormType, unit_peak_csm_per_in};
 use crate::methods::rainfall::NrcsType;
 use crate::methods::rainfall::tables::{PATTERN_TIMES_H, TYPE_I, TYPE_IA, TYPE_II, TYPE_III};
-use crate::methods::storage_estimate::storage_ratio;
+use crate::methods::storage_estimate::{runoff_volume_ft3, storage_ratio, tr55_runoff_volume_acft};
 use crate::methods::timing::{
     Section, Segment, shallow_velocity_fps, sheet_flow_time_h, time_of_concentration_h,
     watershed_lag_h,
@@ -238,4 +238,24 @@ fn storage_cases(out: &mut Vec<Case>) {
             ));
         }
     }
+    const VR: &str =
+        "TR-55 (1986) chapter 6, Vr = 53.33 Q Am (from memory, reference file section 10)";
+    out.push(case(
+        "tr55-ch6-runoff-volume",
+        VR,
+        "runoff volume of 1 in over 1 mi2 (Q A)".into(),
+        "acre-ft",
+        53.33,
+        0.005,
+        || runoff_volume_ft3(1.0, 640.0) / 43_560.0,
+    ));
+    out.push(case(
+        "tr55-ch6-runoff-volume",
+        VR,
+        "runoff volume 53.33 Q Am of 2.5 in over 0.75 mi2".into(),
+        "acre-ft",
+        99.99375,
+        1e-9,
+        || tr55_runoff_volume_acft(2.5, 0.75),
+    ));
 }

@@ -253,21 +253,8 @@ mod tests {
         // Villemonte (1947) (from memory); reference file section 13c [C]:
         // H2/H1 = 0.2, 0.5, 0.8, 0.95 -> 0.9646, 0.8454, 0.6163, 0.3671 (n 1.5)
         // and 0.9931, 0.9278, 0.7210, 0.4426 (n 2.5).
-        let r = [0.2, 0.5, 0.8, 0.95];
-        let n15 = [0.9646, 0.8454, 0.6163, 0.3671];
-        let n25 = [0.9931, 0.9278, 0.7210, 0.4426];
-        for i in 0..4 {
-            assert_relative_eq!(
-                villemonte_factor(1.0, r[i], 1.5),
-                n15[i],
-                max_relative = 2e-4
-            );
-            assert_relative_eq!(
-                villemonte_factor(2.0, 2.0 * r[i], 2.5),
-                n25[i],
-                max_relative = 2e-4
-            );
-        }
+        // (`validation::hydraulics_cases::VILLEMONTE_1947`, the list `runnel validate` reports)
+        crate::validation::assert_group("villemonte-1947");
         assert_eq!(villemonte_factor(1.0, 0.0, 1.5), 1.0);
         assert_eq!(villemonte_factor(1.0, 1.0, 1.5), 0.0);
     }
