@@ -2,6 +2,7 @@
 
 use super::Case;
 use super::cases::case;
+use crate::methods::hydraulics::Outlet;
 use crate::methods::hydraulics::culvert::{Barrel, BarrelShape, entrance};
 use crate::methods::hydraulics::submerged::villemonte_factor;
 
@@ -9,6 +10,34 @@ use crate::methods::hydraulics::submerged::villemonte_factor;
 pub fn push_all(out: &mut Vec<Case>) {
     culvert_cases(out);
     villemonte_cases(out);
+    weir_cases(out);
+}
+
+/// Heads (ft) at which the USBR contracted-weir form is checked.
+pub const USBR_CONTRACTED_HEADS_FT: [f64; 4] = [0.1, 0.3, 0.6, 1.0];
+
+fn weir_cases(out: &mut Vec<Case>) {
+    for h in USBR_CONTRACTED_HEADS_FT {
+        // The published form evaluated at the head.
+        let usbr = 3.33 * (3.0 - 0.2 * h) * h.powf(1.5);
+        out.push(case(
+            "usbr-contracted-weir",
+            "USBR Water Measurement Manual (2001) standard contracted weir Q = 3.33 (L - 0.2 H) H^1.5 (transcribed)",
+            format!("sharp-crested weir, L 3 ft, two contractions, C 3.33, H {h} ft"),
+            "cfs",
+            usbr,
+            1e-12 * usbr,
+            move || {
+                Outlet::SharpCrestedWeir {
+                    crest_ft: 0.0,
+                    length_ft: 3.0,
+                    coefficient: 3.33,
+                    contractions: 2,
+                }
+                .flow_cfs(h)
+            },
+        ));
+    }
 }
 
 /// Villemonte (1947) (from memory), reference file section 13c: (H2/H1, factor at n 1.5,
