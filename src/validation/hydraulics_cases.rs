@@ -4,13 +4,40 @@ use super::Case;
 use super::cases::case;
 use crate::methods::hydraulics::Outlet;
 use crate::methods::hydraulics::culvert::{Barrel, BarrelShape, entrance};
-use crate::methods::hydraulics::submerged::villemonte_factor;
+use crate::methods::hydraulics::submerged::{Perforation, perforated_riser_cfs, villemonte_factor};
 
 /// Every case of this family.
 pub fn push_all(out: &mut Vec<Case>) {
     culvert_cases(out);
     villemonte_cases(out);
     weir_cases(out);
+    riser_cases(out);
+}
+
+/// McEnroe et al. (1988) perforated-riser approximation (from memory), reference file
+/// section 13c: Ap 0.5 ft2, Hs 2 ft, Cp 0.61; (head H ft, Q cfs).
+pub const MCENROE_1988: [(f64, f64); 5] = [
+    (0.5, 0.2883),
+    (1.0, 0.8155),
+    (2.0, 2.3067),
+    (3.0, 3.4600),
+    (5.0, 4.8932),
+];
+
+fn riser_cases(out: &mut Vec<Case>) {
+    for (h, q) in MCENROE_1988 {
+        out.push(case(
+            "mcenroe-1988-riser",
+            "McEnroe et al. (1988) perforated-riser approximation (from memory); reference file section 13c",
+            format!("perforated riser, Ap 0.5 ft2, Hs 2 ft, Cp 0.61, H {h} ft"),
+            "cfs",
+            q,
+            2e-4 * q,
+            move || {
+                perforated_riser_cfs(100.0 + h, 100.0, 2.0, 0.5, 0.61, Perforation::Approximation)
+            },
+        ));
+    }
 }
 
 /// Heads (ft) at which the USBR contracted-weir form is checked.

@@ -266,20 +266,14 @@ mod tests {
         // approximation (McEnroe et al. 1988, from memory) 0.2883, 0.8155, 2.3067, 3.4600, 4.8932.
         let heads = [0.5, 1.0, 2.0, 3.0, 5.0];
         let slot = [0.2883, 0.8155, 2.3067, 3.4221, 4.8804];
-        let approx_q = [0.2883, 0.8155, 2.3067, 3.4600, 4.8932];
+        // The approximation's values: `validation::hydraulics_cases::MCENROE_1988`, the list
+        // `runnel validate` reports; the slot form's are derived (no published source), so they
+        // stay here.
+        crate::validation::assert_group("mcenroe-1988-riser");
         for i in 0..5 {
             let s =
                 perforated_riser_cfs(100.0 + heads[i], 100.0, 2.0, 0.5, 0.61, Perforation::Slot);
-            let a = perforated_riser_cfs(
-                100.0 + heads[i],
-                100.0,
-                2.0,
-                0.5,
-                0.61,
-                Perforation::Approximation,
-            );
             assert_relative_eq!(s, slot[i], max_relative = 2e-4);
-            assert_relative_eq!(a, approx_q[i], max_relative = 2e-4);
         }
     }
 
