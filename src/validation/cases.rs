@@ -391,4 +391,16 @@ fn frequency_cases(out: &mut Vec<Case>) {
             ));
         }
     }
+    // (skew, non-exceedance probability, K)
+    for (cs, p, k) in [(1.0, 0.99, 3.023), (-0.5, 0.99, 1.955), (-1.0, 0.5, 0.164)] {
+        out.push(case(
+            "bhv-problem-3-12",
+            "Bedient, Huber & Vieux Problem 3.12, exact K (values [C] in the reference file, matching BHV Table 3-4)",
+            format!("frequency factor K, skew {cs}, non-exceedance {p}"),
+            "",
+            k,
+            5e-4,
+            move || frequency_factor(cs, p),
+        ));
+    }
 }
