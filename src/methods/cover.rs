@@ -1384,23 +1384,11 @@ mod tests {
         // NEH 630 ch. 15 (2010) Table 15-3, checked through FHWA HEC-22 (2009)
         // Table 3-3 (transcribed, reference file 13f): V = k s^0.5 ft/s; at s = 1 %
         // the velocity is k / 10
-        let published = [
-            ("forest-heavy-litter", 2.5),
-            ("hay-meadow", 2.5),
-            ("minimum-tillage", 5.0),
-            ("contour-strip-cropped", 5.0),
-            ("woodland", 5.0),
-            ("short-grass-pasture", 7.0),
-            ("cultivated-straight-row", 9.0),
-            ("nearly-bare", 10.0),
-            ("alluvial-fan", 10.0),
-            ("grassed-waterway", 15.0),
-            ("unpaved", 16.1345),
-            ("paved", 20.3282),
-            ("upland-gully", 20.3282),
-        ];
+        // (`validation::timing_cases::NEH630_TABLE_15_3`, the list `runnel validate` reports)
+        let published = crate::validation::timing_cases::NEH630_TABLE_15_3;
+        crate::validation::assert_group("neh630-table-15-3");
         assert_eq!(SHALLOW_SURFACES.len(), published.len());
-        for (name, k) in published {
+        for &(name, k) in published {
             let got = shallow_velocity_coefficient(name).unwrap_or(f64::NAN);
             assert_abs_diff_eq!(got, k, epsilon = 1e-12);
             let v = crate::methods::timing::shallow_velocity_fps(got, 0.01);

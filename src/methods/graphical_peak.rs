@@ -231,7 +231,7 @@ pub fn pond_factor(pond_swamp_percent: f64) -> PondFactor {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use approx::{assert_abs_diff_eq, assert_relative_eq};
+    use approx::assert_relative_eq;
 
     const ALL: [StormType; 4] = [StormType::I, StormType::IA, StormType::II, StormType::III];
 
@@ -240,25 +240,24 @@ mod tests {
         // TR-55 (1986) Table F-1 (transcribed); values computed from it: log10(1) = 0
         let u = unit_peak_csm_per_in(StormType::II, 0.1, 1.0);
         assert_relative_eq!(u.qu_csm_per_in, 10f64.powf(2.55323), max_relative = 1e-12);
-        assert_abs_diff_eq!(u.qu_csm_per_in, 357.5, epsilon = 0.1);
+        // 357.5 within 0.1: `validation::timing_cases`, the list `runnel validate` reports
+        crate::validation::assert_group("tr55-table-f-1");
         assert!(!u.tc_clamped && !u.ia_over_p_clamped);
     }
 
     #[test]
     fn unit_peak_cells_match_the_table_f1_polynomial() {
         // TR-55 (1986) Table F-1 (transcribed); values computed from it
+        // (the cells 596.83, 40.85 and 67.37 within 0.01 are `validation::timing_cases`,
+        // the list `runnel validate` reports)
+        crate::validation::assert_group("tr55-table-f-1");
         // Type III, Ia/P 0.30, Tc 0.1 h: 2.39628 + 0.51202 - 0.13245 = 2.77585
-        let u = unit_peak_csm_per_in(StormType::III, 0.30, 0.1);
-        assert_abs_diff_eq!(u.qu_csm_per_in, 596.83, epsilon = 0.01);
         // Type I, Ia/P 0.45, Tc 10 h: 1.76312 - 0.15644 + 0.00453 = 1.61121
-        let u = unit_peak_csm_per_in(StormType::I, 0.45, 10.0);
-        assert_abs_diff_eq!(u.qu_csm_per_in, 40.85, epsilon = 0.01);
         // Type IA, Ia/P 0.20, Tc 2 h: x = log10 2; 1.91978 - 0.28215 x - 0.07020 x^2
         let x = 2f64.log10();
         let expected = 10f64.powf(1.91978 - 0.28215 * x - 0.07020 * x * x);
         let u = unit_peak_csm_per_in(StormType::IA, 0.20, 2.0);
         assert_relative_eq!(u.qu_csm_per_in, expected, max_relative = 1e-12);
-        assert_abs_diff_eq!(u.qu_csm_per_in, 67.37, epsilon = 0.01);
         // Type II, Ia/P 0.50, Tc 0.5 h: x = -0.30103
         let x = 0.5f64.log10();
         let expected = 10f64.powf(2.20282 - 0.51599 * x - 0.01259 * x * x);

@@ -89,7 +89,6 @@ pub fn tr55_runoff_volume_acft(runoff_in: f64, area_mi2: f64) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use approx::assert_abs_diff_eq;
     use approx::assert_relative_eq;
 
     const RATIOS: [f64; 5] = [0.1, 0.2, 0.3, 0.5, 0.8];
@@ -97,12 +96,11 @@ mod tests {
     #[test]
     fn type_ii_and_iii_ratios_reproduce_the_table_f2_cubic() {
         // TR-55 (1986) Table F-2 (transcribed); values computed from it
-        let expected = [0.5546, 0.4552, 0.3789, 0.2765, 0.1760];
+        // (`validation::timing_cases`, the list `runnel validate` reports, within 0.001)
+        crate::validation::assert_group("tr55-table-f-2");
         for storm in [StormType::II, StormType::III] {
-            for (r, vs) in RATIOS.iter().zip(expected) {
-                let s = storage_ratio(storm, *r);
-                assert_abs_diff_eq!(s.vs_over_vr, vs, epsilon = 0.001);
-                assert!(!s.outside_range);
+            for r in RATIOS {
+                assert!(!storage_ratio(storm, r).outside_range);
             }
         }
     }
@@ -110,12 +108,11 @@ mod tests {
     #[test]
     fn type_i_and_ia_ratios_reproduce_the_table_f2_cubic() {
         // TR-55 (1986) Table F-2 (transcribed); values computed from it
-        let expected = [0.5029, 0.3806, 0.2887, 0.1788, 0.1326];
+        // (`validation::timing_cases`, the list `runnel validate` reports, within 0.001)
+        crate::validation::assert_group("tr55-table-f-2");
         for storm in [StormType::I, StormType::IA] {
-            for (r, vs) in RATIOS.iter().zip(expected) {
-                let s = storage_ratio(storm, *r);
-                assert_abs_diff_eq!(s.vs_over_vr, vs, epsilon = 0.001);
-                assert!(!s.outside_range);
+            for r in RATIOS {
+                assert!(!storage_ratio(storm, r).outside_range);
             }
         }
     }
@@ -164,8 +161,8 @@ mod tests {
     #[test]
     fn one_inch_over_a_square_mile_is_53_33_acre_feet() {
         // TR-55 (1986) chapter 6: Vr = 53.33 Q Am (acre-ft) // from memory
-        let vr_acre_ft = runoff_volume_ft3(1.0, 640.0) / 43_560.0;
-        assert_abs_diff_eq!(vr_acre_ft, 53.33, epsilon = 0.005);
+        // (`validation::timing_cases`, the list `runnel validate` reports)
+        crate::validation::assert_group("tr55-ch6-runoff-volume");
     }
 
     #[test]
@@ -180,7 +177,8 @@ mod tests {
     fn tr55_runoff_volume_is_53_33_q_am_and_agrees_with_q_a() {
         // TR-55 (1986) chapter 6, Vr = 53.33 Q Am (from memory, reference file section 10):
         // 2.5 in over 0.75 mi2 -> 99.99 acre-ft
-        assert_abs_diff_eq!(tr55_runoff_volume_acft(2.5, 0.75), 99.99375, epsilon = 1e-9);
+        // (`validation::timing_cases`, the list `runnel validate` reports)
+        crate::validation::assert_group("tr55-ch6-runoff-volume");
         // the same volume as Q A in ft3 (480 ac = 0.75 mi2), within the rounding of 53.33
         let exact_acft = runoff_volume_ft3(2.5, 480.0) / 43_560.0;
         assert_relative_eq!(

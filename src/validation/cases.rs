@@ -4,7 +4,7 @@
 use super::Case;
 use crate::methods::cover::{Soil, lookup, shallow_velocity_coefficient, sheet_flow_n};
 use crate::methods::graphical_peak::pond_factor;
-use crate::methods::moisture::{cn_dry, cn_wet};
+use crate::methods::moisture::{MoistureClass, classify_antecedent, cn_dry, cn_wet};
 use crate::methods::runoff::{Lambda, cn_from_retention_in, retention_in, runoff_depth_in};
 use crate::methods::stats::frequency_factor;
 use crate::methods::unit_hydrograph::gamma_prf;
@@ -172,7 +172,7 @@ pub const B17B_FREQUENCY_FACTORS: [(f64, [f64; 8]); 9] = [
     ),
 ];
 
-fn case(
+pub(super) fn case(
     group: &'static str,
     source: &'static str,
     quantity: String,
@@ -199,6 +199,8 @@ pub fn all() -> Vec<Case> {
     cover_cases(&mut out);
     hydrograph_cases(&mut out);
     frequency_cases(&mut out);
+    super::timing_cases::push_all(&mut out);
+    super::hydraulics_cases::push_all(&mut out);
     out
 }
 
@@ -247,6 +249,56 @@ fn runoff_cases(out: &mut Vec<Case>) {
         0.001,
         || cn_wet(80.0),
     ));
+    moisture_threshold_cases(out);
+}
+
+/// Harper & Baker (2007) Table 4-20 (transcribed): (growing season?, class above the
+/// threshold, threshold 5-day rain in).
+pub const HB07_TABLE_4_20: [(bool, MoistureClass, f64); 4] = [
+    (false, MoistureClass::Average, 0.5),
+    (false, MoistureClass::Wet, 1.1),
+    (true, MoistureClass::Average, 1.4),
+    (true, MoistureClass::Wet, 2.1),
+];
+
+/// The 5-day depth (in) at which runnel's class changes to `class` (bisection, to 1e-12 in):
+/// the lowest depth of AMC II, or the highest depth below AMC III.
+fn amc_threshold_in(growing: bool, class: MoistureClass) -> f64 {
+    let reached = |d: f64| match class {
+        MoistureClass::Wet => classify_antecedent(d, growing) == MoistureClass::Wet,
+        _ => classify_antecedent(d, growing) != MoistureClass::Dry,
+    };
+    let (mut lo, mut hi) = (0.0, 10.0);
+    for _ in 0..80 {
+        let mid = 0.5 * (lo + hi);
+        if reached(mid) {
+            hi = mid;
+        } else {
+            lo = mid;
+        }
+    }
+    0.5 * (lo + hi)
+}
+
+fn moisture_threshold_cases(out: &mut Vec<Case>) {
+    for (growing, class, depth) in HB07_TABLE_4_20 {
+        let season = if growing { "growing" } else { "dormant" };
+        let edge = match class {
+            MoistureClass::Wet => "upper end of AMC II",
+            _ => "lower end of AMC II",
+        };
+        // Both ends of the AMC II range are included; a depth within 1e-9 in of a threshold
+        // counts as on it (rounding of summed gauge depths), hence the tolerance.
+        out.push(case(
+            "hb07-table-4-20",
+            "Harper & Baker (2007) Table 4-20 (transcribed)",
+            format!("5-day antecedent rain at the {edge}, {season} season"),
+            "in",
+            depth,
+            1e-8,
+            move || amc_threshold_in(growing, class),
+        ));
+    }
 }
 
 fn cover_cases(out: &mut Vec<Case>) {
@@ -338,5 +390,17 @@ fn frequency_cases(out: &mut Vec<Case>) {
                 move || frequency_factor(cs, 1.0 - pe),
             ));
         }
+    }
+    // (skew, non-exceedance probability, K)
+    for (cs, p, k) in [(1.0, 0.99, 3.023), (-0.5, 0.99, 1.955), (-1.0, 0.5, 0.164)] {
+        out.push(case(
+            "bhv-problem-3-12",
+            "Bedient, Huber & Vieux Problem 3.12, exact K (values [C] in the reference file, matching BHV Table 3-4)",
+            format!("frequency factor K, skew {cs}, non-exceedance {p}"),
+            "",
+            k,
+            5e-4,
+            move || frequency_factor(cs, p),
+        ));
     }
 }

@@ -7,7 +7,9 @@
 //! the reference file says the table was transcribed, and `from memory` where it was.
 
 pub mod cases;
+pub mod hydraulics_cases;
 pub mod report;
+pub mod timing_cases;
 
 /// One published value and how runnel computes it.
 pub struct Case {
@@ -94,6 +96,61 @@ mod tests {
         let all = cases::all();
         assert!(all.len() > 150, "{} cases", all.len());
         assert_cases(&all);
+    }
+
+    /// The number of cases of each group when it was last counted: a group may grow, never
+    /// shrink or vanish without this table changing with it.
+    const AT_LEAST: [(&str, usize); 26] = [
+        ("tr55-table-2-1", 35),
+        ("tr55-table-4-1", 5),
+        ("hawkins-2002", 5),
+        ("chow-amc", 2),
+        ("tr55-table-2-2", 21),
+        ("tr55-table-3-1", 10),
+        ("tr55-appendix-f", 2),
+        ("tr55-table-4-2", 5),
+        ("neh630-table-16-5", 7),
+        ("b17b-frequency-factors", 72),
+        ("chow-table-14-4-1", 92),
+        ("tr55-example-3-1", 6),
+        ("tr55-eq-3-3", 1),
+        ("bedient-example-2-6", 1),
+        ("neh630-table-15-3", 13),
+        ("tr55-table-f-1", 4),
+        ("neh630-table-16-1", 1),
+        ("tr55-table-f-2", 20),
+        ("tr55-ch6-runoff-volume", 2),
+        ("hds5-inlet-control", 4),
+        ("hds5-outlet-control", 1),
+        ("villemonte-1947", 8),
+        ("usbr-contracted-weir", 4),
+        ("mcenroe-1988-riser", 5),
+        ("hb07-table-4-20", 4),
+        ("bhv-problem-3-12", 3),
+    ];
+
+    #[test]
+    fn no_published_case_disappears_silently() {
+        let all = cases::all();
+        let mut total = 0;
+        for (name, n) in AT_LEAST {
+            let have = all.iter().filter(|c| c.group == name).count();
+            assert!(
+                have >= n,
+                "group {name}: {have} cases, at least {n} expected"
+            );
+            total += n;
+        }
+        assert!(
+            all.len() >= total,
+            "{} cases, at least {total} expected",
+            all.len()
+        );
+        assert!(
+            all.len() >= 317,
+            "{} cases, at least 317 expected",
+            all.len()
+        );
     }
 
     #[test]

@@ -601,6 +601,8 @@ mod tests {
     #[test]
     fn dormant_season_thresholds_are_half_an_inch_and_1_1_inches() {
         // Harper & Baker (2007) Table 4-20 (transcribed): AMC I < 0.5, II 0.5-1.1, III > 1.1 in.
+        // (the thresholds are `validation::cases::HB07_TABLE_4_20`, which `runnel validate` reports)
+        crate::validation::assert_group("hb07-table-4-20");
         assert_eq!(classify_antecedent(0.0, false), MoistureClass::Dry);
         assert_eq!(classify_antecedent(0.49, false), MoistureClass::Dry);
         assert_eq!(classify_antecedent(0.5, false), MoistureClass::Average);
@@ -611,6 +613,8 @@ mod tests {
     #[test]
     fn growing_season_thresholds_are_1_4_and_2_1_inches() {
         // Harper & Baker (2007) Table 4-20 (transcribed): AMC I < 1.4, II 1.4-2.1, III > 2.1 in.
+        // (the thresholds are `validation::cases::HB07_TABLE_4_20`, which `runnel validate` reports)
+        crate::validation::assert_group("hb07-table-4-20");
         assert_eq!(classify_antecedent(1.39, true), MoistureClass::Dry);
         assert_eq!(classify_antecedent(1.4, true), MoistureClass::Average);
         assert_eq!(classify_antecedent(2.1, true), MoistureClass::Average);
