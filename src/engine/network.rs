@@ -666,6 +666,42 @@ pub fn storage_cap_ft3(p: &Pond, start_ft: f64, inflow_ft3: f64) -> f64 {
     p.storage.volume_ft3(start_ft) + inflow_ft3 * 1.02 + 1.0
 }
 
+/// The storage (ft3) at the lowest stage where the pond's outflow
+/// (structure and embankment) reaches `flow_cfs`, or infinity when no stage
+/// within 2^40 ft of the bottom does. With `flow_cfs` twice the largest
+/// inflow, the water never rises above it: there every routing step
+/// releases more than any step brings. Long records bound their routing
+/// table with it, since the volume bound of [`storage_cap_ft3`] (all the
+/// water of the record) lies far above anything reached.
+pub fn outflow_cap_ft3(p: &Pond, flow_cfs: f64) -> f64 {
+    if !(flow_cfs.is_finite() && flow_cfs > 0.0) {
+        return f64::INFINITY;
+    }
+    let works = p.works();
+    let emb = p.embankment();
+    let q = |h: f64| works.total_cfs(h) + emb.as_ref().map_or(0.0, |e| e.flow_cfs(h));
+    let bottom = p.storage.bottom_ft();
+    let (mut lo, mut hi) = (bottom, bottom + 1.0);
+    let mut n = 0;
+    while q(hi) < flow_cfs {
+        lo = hi;
+        hi = bottom + 2.0 * (hi - bottom);
+        n += 1;
+        if n > 40 {
+            return f64::INFINITY;
+        }
+    }
+    for _ in 0..40 {
+        let mid = 0.5 * (lo + hi);
+        if q(mid) < flow_cfs {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    p.storage.volume_ft3(hi)
+}
+
 /// The stage-storage-discharge table of a pond up to a storage, ft3.
 ///
 /// # Errors

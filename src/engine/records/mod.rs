@@ -706,7 +706,10 @@ fn route_pond(
     if !total.is_finite() {
         return Err(run.not_finite(c, "pond", name, "inflow volume", total));
     }
-    let max_storage_ft3 = network::storage_cap_ft3(p, start_ft, total * dt_s);
+    let max_storage_ft3 = network::storage_cap_ft3(p, start_ft, total * dt_s).min(
+        network::outflow_cap_ft3(p, 2.0 * stats::max_value(&inflow))
+            .max(p.storage.volume_ft3(start_ft)),
+    );
     let table = network::pond_table_to(p, dt_s, max_storage_ft3).map_err(|source| {
         Error::Simulation(SimulationError::PondTable {
             pond: name.clone(),

@@ -220,8 +220,9 @@ fn pond_tables(doc: &mut Doc, study: &Study, i: usize, p: &Pond) -> Result<(), P
         format!("fig-curves-{i}"),
     );
     doc.para(&format!(
-        "Storage from {}; outlets in parallel with a free outfall (no tailwater); routed by storage-indication on a {} {lu} stage grid{}. {} lists the outlets, {} the stage, storage and each device's discharge, and {} draws them.",
+        "Storage from {}; {}; routed by storage-indication on a {} {lu} stage grid{}. {} lists the outlets, {} the stage, storage and each device's discharge, and {} draws them.",
         p.storage_kind.describe(),
+        esc(&crate::report::structure::structure_sentence(p, o)),
         fixed(o.length(p.grid_step_ft), 3),
         p.top_ft.map(|t| format!("; top of embankment {} {lu}", fixed(o.length(t), 2))).unwrap_or_default(),
         Doc::refer(&t_out),
