@@ -6,34 +6,7 @@ mod common;
 use common::*;
 use std::fmt::Write;
 
-fn num(v: &serde_json::Value) -> f64 {
-    v.as_f64().unwrap_or_else(|| panic!("not a number: {v}"))
-}
-
 /// `(condition, element)` -> entry, from a `records` array.
-fn by_element(
-    v: &serde_json::Value,
-) -> std::collections::BTreeMap<(String, String), serde_json::Value> {
-    v.as_array()
-        .into_iter()
-        .flatten()
-        .map(|e| {
-            let c = e["condition"].as_str().unwrap_or_default().to_string();
-            let n = e["element"].as_str().unwrap_or_default().to_string();
-            ((c, n), e.clone())
-        })
-        .collect()
-}
-
-fn assert_close(what: &str, got: f64, want: f64, rel: f64) {
-    let scale = want.abs().max(1e-12);
-    assert!(
-        (got - want).abs() <= rel * scale,
-        "{what}: runnel {got} vs independent {want} (more than {:.4} % apart)",
-        rel * 100.0
-    );
-}
-
 #[test]
 fn a_twenty_year_continuous_record_agrees_with_an_independent_implementation() {
     // Reference: tests/independent/continuous.py, written from issue 12 and the reference file

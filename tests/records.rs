@@ -178,21 +178,6 @@ fn the_shipped_record_gives_monotone_statistics_and_holds_its_mass() {
     }));
 }
 
-/// `(condition, element)` -> entry, from a `records` array.
-fn by_element(
-    v: &serde_json::Value,
-) -> std::collections::BTreeMap<(String, String), serde_json::Value> {
-    v.as_array()
-        .into_iter()
-        .flatten()
-        .map(|e| {
-            let c = e["condition"].as_str().unwrap_or_default().to_string();
-            let n = e["element"].as_str().unwrap_or_default().to_string();
-            ((c, n), e.clone())
-        })
-        .collect()
-}
-
 /// Looks up `key` = `at` in a list of objects and returns its `field`.
 fn lookup(list: &serde_json::Value, key: &str, at: f64, field: &str) -> f64 {
     list.as_array()
@@ -201,15 +186,6 @@ fn lookup(list: &serde_json::Value, key: &str, at: f64, field: &str) -> f64 {
         .find(|x| (num(&x[key]) - at).abs() < 1e-12)
         .map(|x| num(&x[field]))
         .unwrap_or_else(|| panic!("no {key} = {at} in {list}"))
-}
-
-fn assert_close(what: &str, got: f64, want: f64, rel: f64) {
-    let scale = want.abs().max(1e-12);
-    assert!(
-        (got - want).abs() <= rel * scale,
-        "{what}: runnel {got} vs independent {want} (more than {:.4} % apart)",
-        rel * 100.0
-    );
 }
 
 #[test]

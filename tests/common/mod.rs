@@ -88,3 +88,28 @@ pub fn snapshot(dir: &Path) -> std::collections::BTreeMap<PathBuf, Vec<u8>> {
     }
     out
 }
+
+/// `(condition, element)` -> entry, from a `records` array.
+pub fn by_element(
+    v: &serde_json::Value,
+) -> std::collections::BTreeMap<(String, String), serde_json::Value> {
+    v.as_array()
+        .into_iter()
+        .flatten()
+        .map(|e| {
+            let c = e["condition"].as_str().unwrap_or_default().to_string();
+            let n = e["element"].as_str().unwrap_or_default().to_string();
+            ((c, n), e.clone())
+        })
+        .collect()
+}
+
+/// Asserts `got` is within `rel` (relative) of the independent implementation's `want`.
+pub fn assert_close(what: &str, got: f64, want: f64, rel: f64) {
+    let scale = want.abs().max(1e-12);
+    assert!(
+        (got - want).abs() <= rel * scale,
+        "{what}: runnel {got} vs independent {want} (more than {:.4} % apart)",
+        rel * 100.0
+    );
+}
