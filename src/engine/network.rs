@@ -511,6 +511,10 @@ impl ElementSim for StormSim<'_> {
         vec![0.0; self.run.len]
     }
 
+    fn run_len(&self) -> usize {
+        self.run.len
+    }
+
     fn simulate(&mut self, i: usize, inflow_cfs: Vec<f64>) -> Result<Vec<f64>, SimulationError> {
         let mut result = self.run.element_step(i, inflow_cfs)?;
         let outflow = std::mem::take(&mut result.outflow_cfs);

@@ -23,8 +23,20 @@ pub trait ElementSim {
     /// Whatever stops the run at this element.
     fn simulate(&mut self, i: usize, inflow_cfs: Vec<f64>) -> Result<Vec<f64>, Self::Error>;
     /// Element `i`'s outflow back, once it has been added into its target:
-    /// to keep with the element's result or to reuse.
+    /// to keep with the element's result or to reuse. Empty when the walk
+    /// moved the outflow on instead (see [`ElementSim::keeps_outflows`]).
     fn done(&mut self, i: usize, outflow_cfs: Vec<f64>);
+    /// Whether [`ElementSim::done`] must have every outflow back. When not,
+    /// an outflow that is the first to reach its target, unlagged and of
+    /// the run's length (that of [`ElementSim::zeroed`]), becomes the
+    /// target's sum as it is, without a zeroed buffer and a pass to add
+    /// it: on a long record each such pass is a walk over millions of
+    /// values.
+    fn keeps_outflows(&self) -> bool {
+        true
+    }
+    /// The run's length in steps (the length of [`ElementSim::zeroed`]).
+    fn run_len(&self) -> usize;
 }
 
 /// Walks condition `c` of `topology` at `step_h`, and returns the flow
@@ -48,12 +60,21 @@ pub fn walk<S: ElementSim>(
             Target::Point(p) => arriving.get_mut(p),
             Target::Element(j) => inputs.get_mut(j),
         };
-        if let Some(target) = target {
-            if target.is_empty() {
-                *target = sim.zeroed();
-            }
-            add_lagged(target, &out, topology.lag_h(i), step_h);
+        let Some(target) = target else {
+            sim.done(i, out);
+            continue;
+        };
+        let lag_h = topology.lag_h(i);
+        if target.is_empty() && lag_h == 0.0 && !sim.keeps_outflows() && out.len() == sim.run_len()
+        {
+            *target = out;
+            sim.done(i, Vec::new());
+            continue;
         }
+        if target.is_empty() {
+            *target = sim.zeroed();
+        }
+        add_lagged(target, &out, lag_h, step_h);
         sim.done(i, out);
     }
     Ok(arriving)
@@ -91,12 +112,30 @@ mod tests {
         len: usize,
         seen: Vec<usize>,
         returned: Vec<usize>,
+        /// Elements whose outflow came back empty (moved on).
+        moved: Vec<usize>,
+        keeps: bool,
+    }
+
+    impl Adder {
+        fn new(len: usize, keeps: bool) -> Self {
+            Adder {
+                len,
+                seen: Vec::new(),
+                returned: Vec::new(),
+                moved: Vec::new(),
+                keeps,
+            }
+        }
     }
 
     impl ElementSim for Adder {
         type Error = ();
         fn zeroed(&mut self) -> Vec<f64> {
             vec![0.0; self.len]
+        }
+        fn run_len(&self) -> usize {
+            self.len
         }
         fn simulate(&mut self, i: usize, inflow: Vec<f64>) -> Result<Vec<f64>, ()> {
             self.seen.push(i);
@@ -106,8 +145,14 @@ mod tests {
             }
             Ok(out)
         }
-        fn done(&mut self, i: usize, _out: Vec<f64>) {
+        fn done(&mut self, i: usize, out: Vec<f64>) {
             self.returned.push(i);
+            if out.is_empty() {
+                self.moved.push(i);
+            }
+        }
+        fn keeps_outflows(&self) -> bool {
+            self.keeps
         }
     }
 
@@ -122,11 +167,7 @@ mod tests {
             ],
             2,
         );
-        let mut sim = Adder {
-            len: 4,
-            seen: Vec::new(),
-            returned: Vec::new(),
-        };
+        let mut sim = Adder::new(4, true);
         let at = walk(&t, 0, 2, 1.0, &mut sim).unwrap();
         // 0 before 1; every element handed back once.
         let pos = |i| sim.seen.iter().position(|&x| x == i).unwrap();
@@ -138,12 +179,44 @@ mod tests {
     }
 
     #[test]
+    fn moving_outflows_on_changes_no_sum() {
+        // 0 -> point 0 unlagged (moved: first in); 1 -> point 0 unlagged
+        // (added: second in); 2 -> 3 lagged (added into zeros); 3 -> point 1.
+        let t = topology(
+            &[
+                (Target::Point(0), 0.0),
+                (Target::Point(0), 0.0),
+                (Target::Element(3), 0.5),
+                (Target::Point(1), 0.0),
+            ],
+            2,
+        );
+        let mut keeps = Adder::new(5, true);
+        let mut moves = Adder::new(5, false);
+        let kept = walk(&t, 0, 2, 1.0, &mut keeps).unwrap();
+        let moved = walk(&t, 0, 2, 1.0, &mut moves).unwrap();
+        assert_eq!(kept, moved);
+        assert_eq!(moved[0], vec![3.0; 5]);
+        assert_eq!(moved[1], vec![5.5, 7.0, 7.0, 7.0, 7.0]);
+        assert!(keeps.moved.is_empty());
+        let mut firsts = moves.moved.clone();
+        firsts.sort_unstable();
+        // The first unlagged series into each point; never the lagged one.
+        assert_eq!(firsts.len(), 2);
+        assert!(!firsts.contains(&2));
+        assert_eq!(moves.returned.len(), 4);
+    }
+
+    #[test]
     fn an_error_stops_the_walk() {
         struct Fails;
         impl ElementSim for Fails {
             type Error = usize;
             fn zeroed(&mut self) -> Vec<f64> {
                 vec![0.0; 2]
+            }
+            fn run_len(&self) -> usize {
+                2
             }
             fn simulate(&mut self, i: usize, _: Vec<f64>) -> Result<Vec<f64>, usize> {
                 Err(i)

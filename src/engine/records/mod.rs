@@ -564,6 +564,15 @@ impl ElementSim for RecordSim<'_, '_> {
         self.pool.take(self.run.len)
     }
 
+    fn run_len(&self) -> usize {
+        self.run.len
+    }
+
+    /// Outflows go back to the pool, so an unlagged one may be moved on.
+    fn keeps_outflows(&self) -> bool {
+        false
+    }
+
     /// The one place where each element kind is simulated over a record:
     /// a new kind adds its arm here (and in [`network::StormRun::element_step`]).
     fn simulate(&mut self, i: usize, inflow_cfs: Vec<f64>) -> Result<Vec<f64>, Error> {
