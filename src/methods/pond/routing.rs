@@ -170,6 +170,26 @@ pub(super) fn route_each(
     start_stage_ft: f64,
     evaporation: &[(usize, f64)],
     inflow: impl Fn(usize) -> f64,
+    emit: impl FnMut(usize, f64, f64, f64, f64),
+) -> LossTotals {
+    // Without losses every loss term is exactly zero, so the loop without
+    // them gives the same bits, faster (one serial dependency fewer a step).
+    if table.infiltrates || !evaporation.is_empty() {
+        route_loop::<true>(table, n, start_stage_ft, evaporation, inflow, emit)
+    } else {
+        route_loop::<false>(table, n, start_stage_ft, &[], inflow, emit)
+    }
+}
+
+/// [`route_each`]'s loop; `LOSSES` false leaves the infiltration and
+/// evaporation terms out (the table has none and no evaporation is given).
+#[inline(always)]
+fn route_loop<const LOSSES: bool>(
+    table: &PondTable,
+    n: usize,
+    start_stage_ft: f64,
+    evaporation: &[(usize, f64)],
+    inflow: impl Fn(usize) -> f64,
     mut emit: impl FnMut(usize, f64, f64, f64, f64),
 ) -> LossTotals {
     let mut lost = LossTotals::default();
@@ -199,12 +219,12 @@ pub(super) fn route_each(
     let mut carry = two_over_dt * s0 - o0 - l_prev; // 2 S_n/dt - O_n - L_n
     for k in 1..n {
         let i_next = finite_or_zero(inflow(k));
-        while next_rate < evaporation.len() && evaporation[next_rate].0 < k {
+        while LOSSES && next_rate < evaporation.len() && evaporation[next_rate].0 < k {
             rate = evaporation[next_rate].1;
             next_rate += 1;
         }
         let mut x = i_prev + i_next + carry;
-        if rate > 0.0 {
+        if LOSSES && rate > 0.0 {
             // E_n at the step's start, no more than what is there to lose
             let e = (rate * area_prev).min(0.5 * (x - x_min)).max(0.0);
             x -= 2.0 * e;
@@ -220,6 +240,19 @@ pub(super) fn route_each(
         let sg = &segs[j];
         let f = (x - sg.indicator_cfs) * sg.inv_d_indicator;
         let o = sg.outflow_cfs + f * sg.d_outflow_cfs;
+        if !LOSSES {
+            emit(
+                k,
+                o,
+                sg.storage_ft3 + f * sg.d_storage_ft3,
+                sg.stage_ft + f * sg.d_stage_ft,
+                0.0,
+            );
+            // 2 S/dt - O = (2 S/dt + O) - 2 O
+            carry = x - 2.0 * o;
+            i_prev = i_next;
+            continue;
+        }
         let l = sg.loss_cfs + f * sg.d_loss_cfs;
         area_prev = sg.surface_ft2 + f * sg.d_surface_ft2;
         emit(

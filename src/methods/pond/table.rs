@@ -112,6 +112,9 @@ pub struct PondTable {
     /// Open water surface (ft2) at each row, for evaporation.
     pub(super) surface_ft2: Vec<f64>,
     pub(super) segments: Vec<Segment>,
+    /// Whether any row holds an infiltration loss (kept at build, so a
+    /// routing loop can leave the loss out where there is none).
+    pub(super) infiltrates: bool,
     pub(super) dt_s: f64,
     pub(super) lowest_outlet_ft: Option<f64>,
     pub(super) lowest_orifice: Option<(f64, f64)>,
@@ -391,6 +394,7 @@ impl PondTable {
             storage_ft3,
             outflow_cfs,
             indicator_cfs,
+            infiltrates: loss_cfs.iter().any(|&l| l != 0.0),
             loss_cfs,
             surface_ft2,
             segments,
@@ -417,7 +421,7 @@ impl PondTable {
 
     /// Whether the table holds an infiltration loss.
     pub fn infiltrates(&self) -> bool {
-        self.loss_cfs.iter().any(|&l| l > 0.0)
+        self.infiltrates
     }
 
     /// Infiltration (cfs) at every grid row (zeros for a pond without it).
