@@ -9,10 +9,87 @@ use crate::methods::hydraulics::submerged::{Perforation, perforated_riser_cfs, v
 /// Every case of this family.
 pub fn push_all(out: &mut Vec<Case>) {
     culvert_cases(out);
+    entrance_loss_cases(out);
     villemonte_cases(out);
     weir_cases(out);
     v_notch_cases(out);
     riser_cases(out);
+}
+
+/// The entrance-loss coefficient ke of every barrel entrance against FHWA
+/// HDS-5 (2001, FHWA-NHI-01-020) Table 12, read in a public copy: each
+/// entrance keyword with the table's row it corresponds to.
+fn entrance_loss_cases(out: &mut Vec<Case>) {
+    const HDS5_2001: &str =
+        "FHWA HDS-5 (2001) Table 12, entrance loss coefficients (read in a public copy)";
+    const MSMA: &str = "FHWA HDS-5 (2001) Table 12 as reproduced in MSMA 2nd ed. Design Chart 27.2 (the row is cut off in the HDS-5 copy read)";
+    let rows: [(&'static str, &str, f64, &'static str); 9] = [
+        (
+            "concrete-square-edge",
+            "concrete pipe, headwall, square-edge",
+            0.5,
+            HDS5_2001,
+        ),
+        (
+            "concrete-groove-headwall",
+            "concrete pipe, headwall, socket end (groove-end)",
+            0.2,
+            HDS5_2001,
+        ),
+        (
+            "concrete-groove-projecting",
+            "concrete pipe projecting from fill, socket end (groove-end)",
+            0.2,
+            HDS5_2001,
+        ),
+        (
+            "metal-headwall",
+            "corrugated metal pipe, headwall, square-edge",
+            0.5,
+            HDS5_2001,
+        ),
+        (
+            "metal-mitered",
+            "corrugated metal pipe mitered to conform to fill slope",
+            0.7,
+            HDS5_2001,
+        ),
+        (
+            "metal-projecting",
+            "corrugated metal pipe projecting from fill (no headwall)",
+            0.9,
+            HDS5_2001,
+        ),
+        (
+            "box-wingwall-30-75",
+            "concrete box, wingwalls at 30 to 75 degrees, square-edged at crown",
+            0.4,
+            HDS5_2001,
+        ),
+        (
+            "box-wingwall-90-15",
+            "concrete box, headwall (no wingwalls) square-edged on 3 edges, or wingwalls at 10 to 25 degrees square-edged at crown",
+            0.5,
+            HDS5_2001,
+        ),
+        (
+            "box-wingwall-0",
+            "concrete box, wingwalls parallel (extension of sides), square-edged at crown",
+            0.7,
+            MSMA,
+        ),
+    ];
+    for (word, row, ke, source) in rows {
+        out.push(case(
+            "hds5-entrance-loss",
+            source,
+            format!("ke of `{word}`: {row}"),
+            "-",
+            ke,
+            1e-12,
+            move || entrance(word).map_or(f64::NAN, |e| e.ke),
+        ));
+    }
 }
 
 /// The general V-notch form (Cd 0.58, 90 degrees) against the USBR Water
@@ -188,7 +265,7 @@ fn culvert_cases(out: &mut Vec<Case>) {
     }
     out.push(case(
         "hds5-outlet-control",
-        "FHWA HDS-5 (2012) full-flow outlet control (from memory); reference file section 13b",
+        "FHWA HDS-5 (2012) full-flow outlet control (form from memory; ke 0.5 of HDS-5 (2001) Table 12); reference file section 13b",
         "outlet-control headwater, 36 in concrete-square-edge, Q 100 cfs, ke 0.5, tailwater 2 ft"
             .into(),
         "ft",

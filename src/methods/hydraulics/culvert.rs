@@ -11,8 +11,14 @@
 //!
 //! The constants K, M, c, Y and Ks are those of HDS-5 Table A.1
 //! (transcribed: the reference file's section 13b, and a transcription of
-//! the HDS-5 table found by search for the box M values); the entrance-loss
-//! coefficients ke are from memory (HDS-5 Table C.2, not seen).
+//! the HDS-5 table found by search for the box M values). The entrance-loss
+//! coefficients ke are those of the 2001 edition of HDS-5
+//! (FHWA-NHI-01-020), Table 12, "Entrance Loss Coefficients, Outlet
+//! Control, Full or Partly Full", read in a public copy of that
+//! publication (the 2012 edition's Table C.2 was not seen); the row for
+//! box wingwalls parallel to the barrel is cut off in that copy and was
+//! read in the same table as reproduced in the Urban Stormwater Management
+//! Manual for Malaysia (MSMA, 2nd ed.), Design Chart 27.2.
 
 use super::G_FT_PER_S2;
 use super::not_positive;
@@ -148,14 +154,16 @@ pub struct Entrance {
     pub y: f64,
     /// Slope correction Ks (-0.5; +0.7 for mitered inlets).
     pub ks: f64,
-    /// Entrance-loss coefficient ke (outlet control), from memory.
+    /// Entrance-loss coefficient ke (outlet control): FHWA HDS-5 (2001)
+    /// Table 12.
     pub ke: f64,
     /// Whether the entrance is for a box (false: circular).
     pub for_box: bool,
 }
 
 /// The entrance types a barrel may name: `(keyword, constants, description)`.
-/// K, M, c, Y, Ks: FHWA HDS-5 (2012) Table A.1 (transcribed); ke from memory.
+/// K, M, c, Y, Ks: FHWA HDS-5 (2012) Table A.1 (transcribed); ke: FHWA
+/// HDS-5 (2001) Table 12 (see the module's note).
 pub const ENTRANCES: [(&str, Entrance, &str); 9] = [
     (
         "concrete-square-edge",
@@ -478,6 +486,20 @@ mod tests {
             n: 0.012,
             entrance: entrance(entrance_word).unwrap(),
         }
+    }
+
+    #[test]
+    fn entrance_loss_coefficients_are_hds5_table_12() {
+        // FHWA HDS-5 (2001) Table 12 (read in a public copy; the parallel-wingwall
+        // row as reproduced in MSMA 2nd ed. Design Chart 27.2).
+        // (`validation::hydraulics_cases`, the list `runnel validate` reports)
+        crate::validation::assert_group("hds5-entrance-loss");
+        // every entrance keyword has its row there
+        let listed = crate::validation::cases::all()
+            .into_iter()
+            .filter(|c| c.group == "hds5-entrance-loss")
+            .count();
+        assert_eq!(listed, ENTRANCES.len());
     }
 
     #[test]
