@@ -64,10 +64,30 @@ impl Study {
             .collect()
     }
 
-    /// Whether a limit needs the baseline's results when there are none.
-    pub fn needs_missing_baseline(&self, limit: &Limit) -> bool {
-        self.baseline_empty
-            && matches!(limit, Limit::Relative { condition, .. } if *condition == self.baseline)
+    /// Whether every element belongs to the baseline, the study's only
+    /// condition: its limits in flow units (absolute, per area) are checked
+    /// on it, and limits that compare conditions cannot be.
+    pub fn one_condition(&self) -> bool {
+        self.conditions.len() == 1
+    }
+
+    /// Whether the points' limits are checked on condition `c`: every
+    /// condition but the baseline, and the baseline when it is the only one.
+    pub fn limits_apply_to(&self, c: usize) -> bool {
+        c != self.baseline || self.one_condition()
+    }
+
+    /// Whether a limit cannot be checked: it needs the baseline's results
+    /// when there are none (reported "not checked: no baseline"), or it
+    /// compares conditions in a study of one condition ("not checked: one
+    /// condition only").
+    pub fn cannot_check(&self, limit: &Limit) -> bool {
+        match limit {
+            Limit::Relative { condition, .. } => {
+                (self.baseline_empty && *condition == self.baseline) || self.one_condition()
+            }
+            Limit::None | Limit::Absolute { .. } | Limit::PerArea { .. } => false,
+        }
     }
 }
 

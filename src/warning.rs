@@ -40,6 +40,14 @@ pub enum Warning {
         /// The CN.
         cn: f64,
     },
+    /// Covers marked `connected = false` in a catchment whose impervious
+    /// cover is 30 % or more, where TR-55 Figure 2-4 does not apply.
+    UnconnectedIgnored {
+        /// Catchment.
+        catchment: String,
+        /// Impervious share of the catchment, percent.
+        impervious_pct: f64,
+    },
     /// A pervious cover with CN over 98.
     CnHighPervious {
         /// Catchment.
@@ -211,6 +219,15 @@ pub enum Warning {
         /// The one condition the elements belong to.
         condition: String,
     },
+    /// A point's limit compares conditions, and every element belongs to one.
+    OneCondition {
+        /// Point.
+        point: String,
+        /// What compares, with its verb: `its limit "existing" compares`.
+        what: String,
+        /// The one condition.
+        condition: String,
+    },
     /// The area draining to a point differs from the baseline's by more than 5 %.
     AreaMismatch {
         /// Point.
@@ -360,6 +377,7 @@ impl Warning {
             Warning::StepCoarse { .. } => "step-coarse",
             Warning::CnLow { .. } => "cn-low",
             Warning::CnHighPervious { .. } => "cn-high-pervious",
+            Warning::UnconnectedIgnored { .. } => "unconnected-ignored",
             Warning::StormShorterThanTc { .. } => "storm-shorter-than-tc",
             Warning::PointNotReached { .. } => "point-not-reached",
             Warning::OutletAboveTop { .. } => "outlet-above-top",
@@ -377,6 +395,7 @@ impl Warning {
             Warning::RecordStepCoarserThanGauge { .. } => "record-step-coarser-than-gauge",
             Warning::SizingInfeasible { .. } => "sizing-infeasible",
             Warning::NoBaseline { .. } => "no-baseline",
+            Warning::OneCondition { .. } => "one-condition",
             Warning::AreaMismatch { .. } => "area-mismatch",
             Warning::SlopeSteep { .. } => "slope-steep",
             Warning::ManningNUnusual { .. } => "manning-n-unusual",
@@ -400,6 +419,7 @@ impl fmt::Display for Warning {
             | Warning::StepCoarse { .. }
             | Warning::CnLow { .. }
             | Warning::CnHighPervious { .. }
+            | Warning::UnconnectedIgnored { .. }
             | Warning::StormShorterThanTc { .. }
             | Warning::GraphicalPeakDiffers { .. } => self.fmt_catchment(f),
             Warning::OutletAboveTop { .. }
@@ -416,6 +436,7 @@ impl fmt::Display for Warning {
             | Warning::RecordStepCoarserThanGauge { .. } => self.fmt_record(f),
             Warning::PointNotReached { .. }
             | Warning::NoBaseline { .. }
+            | Warning::OneCondition { .. }
             | Warning::AreaMismatch { .. }
             | Warning::SizingInfeasible { .. } => self.fmt_network(f),
             Warning::SlopeSteep { .. }
@@ -488,6 +509,13 @@ impl Warning {
             Warning::CnLow { catchment, cn } => write!(
                 f,
                 "catchment \"{catchment}\": CN {cn:.1} is under 30; TR-55 (Table 2-2 note 4) uses CN = 30 for runoff computations - check the cover"
+            ),
+            Warning::UnconnectedIgnored {
+                catchment,
+                impervious_pct,
+            } => write!(
+                f,
+                "catchment \"{catchment}\": covers are marked `connected = false`, but impervious cover is {impervious_pct:.1} % of the area; TR-55 (Figure 2-4) reduces the CN for unconnected impervious cover only under 30 %, so all of it is counted as connected - remove `connected = false`, or split the catchment if part of it drains over pervious ground"
             ),
             Warning::CnHighPervious {
                 catchment,
@@ -666,6 +694,14 @@ impl Warning {
             } => write!(
                 f,
                 "point \"{point}\": {what} the baseline condition \"{baseline}\", which has no element (every element belongs to \"{condition}\"), so it is reported \"not checked: no baseline\" - add the {baseline} catchments to compare, or give the point a limit in flow units such as \"12 cfs\""
+            ),
+            Warning::OneCondition {
+                point,
+                what,
+                condition,
+            } => write!(
+                f,
+                "point \"{point}\": {what} conditions, but every element belongs to the one condition \"{condition}\", so it is reported \"not checked: one condition only\" (limits in flow units are checked on \"{condition}\") - give the site's elements `condition = \"existing\"` or `\"proposed\"` to compare them, or give the point a limit in flow units such as \"12 cfs\" or \"0.1 cfs/ac\", or `limit = \"none\"`"
             ),
             Warning::AreaMismatch {
                 point,

@@ -224,14 +224,13 @@ fn summary_md_shows_the_moisture_table_of_a_continuous_record() {
 }
 
 fn design_storm_runoff(catchment_keys: &str, cover_keys: &str) -> (f64, f64) {
-    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
-    let sc = format!(
-        "title = \"Impervious options (invented)\"\nunits = \"us\"\n\n[[storm]]\nname = \"small\"\npattern = \"uniform\"\nduration = \"6 h\"\ndepth = \"1.0 in\"\n\n[[catchment]]\nname = \"lot\"\narea = \"10 ac\"\ntc = \"30 min\"\nto = \"outlet\"\n{catchment_keys}\n[[catchment.cover]]\ncn = 98\narea = \"2 ac\"\n{cover_keys}\n[[catchment.cover]]\ncn = 61\narea = \"8 ac\"\n\n[[point]]\nname = \"outlet\"\nlimit = \"none\"\n"
+    let s = design_storm_summary(catchment_keys, cover_keys, 2.0);
+    assert!(
+        s["warning_details"]
+            .as_array()
+            .is_some_and(|w| w.iter().all(|w| w["code"] != "unconnected-ignored")),
+        "{s}"
     );
-    let path = dir.path().join("s.toml");
-    std::fs::write(&path, sc).unwrap_or_else(|e| panic!("{e}"));
-    let (code, s, _out) = run_scenario(&path);
-    assert_eq!(code, 0, "{s}");
     let ev = event(&s, "small", "existing", "lot");
     let cn = s["catchments"]
         .as_array()
@@ -239,6 +238,59 @@ fn design_storm_runoff(catchment_keys: &str, cover_keys: &str) -> (f64, f64) {
         .map(|c| num(&c["cn"]))
         .unwrap_or(f64::NAN);
     (num(&ev["runoff_depth"]), cn)
+}
+
+/// The summary of a 10-ac lot with `impervious_ac` at CN 98 and the rest at CN 61.
+fn design_storm_summary(
+    catchment_keys: &str,
+    cover_keys: &str,
+    impervious_ac: f64,
+) -> serde_json::Value {
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let rest_ac = 10.0 - impervious_ac;
+    let sc = format!(
+        "title = \"Impervious options (invented)\"\nunits = \"us\"\n\n[[storm]]\nname = \"small\"\npattern = \"uniform\"\nduration = \"6 h\"\ndepth = \"1.0 in\"\n\n[[catchment]]\nname = \"lot\"\narea = \"10 ac\"\ntc = \"30 min\"\nto = \"outlet\"\n{catchment_keys}\n[[catchment.cover]]\ncn = 98\narea = \"{impervious_ac} ac\"\n{cover_keys}\n[[catchment.cover]]\ncn = 61\narea = \"{rest_ac} ac\"\n\n[[point]]\nname = \"outlet\"\nlimit = \"none\"\n"
+    );
+    let path = dir.path().join("s.toml");
+    std::fs::write(&path, sc).unwrap_or_else(|e| panic!("{e}"));
+    let (code, s, _out) = run_scenario(&path);
+    assert_eq!(code, 0, "{s}");
+    s
+}
+
+#[test]
+fn unconnected_marks_at_30_percent_impervious_are_counted_connected_with_a_warning() {
+    // TR-55 (1986) Figure 2-4 (from memory) applies under 30 % impervious only; at 30 % the
+    // composite is the area-weighted CN of Figure 2-3: 0.3 x 98 + 0.7 x 61 = 72.1.
+    let s = design_storm_summary("", "connected = false", 3.0);
+    let cn = s["catchments"]
+        .as_array()
+        .and_then(|a| a.first())
+        .map(|c| num(&c["cn"]))
+        .unwrap_or(f64::NAN);
+    assert!((cn - 72.1).abs() < 1e-9, "{cn}");
+    let warned: Vec<&serde_json::Value> = s["warning_details"]
+        .as_array()
+        .map(|w| {
+            w.iter()
+                .filter(|w| w["code"] == "unconnected-ignored")
+                .collect()
+        })
+        .unwrap_or_default();
+    assert_eq!(warned.len(), 1, "{s}");
+    let text = warned[0]["message"].as_str().unwrap_or("");
+    assert!(
+        text.contains("\"lot\"") && text.contains("30.0 %") && text.contains("connected = false"),
+        "{text}"
+    );
+    // Just under 30 % the marks are used (Figure 2-4): no warning.
+    let s = design_storm_summary("", "connected = false", 2.9);
+    assert!(
+        s["warning_details"]
+            .as_array()
+            .is_some_and(|w| w.iter().all(|w| w["code"] != "unconnected-ignored")),
+        "{s}"
+    );
 }
 
 #[test]

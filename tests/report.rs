@@ -131,6 +131,99 @@ fn a_scenario_with_one_condition_runs_and_reports_not_checked_no_baseline() {
     assert!(md.contains("| baseline | existing (no element"), "{md}");
 }
 
+/// `one-condition.toml` with every `condition` key left out (so every
+/// element belongs to "existing", the only condition), its 100-yr limit
+/// set to `limit_100`, run from a temporary folder.
+fn run_without_conditions(limit_100: &str) -> (i32, serde_json::Value, tempfile::TempDir) {
+    let text = std::fs::read_to_string(data("one-condition.toml")).unwrap_or_default();
+    let gauge = data("rain/cross-check-20yr-15min.csv");
+    let text: String = text
+        .lines()
+        .filter(|l| !l.starts_with("condition ="))
+        .map(|l| {
+            l.replace("\"60 cfs\"", &format!("\"{limit_100}\""))
+                .replace(
+                    "\"rain/cross-check-20yr-15min.csv\"",
+                    &format!("{:?}", gauge.to_string_lossy()),
+                )
+        })
+        .collect::<Vec<_>>()
+        .join("\n");
+    assert!(!text.contains("condition =") && text.contains(limit_100));
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let path = dir.path().join("no-conditions.toml");
+    std::fs::write(&path, text).unwrap_or_else(|e| panic!("{e}"));
+    let (code, s, out) = run_scenario(&path);
+    drop(dir);
+    (code, s, out)
+}
+
+#[test]
+fn a_scenario_of_one_condition_checks_its_flow_limits_and_says_what_it_cannot_compare() {
+    // runnel's own rule: with every element in one condition, limits in flow
+    // units are checked on it; limits that compare conditions are not.
+    let (code, s, dir) = run_without_conditions("60 cfs");
+    assert_eq!(code, 0, "{s}");
+    assert_eq!(s["conditions"], serde_json::json!(["existing"]));
+    let rows = s["comparisons"].as_array().cloned().unwrap_or_default();
+    let row = |when: &str| {
+        rows.iter()
+            .find(|c| c["storm"] == when || c["record"] == when)
+            .cloned()
+            .unwrap_or_else(|| panic!("no comparison for {when}: {rows:?}"))
+    };
+    let hundred = row("100-yr");
+    assert_eq!(hundred["condition"], "existing");
+    assert_eq!(hundred["status"], "meets");
+    assert!((num(&hundred["limit"]) - 60.0).abs() < 1e-9);
+    assert!(num(&hundred["peak"]) > 0.0 && num(&hundred["peak"]) <= 60.0);
+    assert!(hundred["baseline_peak"].is_null());
+    let ten = row("10-yr");
+    assert_eq!(ten["status"], "not checked: one condition only");
+    assert!(ten["pass"].is_null());
+    let rec = row("twenty years");
+    assert_eq!(rec["check"], "flow duration");
+    assert_eq!(rec["status"], "not checked: one condition only");
+    let codes: Vec<&str> = s["warning_details"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .filter_map(|w| w["code"].as_str())
+        .collect();
+    assert!(!codes.contains(&"no-baseline"), "{codes:?}");
+    let w: Vec<&serde_json::Value> = s["warning_details"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .filter(|w| w["code"] == "one-condition")
+        .collect();
+    assert_eq!(w.len(), 1, "{}", s["warning_details"]);
+    let msg = w[0]["message"].as_str().unwrap_or_default();
+    assert!(
+        msg.contains("point \"outlet\"")
+            && msg.contains("limit \"existing\"")
+            && msg.contains("flow-duration rule"),
+        "{msg}"
+    );
+    let md = std::fs::read_to_string(dir.path().join("out/summary.md")).unwrap_or_default();
+    assert!(md.contains("| not checked: one condition only |"), "{md}");
+    assert!(md.contains("not made: they compare conditions"), "{md}");
+
+    // The same site over a limit it cannot meet: exit 1, and the row says so.
+    let (code, s, _dir) = run_without_conditions("1 cfs");
+    assert_eq!(code, 1, "{s}");
+    assert_eq!(s["all_pass"], false);
+    let exceeds = s["comparisons"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .find(|c| c["storm"] == "100-yr")
+        .cloned()
+        .unwrap_or_default();
+    assert_eq!(exceeds["status"], "exceeds", "{exceeds}");
+    assert!(num(&exceeds["peak"]) > 1.0);
+}
+
 #[test]
 fn a_failing_flow_duration_rule_reports_its_worst_level_not_a_peak() {
     let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));

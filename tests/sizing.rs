@@ -39,6 +39,37 @@ fn orifice_sizing_recovers_the_closed_form_diameter() {
 }
 
 #[test]
+fn a_scenario_of_one_condition_is_sized_to_its_flow_limit() {
+    // The closed-form case above with every `condition` key left out: the
+    // pond, in the study's only condition, is sized to the same 10-cfs
+    // limit (orifice equation as above, Bedient, Huber & Vieux ch. 4 form).
+    let text: String = std::fs::read_to_string(data("sizing-closed-form.toml"))
+        .unwrap_or_default()
+        .lines()
+        .filter(|l| !l.starts_with("condition ="))
+        .collect::<Vec<_>>()
+        .join("\n");
+    assert!(!text.contains("condition ="));
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let p = dir.path().join("one.toml");
+    std::fs::write(&p, &text).unwrap_or_else(|e| panic!("{e}"));
+    let (code, one, _d1) = run_scenario(&p);
+    assert_eq!(code, 0, "{one}");
+    let (code, two, _d2) = run_scenario(&data("sizing-closed-form.toml"));
+    assert_eq!(code, 0, "{two}");
+    assert_eq!(one["conditions"], serde_json::json!(["existing"]));
+    let d1 = num(&one["sized"][0]["value"]);
+    let d2 = num(&two["sized"][0]["value"]);
+    assert!(d1 > 0.0 && (d1 - d2).abs() < 1e-12, "{d1} vs {d2}");
+    let row = one["comparisons"]
+        .as_array()
+        .and_then(|a| a.first())
+        .cloned()
+        .unwrap_or_default();
+    assert_eq!(row["status"], "meets", "{row}");
+}
+
+#[test]
 fn an_increment_in_the_range_gives_multiples_of_it_and_one_more_breaks_the_limit() {
     // Buildable sizes (issue 13): the value is a multiple of the range's
     // increment, the sized scenario run again meets every limit, and one

@@ -510,6 +510,12 @@ fn comparison_line(c: &summary::ComparisonOut, fu: &str) -> String {
     let when = c.storm.clone().or(c.record.clone()).unwrap_or_default();
     let head = format!("{verdict:<7} {} / {when} / {}", c.point, c.condition);
     if c.pass.is_none() {
+        if c.status == summary::ComparisonStatus::OneCondition {
+            return format!(
+                "{head}: one condition only (\"{}\" compares conditions, and every element belongs to {})",
+                c.limit_text, c.condition
+            );
+        }
         return format!(
             "{head}: no baseline (\"{}\" needs the {} condition, which has no element)",
             c.limit_text, c.baseline

@@ -224,7 +224,7 @@ fn limit_with_area(
     area_ac: impl FnOnce() -> f64,
 ) -> Option<f64> {
     let limit = study.points[point].limits.get(storm)?;
-    if study.needs_missing_baseline(limit) {
+    if study.cannot_check(limit) {
         return None;
     }
     match limit {
@@ -246,17 +246,20 @@ pub fn compare(study: &Study, topology: &Topology, storms: &[StormResult]) -> Ve
         for p in 0..study.points.len() {
             let base = point_peak(storms, s.storm, study.baseline, p);
             for c in &s.conditions {
-                if c.condition == study.baseline {
+                if !study.limits_apply_to(c.condition) {
                     continue;
                 }
                 let area_ac = topology.area_to_point_ac(p, c.condition);
+                // In a study of one condition the baseline is the condition checked.
+                let compared = !study.baseline_empty && !study.one_condition();
                 let baseline_area_ac =
-                    (!study.baseline_empty).then(|| topology.area_to_point_ac(p, study.baseline));
+                    compared.then(|| topology.area_to_point_ac(p, study.baseline));
+                let base = if compared { base } else { f64::NAN };
                 let peak = point_peak(storms, s.storm, c.condition, p);
                 let unchecked = study.points[p]
                     .limits
                     .get(s.storm)
-                    .is_some_and(|l| study.needs_missing_baseline(l));
+                    .is_some_and(|l| study.cannot_check(l));
                 if unchecked {
                     out.push(Comparison {
                         point: p,

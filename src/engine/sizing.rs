@@ -437,7 +437,7 @@ fn checks(study: &Study, topology: &Topology, storms: &[StormResult], pond: usiz
                 continue;
             }
             for pi in 0..study.points.len() {
-                if !topology.reaches(pond, pi) || c.condition == study.baseline {
+                if !topology.reaches(pond, pi) || !study.limits_apply_to(c.condition) {
                     continue;
                 }
                 if let Some(limit) =

@@ -5,7 +5,7 @@
 //! sizing and long-record results, the plots and the warnings.
 
 use crate::model::{EMBANKMENT_WEIR_COEFFICIENT, ElementKind, Kind, Pond, Study};
-use crate::report::summary::{CatchmentOut, ComparisonKind, Out, Summary};
+use crate::report::summary::{CatchmentOut, ComparisonKind, ComparisonStatus, Out, Summary};
 use crate::report::table::{Column, Table};
 use crate::util::units::{Quantity, sig};
 use std::fmt::Write;
@@ -27,12 +27,14 @@ pub const DRAIN_TIME_DEFINITION: &str = "Drain time runs from the peak stage unt
 
 /// A user's text (a name, a limit as written) made safe for a Markdown
 /// table cell, heading or image caption: `|` cannot end the cell, `[` and
-/// `]` cannot end a caption, and `<`, `>`, `&`, `*`, `` ` `` and `\\` are
-/// shown as written instead of as HTML or emphasis.
+/// `]` cannot end a caption, and `<`, `>`, `*`, `` ` ``, `\\` and an `&`
+/// that would start a character reference are shown as written instead of
+/// as HTML or emphasis. A plain `&` ("Harper & Baker") stays as it is, so
+/// the file reads well as text too.
 /// (Control characters are refused when the scenario is loaded.)
 pub fn cell(text: &str) -> String {
     let mut out = String::with_capacity(text.len());
-    for c in text.chars() {
+    for (i, c) in text.char_indices() {
         match c {
             '\\' | '|' | '*' | '`' | '[' | ']' => {
                 out.push('\\');
@@ -40,7 +42,37 @@ pub fn cell(text: &str) -> String {
             }
             '<' => out.push_str("&lt;"),
             '>' => out.push_str("&gt;"),
-            '&' => out.push_str("&amp;"),
+            '&' => out.push_str(ampersand(&text[i + 1..])),
+            _ => out.push(c),
+        }
+    }
+    out
+}
+
+/// How to write an `&` followed by `rest` in Markdown: `&amp;` where it
+/// would start a character reference (`&copy;`, `&#169;`, `&#xA9;`, as
+/// CommonMark reads them), else `&` as it is.
+fn ampersand(rest: &str) -> &'static str {
+    let body = rest.split(';').next().unwrap_or("");
+    let is_reference = rest.len() > body.len()
+        && !body.is_empty()
+        && body.len() <= 32
+        && (body.chars().all(|c| c.is_ascii_alphanumeric())
+            || body
+                .strip_prefix('#')
+                .is_some_and(|n| !n.is_empty() && n.chars().all(|c| c.is_ascii_alphanumeric())));
+    if is_reference { "&amp;" } else { "&" }
+}
+
+/// A warning's text for a Markdown list: no raw HTML and no character
+/// reference from the names it quotes.
+fn plain(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    for (i, c) in text.char_indices() {
+        match c {
+            '<' => out.push_str("&lt;"),
+            '>' => out.push_str("&gt;"),
+            '&' => out.push_str(ampersand(&text[i + 1..])),
             _ => out.push(c),
         }
     }
@@ -252,10 +284,7 @@ fn design_points(m: &mut String, s: &Summary, u: &Units) {
         .filter(|c| c.check != ComparisonKind::Peak)
         .collect();
     if s.comparisons.is_empty() {
-        let _ = writeln!(
-            m,
-            "No limits are checked (one condition only, or every limit is \"none\").\n"
-        );
+        let _ = writeln!(m, "No limits are checked (every limit is \"none\").\n");
     } else {
         let fails = s.comparisons.iter().filter(|c| c.fails()).count();
         let unchecked = s.comparisons.iter().filter(|c| c.pass.is_none()).count();
@@ -265,10 +294,21 @@ fn design_points(m: &mut String, s: &Summary, u: &Units) {
             format!("**{fails} check(s) fail.**")
         };
         if unchecked > 0 {
-            verdict.push_str(&format!(
-                " {unchecked} check(s) not made: the baseline \"{}\" has no element.",
-                s.baseline
-            ));
+            let one = s
+                .comparisons
+                .iter()
+                .any(|c| c.status == ComparisonStatus::OneCondition);
+            verdict.push_str(&if one {
+                format!(
+                    " {unchecked} check(s) not made: they compare conditions, and every element belongs to \"{}\".",
+                    s.baseline
+                )
+            } else {
+                format!(
+                    " {unchecked} check(s) not made: the baseline \"{}\" has no element.",
+                    s.baseline
+                )
+            });
         }
         let _ = writeln!(m, "{verdict}\n");
     }
@@ -904,11 +944,7 @@ fn warnings(m: &mut String, s: &Summary) {
     }
     for w in &s.warnings {
         // Warnings quote names: no raw HTML from them.
-        let w = w
-            .replace('&', "&amp;")
-            .replace('<', "&lt;")
-            .replace('>', "&gt;");
-        let _ = writeln!(m, "- {w}");
+        let _ = writeln!(m, "- {}", plain(w));
     }
     let _ = writeln!(m);
 }
@@ -1050,7 +1086,17 @@ mod tests {
         // CommonMark / GFM table syntax: `\|` is a literal bar in a cell
         assert_eq!(cell("Pond A"), "Pond A");
         assert_eq!(cell("a|b"), "a\\|b");
-        assert_eq!(cell("<b>x</b> & *y*"), "&lt;b&gt;x&lt;/b&gt; &amp; \\*y\\*");
+        assert_eq!(cell("<b>x</b> & *y*"), "&lt;b&gt;x&lt;/b&gt; & \\*y\\*");
+        // CommonMark 0.31 section 2.5: only `&name;`, `&#digits;` and
+        // `&#xhex;` are character references; a plain `&` is shown as is.
+        assert_eq!(cell("Harper & Baker"), "Harper & Baker");
+        assert_eq!(cell("R&D; lot 4"), "R&amp;D; lot 4");
+        assert_eq!(cell("R&D lot 4"), "R&D lot 4");
+        assert_eq!(cell("a &copy; b"), "a &amp;copy; b");
+        assert_eq!(cell("&#169;&#xA9;"), "&amp;#169;&amp;#xA9;");
+        assert_eq!(cell("trailing &"), "trailing &");
+        assert_eq!(cell("& ;"), "& ;");
+        assert_eq!(plain("x <y> & &amp;"), "x &lt;y&gt; & &amp;amp;");
         assert_eq!(cell("c:\\d"), "c:\\\\d");
     }
 }

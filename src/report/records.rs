@@ -415,7 +415,7 @@ pub fn comparison(study: &Study, d: &DurationComparison) -> ComparisonOut {
         baseline: study.conditions[study.baseline].clone(),
         condition: study.conditions[d.condition].clone(),
         check: ComparisonKind::FlowDuration,
-        status: ComparisonStatus::of(pass),
+        status: ComparisonStatus::of(pass, study.one_condition()),
         baseline_peak: None,
         peak: None,
         limit: None,

@@ -259,14 +259,19 @@ pub enum ComparisonStatus {
     /// The limit needs a baseline the scenario does not have.
     #[serde(rename = "not checked: no baseline")]
     NoBaseline,
+    /// The limit compares conditions, and the scenario has one condition.
+    #[serde(rename = "not checked: one condition only")]
+    OneCondition,
 }
 
 impl ComparisonStatus {
-    /// The status of a check that passed, failed, or was not made (None).
-    pub fn of(pass: Option<bool>) -> Self {
+    /// The status of a check that passed, failed, or was not made (None):
+    /// in a study of one condition, or for want of a baseline.
+    pub fn of(pass: Option<bool>, one_condition: bool) -> Self {
         match pass {
             Some(true) => Self::Meets,
             Some(false) => Self::Exceeds,
+            None if one_condition => Self::OneCondition,
             None => Self::NoBaseline,
         }
     }
@@ -277,6 +282,7 @@ impl ComparisonStatus {
             Self::Meets => "meets",
             Self::Exceeds => "exceeds",
             Self::NoBaseline => NOT_CHECKED_NO_BASELINE,
+            Self::OneCondition => NOT_CHECKED_ONE_CONDITION,
         }
     }
 }
@@ -453,6 +459,9 @@ pub struct Summary {
 
 /// The status of a check that needs a baseline the scenario does not have.
 pub const NOT_CHECKED_NO_BASELINE: &str = "not checked: no baseline";
+
+/// The status of a check that compares conditions in a scenario of one.
+pub const NOT_CHECKED_ONE_CONDITION: &str = "not checked: one condition only";
 
 /// The caution carried by every report.
 pub const CAUTION: &str = "Planning-level computations by published methods (TR-55, NEH 630). Check them against the local drainage code and have them reviewed and sealed by a licensed professional engineer before use. A pond with an embankment may fall under state dam-safety rules.";
@@ -824,8 +833,8 @@ fn peak_comparisons_out(study: &Study, a: &Analysis) -> Vec<ComparisonOut> {
             baseline: study.conditions[study.baseline].clone(),
             condition: study.conditions[c.condition].clone(),
             check: ComparisonKind::Peak,
-            status: ComparisonStatus::of(c.checked.then_some(c.pass)),
-            baseline_peak: (c.checked && !study.baseline_empty)
+            status: ComparisonStatus::of(c.checked.then_some(c.pass), study.one_condition()),
+            baseline_peak: (c.checked && !study.baseline_empty && !study.one_condition())
                 .then(|| o.flow(c.baseline_peak_cfs)),
             peak: Some(o.flow(c.peak_cfs)),
             limit: c.checked.then(|| o.flow(c.limit_cfs)),

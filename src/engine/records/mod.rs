@@ -1084,7 +1084,7 @@ fn compare_levels(
 
 /// The flow-duration controls of one record's points: each condition
 /// against the baseline, or "not checked" for each when the baseline is
-/// empty.
+/// empty or is the only condition.
 fn duration_comparisons(
     run: &RecordRun<'_>,
     durations: &DurationCounts,
@@ -1094,7 +1094,17 @@ fn duration_comparisons(
     let area = |pi: usize, c: usize| run.topology.area_to_point_ac(pi, c);
     for (pi, pt) in study.points.iter().enumerate() {
         let Some(dc) = &pt.durations else { continue };
-        if let Some(levels) = &durations.levels[pi] {
+        if study.one_condition() {
+            // Nothing to compare the one condition with: "not checked".
+            out.push(DurationComparison {
+                point: pi,
+                record: run.record.name.clone(),
+                condition: study.baseline,
+                area_ac: area(pi, study.baseline),
+                baseline_area_ac: None,
+                check: None,
+            });
+        } else if let Some(levels) = &durations.levels[pi] {
             let baseline_counts = &durations.exceedance_counts[study.baseline][pi];
             for c in (0..study.conditions.len()).filter(|&c| c != study.baseline) {
                 let condition_counts = &durations.exceedance_counts[c][pi];

@@ -55,6 +55,12 @@ impl Builder<'_> {
             }
         };
         let split = impervious_split(&covers, cn);
+        if let Some(impervious_pct) = split.unconnected_ignored_pct {
+            self.warnings.push(Warning::UnconnectedIgnored {
+                catchment: rc.name.get_ref().clone(),
+                impervious_pct,
+            });
+        }
         let cn = split.cn;
         if cn < 30.0 {
             self.warnings.push(Warning::CnLow {
@@ -701,6 +707,9 @@ struct ImperviousSplit {
     connected_fraction: f64,
     /// CN of the rest of the area.
     rest_cn: f64,
+    /// The impervious share (percent) when covers are marked unconnected
+    /// but the share is 30 % or more, so the marks were not used.
+    unconnected_ignored_pct: Option<f64>,
 }
 
 /// Splits the covers into connected impervious cover (CN 98) and the rest.
@@ -724,6 +733,7 @@ fn impervious_split(covers: &[CoverRow], area_weighted_cn: f64) -> ImperviousSpl
             cn: area_weighted_cn,
             connected_fraction: 0.0,
             rest_cn: area_weighted_cn,
+            unconnected_ignored_pct: None,
         };
     }
     let other: Vec<(f64, f64)> = covers
@@ -745,12 +755,14 @@ fn impervious_split(covers: &[CoverRow], area_weighted_cn: f64) -> ImperviousSpl
                 cn,
                 connected_fraction: connected / total,
                 rest_cn,
+                unconnected_ignored_pct: None,
             }
         }
         _ => ImperviousSplit {
             cn: area_weighted_cn,
             connected_fraction: (connected + unconnected) / total,
             rest_cn: pervious_cn,
+            unconnected_ignored_pct: (pu > 0.0).then_some(pc + pu),
         },
     }
 }

@@ -202,6 +202,32 @@ impl Builder<'_> {
         })
     }
 
+    /// Warns when point `p` of a study of one condition has limits that
+    /// compare conditions (reported "not checked: one condition only").
+    fn warn_one_condition(&mut self, p: &Point, condition: &str, has_records: bool) {
+        let mut needs: Vec<String> = Vec::new();
+        for (l, t) in p.limits.iter().zip(&p.limit_text) {
+            let said = format!("limit \"{t}\"");
+            if matches!(l, Limit::Relative { .. }) && !needs.contains(&said) {
+                needs.push(said);
+            }
+        }
+        if p.durations.is_some() && has_records {
+            needs.push("flow-duration rule".to_string());
+        }
+        if !needs.is_empty() {
+            self.warnings.push(Warning::OneCondition {
+                point: p.name.clone(),
+                what: if needs.len() == 1 {
+                    format!("its {} compares", needs[0])
+                } else {
+                    format!("its {} compare", needs.join(" and its "))
+                },
+                condition: condition.to_string(),
+            });
+        }
+    }
+
     /// The points, with warnings for limits that need an empty baseline and
     /// for conditions that never reach a point.
     pub(super) fn points(
@@ -218,6 +244,9 @@ impl Builder<'_> {
             points.push(self.point(p, conditions, storms)?);
         }
         for (pi, p) in points.iter().enumerate() {
+            if conditions.len() == 1 {
+                self.warn_one_condition(p, &conditions[0], !raw.record.is_empty());
+            }
             if baseline_empty {
                 let mut needs: Vec<String> = Vec::new();
                 for (l, t) in p.limits.iter().zip(&p.limit_text) {
