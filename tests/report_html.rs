@@ -300,3 +300,92 @@ fn the_demo_report_prints_in_headless_chromium() {
         colours.len()
     );
 }
+
+/// `report.html` of `dir` with a script that lists every table wider than
+/// the column it stands in, laid out in headless Chromium at the body's
+/// width (182 mm, the printed width on A4; Letter's is wider, and the
+/// tables' type is the same on screen and paper). Returns the list.
+fn tables_wider_than_the_page(browser: &Path, dir: &Path, work: &Path) -> String {
+    let html = read(&dir.join("report.html"));
+    let script = "<script>window.addEventListener('load', () => { const out = []; \
+        document.querySelectorAll('table').forEach((t, i) => { \
+        const box = t.parentElement.getBoundingClientRect(); const r = t.getBoundingClientRect(); \
+        if (r.right > box.right + 0.5 || t.scrollWidth > t.clientWidth + 0.5) { \
+        out.push((t.caption ? t.caption.textContent.slice(0, 50) : 'table ' + i) + ': ' + \
+        Math.round(r.width) + ' px in ' + Math.round(box.width) + ' px'); } }); \
+        const pre = document.createElement('pre'); pre.textContent = 'WIDER[' + out.join(' | ') + ']'; \
+        document.body.appendChild(pre); });</script>";
+    assert!(html.contains("</body>"));
+    let page = work.join("measured.html");
+    std::fs::write(&page, html.replace("</body>", &format!("{script}</body>")))
+        .unwrap_or_else(|e| panic!("{e}"));
+    let o = Command::new(browser)
+        .args([
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--disable-background-networking",
+            "--disable-component-update",
+            "--disable-sync",
+            "--no-first-run",
+            "--host-resolver-rules=MAP * ~NOTFOUND",
+            "--window-size=1280,1800",
+            "--virtual-time-budget=5000",
+            "--dump-dom",
+        ])
+        .arg(format!(
+            "--user-data-dir={}",
+            work.join("profile-measure").display()
+        ))
+        .arg(format!("file://{}", page.display()))
+        .output()
+        .unwrap_or_else(|e| panic!("{} runs: {e}", browser.display()));
+    let dom = String::from_utf8_lossy(&o.stdout);
+    let start = dom
+        .rfind("WIDER[")
+        .unwrap_or_else(|| panic!("the measuring script did not run: {dom:.300}"));
+    let rest = &dom[start + "WIDER[".len()..];
+    rest[..rest.find(']').unwrap_or(rest.len())].to_string()
+}
+
+#[test]
+#[ignore = "needs a headless Chromium: .ci/run installs it"]
+fn no_table_is_wider_than_the_printed_page() {
+    let browser = chromium().unwrap_or_else(|| {
+        panic!("no headless Chromium found: run .ci/run, or set RUNNEL_CHROMIUM")
+    });
+    let work = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    // The demo (a riser, its barrel and two more outlets), and an invented pond with
+    // fourteen openings with long names: a rating table of eighteen columns.
+    let mut outlets = String::new();
+    for k in 0..14 {
+        outlets.push_str(&format!(
+            "[[pond.outlet]]\nname = \"orifice in the north wall, row {k}\"\nkind = \"orifice\"\ninvert = {:.1}\ndiameter = \"4 in\"\n",
+            100.0 + 0.4 * f64::from(k)
+        ));
+    }
+    let scenario = format!(
+        "title = \"Many openings (invented)\"\nunits = \"us\"\nstep = \"5 min\"\n\n[[storm]]\nname = \"design\"\npattern = \"uniform\"\ndepth = \"1 in\"\nduration = \"1 h\"\n\n[[inflow]]\nname = \"inflow\"\nto = \"vault\"\ntable = [[0.0, 0.0], [1.0, 30.0], [3.0, 10.0], [8.0, 0.0], [30.0, 0.0]]\n\n[[pond]]\nname = \"vault\"\nto = \"outfall\"\nstage_area = [[100.0, 20000.0], [108.0, 26000.0]]\ntop = 108.0\n{outlets}\n[[point]]\nname = \"outfall\"\nlimit = \"none\"\n"
+    );
+    let path = work.path().join("many.toml");
+    std::fs::write(&path, scenario).unwrap_or_else(|e| panic!("{e}"));
+    let many = work.path().join("many");
+    let o = Command::new(env!("CARGO_BIN_EXE_runnel"))
+        .arg("run")
+        .arg(&path)
+        .arg("--out")
+        .arg(&many)
+        .output()
+        .unwrap_or_else(|e| panic!("runnel runs: {e}"));
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    assert!(read(&many.join("report.html")).contains("north wall, row 13"));
+    for dir in [demo(), many.as_path()] {
+        let wider = tables_wider_than_the_page(&browser, dir, work.path());
+        assert!(wider.is_empty(), "{}: {wider}", dir.display());
+    }
+}

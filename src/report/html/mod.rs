@@ -103,6 +103,7 @@ pub(crate) enum Cell {
 }
 
 /// A table column: header (escaped HTML) and whether it holds numbers.
+#[derive(Debug, Clone)]
 pub(crate) struct Col(pub(crate) String, pub(crate) bool);
 
 /// A column of text.
@@ -135,6 +136,22 @@ pub(crate) struct Doc {
 
 /// Tables of at most this many rows are kept on one printed page.
 const SHORT_TABLE_ROWS: usize = 24;
+
+/// Columns above which a table is set small (`wide`) so that it fits the
+/// printed width: a pond's rating has one column per device.
+const WIDE_TABLE_COLUMNS: usize = 10;
+
+/// The class attribute of a table of `rows` rows and `cols` columns: a
+/// short table stays on one page with its caption; a wide one is set in a
+/// smaller type.
+fn table_class(rows: usize, cols: usize) -> &'static str {
+    match (rows <= SHORT_TABLE_ROWS, cols > WIDE_TABLE_COLUMNS) {
+        (true, true) => " class=\"short wide\"",
+        (true, false) => " class=\"short\"",
+        (false, true) => " class=\"wide\"",
+        (false, false) => "",
+    }
+}
 
 /// Where the contents go.
 pub(crate) const TOC_MARK: &str = "<!--contents-->";
@@ -204,12 +221,7 @@ impl Doc {
             self.body,
             "<table id=\"{}\"{}><caption><b>Table {}.</b> {caption}</caption><thead><tr>",
             esc(key),
-            // A short table stays on one page with its caption.
-            if rows.len() <= SHORT_TABLE_ROWS {
-                " class=\"short\""
-            } else {
-                ""
-            },
+            table_class(rows.len(), cols.len()),
             self.tables
         );
         for c in cols {

@@ -5,7 +5,7 @@
 
 use std::fmt::Write;
 
-use super::{Cell, Doc, HtmlInput, esc, fixed, num_col, text_col};
+use super::{Cell, Col, Doc, HtmlInput, esc, fixed, num_col, text_col};
 use crate::model::{ElementKind, Kind, Pond, StormRain, Study};
 use crate::report::figures::Subject;
 use crate::report::markdown::describe_outlet;
@@ -321,12 +321,7 @@ fn pond_tables(doc: &mut Doc, study: &Study, i: usize, p: &Pond) -> Result<(), P
         curves.storage.push(o.volume(v));
         curves.total.push(o.flow(q));
     }
-    doc.table(
-        &t_rate,
-        "Stage, storage and discharge: each opening as it discharges within the structure, each barrel with what its openings pass through it, and the total as routed.",
-        &cols,
-        &rows,
-    );
+    rating_tables(doc, &t_rate, &cols, &rows);
     let svg = plot::pond_curves_svg(&curves)?;
     doc.figure(
         &f_curves,
@@ -338,6 +333,58 @@ fn pond_tables(doc: &mut Doc, study: &Study, i: usize, p: &Pond) -> Result<(), P
         "curves",
     );
     Ok(())
+}
+
+/// Device columns in one printed rating table: a structure with more
+/// devices continues in further tables, each with the stage and the total
+/// outflow again, so that no table is wider than the page.
+const RATING_DEVICES_PER_TABLE: usize = 8;
+
+/// The rating table of a pond (`cols` and `rows`: stage, storage, one
+/// column per device, total outflow), split by [`RATING_DEVICES_PER_TABLE`];
+/// the first table is `key`.
+fn rating_tables(doc: &mut Doc, key: &str, cols: &[Col], rows: &[Vec<Cell>]) {
+    const CAPTION: &str = "Stage, storage and discharge: each opening as it discharges within the structure, each barrel with what its openings pass through it, and the total as routed";
+    let devices = cols.len().saturating_sub(3);
+    let parts = devices.div_ceil(RATING_DEVICES_PER_TABLE).max(1);
+    let total = cols.len().saturating_sub(1);
+    for part in 0..parts {
+        let from = 2 + part * RATING_DEVICES_PER_TABLE;
+        let to = (from + RATING_DEVICES_PER_TABLE).min(total);
+        // stage (and storage in the first part), this part's devices, the total
+        let keep: Vec<usize> = std::iter::once(0)
+            .chain((part == 0).then_some(1))
+            .chain(from..to)
+            .chain(std::iter::once(total))
+            .collect();
+        let pick =
+            |r: &[Cell]| -> Vec<Cell> { keep.iter().filter_map(|&k| r.get(k).cloned()).collect() };
+        let part_cols: Vec<Col> = keep.iter().filter_map(|&k| cols.get(k).cloned()).collect();
+        let part_rows: Vec<Vec<Cell>> = rows.iter().map(|r| pick(r)).collect();
+        let (part_key, caption) = if parts == 1 {
+            (key.to_string(), format!("{CAPTION}."))
+        } else {
+            (
+                if part == 0 {
+                    key.to_string()
+                } else {
+                    format!("{key}-{}", part + 1)
+                },
+                format!(
+                    "{CAPTION}{}: devices {} to {} of {devices}{}.",
+                    if part == 0 { "" } else { " (continued)" },
+                    from - 1,
+                    to - 2,
+                    if part + 1 < parts {
+                        "; continued in the next table"
+                    } else {
+                        ""
+                    }
+                ),
+            )
+        };
+        doc.table(&part_key, &caption, &part_cols, &part_rows);
+    }
 }
 
 /// Per storm: the routing summary (from `summary.json`), the figure, a routing table.

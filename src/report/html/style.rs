@@ -26,7 +26,12 @@ caption { text-align: left; caption-side: top; padding-bottom: 1mm; font-size: 9
 th, td { padding: 0.8mm 1.6mm; border-bottom: 0.5pt solid var(--rule); vertical-align: top; }
 th { text-align: left; background: var(--band); font-weight: 600; border-bottom: 1pt solid var(--muted); }
 th .u { display: block; font-weight: normal; color: var(--muted); font-size: 7.6pt; }
-td.n, th.n { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
+td.n, th.n { text-align: right; font-variant-numeric: tabular-nums; }
+td.n { white-space: nowrap; }
+th { overflow-wrap: break-word; }
+table.wide { font-size: 7.4pt; }
+table.wide th, table.wide td { padding: 0.6mm 1mm; }
+table.wide th .u { font-size: 6.8pt; }
 td.ok { color: var(--ok); font-weight: 600; }
 td.bad { color: var(--bad); font-weight: 700; }
 thead { display: table-header-group; }
