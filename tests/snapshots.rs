@@ -1,5 +1,6 @@
 //! Snapshots (insta) of what `runnel run` writes for a small US and a small
-//! SI scenario: `summary.md`, `summary.json` and the 10-year storm's CSV.
+//! SI scenario: `summary.md`, `summary.json` and the 10-year storm's CSV;
+//! and `summary.md` of two ponds in series.
 //! Any change to a report shows up here as a diff to review.
 //!
 //! To review a change: run `cargo test --test snapshots`; a failing
@@ -114,4 +115,10 @@ fn us_scenario_outputs_match_their_snapshots() {
 #[test]
 fn si_scenario_outputs_match_their_snapshots() {
     check("basic-si.toml", "si");
+}
+
+#[test]
+fn series_summary_md_matches_its_snapshot() {
+    let dir = run("series.toml");
+    insta::assert_snapshot!("series_summary_md", markdown(dir.path()));
 }

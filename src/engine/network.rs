@@ -731,13 +731,7 @@ pub fn pond_table_to(
 /// plus every outlet's invert, crown and crest. Rows are (stage ft,
 /// storage ft3, outflow cfs).
 pub fn rating_rows(p: &Pond) -> Vec<(f64, f64, f64)> {
-    let bottom = p.storage.bottom_ft();
-    let table_top = p.storage.rows().last().map(|r| r.0).unwrap_or(bottom + 1.0);
-    let top = p
-        .top_ft
-        .unwrap_or(table_top)
-        .max(table_top)
-        .max(bottom + 0.1);
+    let (bottom, top) = crate::engine::structure::rating_range_ft(p, 0.1);
     let span = top - bottom;
     let raw = span / 20.0;
     let mag = 10f64.powf(raw.log10().floor());

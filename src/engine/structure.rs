@@ -36,18 +36,26 @@ pub fn rating_step_ft(units: UnitSystem) -> f64 {
 /// the table fits.
 pub const MAX_RATING_ROWS: usize = 400;
 
-/// The structure rating of pond `p`: from the bottom to the top (or the
-/// storage table's highest stage, whichever is higher) at `step_ft`
-/// (doubled until at most [`MAX_RATING_ROWS`] rows), plus every device's
-/// invert, crest and barrel inlet ([`Works::key_stages_ft`]) in that range.
-pub fn structure_rating(p: &Pond, step_ft: f64) -> Vec<StructureRow> {
+/// The stages a rating of pond `p` spans (ft): from its bottom to its top
+/// of embankment or its storage table's highest stage, whichever is
+/// higher, and at least `min_span_ft` above the bottom.
+pub fn rating_range_ft(p: &Pond, min_span_ft: f64) -> (f64, f64) {
     let bottom = p.storage.bottom_ft();
     let table_top = p.storage.rows().last().map(|r| r.0).unwrap_or(bottom + 1.0);
     let top = p
         .top_ft
         .unwrap_or(table_top)
         .max(table_top)
-        .max(bottom + step_ft);
+        .max(bottom + min_span_ft);
+    (bottom, top)
+}
+
+/// The structure rating of pond `p`: from the bottom to the top (or the
+/// storage table's highest stage, whichever is higher) at `step_ft`
+/// (doubled until at most [`MAX_RATING_ROWS`] rows), plus every device's
+/// invert, crest and barrel inlet ([`Works::key_stages_ft`]) in that range.
+pub fn structure_rating(p: &Pond, step_ft: f64) -> Vec<StructureRow> {
+    let (bottom, top) = rating_range_ft(p, step_ft);
     let mut step = step_ft;
     while (top - bottom) / step > MAX_RATING_ROWS as f64 {
         step *= 2.0;
