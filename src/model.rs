@@ -376,6 +376,10 @@ pub struct Catchment {
     /// compute the connected impervious share on its own (continuous
     /// records always do).
     pub separate_impervious: bool,
+    /// Whether the composite CN counts impervious cover marked
+    /// `connected = false` at half weight (TR-55 Figure 2-4, under 30 %
+    /// impervious), so that it is not the area-weighted mean of the covers.
+    pub unconnected_reduced: bool,
 }
 
 impl Catchment {

@@ -131,6 +131,52 @@ fn run_lot(record: &str, csv: &str) -> serde_json::Value {
     s
 }
 
+/// `summary.md` of the same lot as [`design_storm_summary`].
+fn design_storm_markdown(catchment_keys: &str, cover_keys: &str, impervious_ac: f64) -> String {
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let rest_ac = 10.0 - impervious_ac;
+    let sc = format!(
+        "title = \"Impervious options (invented)\"\nunits = \"us\"\n\n[[storm]]\nname = \"small\"\npattern = \"uniform\"\nduration = \"6 h\"\ndepth = \"1.0 in\"\n\n[[catchment]]\nname = \"lot\"\narea = \"10 ac\"\ntc = \"30 min\"\nto = \"outlet\"\n{catchment_keys}\n[[catchment.cover]]\ncn = 98\narea = \"{impervious_ac} ac\"\n{cover_keys}\n[[catchment.cover]]\ncn = 61\narea = \"{rest_ac} ac\"\n\n[[point]]\nname = \"outlet\"\nlimit = \"none\"\n"
+    );
+    let path = dir.path().join("s.toml");
+    std::fs::write(&path, sc).unwrap_or_else(|e| panic!("{e}"));
+    let (code, s, out) = run_scenario(&path);
+    assert_eq!(code, 0, "{s}");
+    std::fs::read_to_string(out.path().join("out/summary.md")).unwrap_or_default()
+}
+
+#[test]
+fn the_reports_say_how_impervious_cover_enters_the_runoff() {
+    // TR-55 (1986) Figure 2-4 (from memory): 20 % impervious, all unconnected, CNp 61:
+    // CNc = 61 + (98 - 61)(0 + 0.5 x 20)/100 = 64.7; with nothing connected the rest is
+    // the whole area at that CN.
+    let s = design_storm_summary("impervious = \"separate\"", "connected = false", 2.0);
+    let c = &s["catchments"][0];
+    assert_eq!(c["impervious"]["treatment"], "separate", "{c}");
+    assert_eq!(c["impervious"]["composite"], "TR-55 Figure 2-4");
+    assert!(num(&c["impervious"]["connected_fraction"]).abs() < 1e-12);
+    assert!(
+        (num(&c["impervious"]["rest_cn"]) - 64.7).abs() < 1e-9,
+        "{c}"
+    );
+    assert_eq!(c["covers"][0]["unconnected"], true);
+    assert!(c["covers"][1].get("unconnected").is_none(), "{c}");
+    // TR-55 (1986) Figure 2-3 (area-weighted): 20 % connected at CN 98, the rest CN 61.
+    let s = design_storm_summary("", "", 2.0);
+    let c = &s["catchments"][0];
+    assert_eq!(c["impervious"]["treatment"], "composite", "{c}");
+    assert_eq!(c["impervious"]["composite"], "area-weighted");
+    assert!((num(&c["impervious"]["connected_fraction"]) - 0.2).abs() < 1e-12);
+    assert!((num(&c["impervious"]["rest_cn"]) - 61.0).abs() < 1e-9);
+    let md = design_storm_markdown("impervious = \"separate\"", "connected = false", 2.0);
+    assert!(md.contains("| CN given (unconnected) | 98 |"), "{md}");
+    assert!(
+        md.contains("not the area-weighted mean of the rows")
+            && md.contains("Impervious cover computed separately"),
+        "{md}"
+    );
+}
+
 fn lot_entry(s: &serde_json::Value) -> serde_json::Value {
     s["records"]
         .as_array()

@@ -74,6 +74,7 @@ mod tests {
             connected_fraction: 0.0,
             rest_cn: 80.0,
             separate_impervious: false,
+            unconnected_reduced: false,
         }
     }
 

@@ -68,7 +68,7 @@ pub fn check_text(
             let _ = writeln!(
                 t,
                 "    cover {:<32} CN {:>5.1}  {} {au}",
-                r.cover,
+                crate::report::markdown::cover_label(&r.cover, r.unconnected),
                 r.cn,
                 sig(r.area, 4)
             );
@@ -83,6 +83,9 @@ pub fn check_text(
                 String::new()
             }
         );
+        if let Some(imp) = &c.impervious {
+            let _ = writeln!(t, "    {}", imp.sentence());
+        }
         for (i, g) in c.flow_path.iter().enumerate() {
             let _ = writeln!(
                 t,

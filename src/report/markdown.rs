@@ -513,7 +513,7 @@ fn covers(m: &mut String, c: &CatchmentOut, u: &Units) {
     ]);
     for r in &c.covers {
         t.row([
-            r.cover.clone(),
+            cover_label(&r.cover, r.unconnected),
             f(r.cn, 0),
             f(r.area, 3),
             f(r.cn * r.area, 2),
@@ -526,6 +526,19 @@ fn covers(m: &mut String, c: &CatchmentOut, u: &Units) {
         f(c.cn, 2),
         f(c.covers.iter().map(|r| r.area).sum(), 3)
     );
+    if let Some(imp) = &c.impervious {
+        let _ = writeln!(m, "{}\n", imp.sentence());
+    }
+}
+
+/// A cover's label, marked when it is impervious cover not directly
+/// connected (`connected = false`).
+pub fn cover_label(label: &str, unconnected: bool) -> String {
+    if unconnected {
+        format!("{label} (unconnected)")
+    } else {
+        label.to_string()
+    }
 }
 
 /// A catchment's flow-path segments with velocities and travel times.

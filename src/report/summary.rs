@@ -97,6 +97,48 @@ pub struct CoverOut {
     pub cn: f64,
     /// Area.
     pub area: f64,
+    /// Impervious cover marked `connected = false` (written only when so).
+    #[serde(skip_serializing_if = "std::ops::Not::not")]
+    pub unconnected: bool,
+}
+
+/// How a catchment's impervious cover (CN 98) enters its runoff.
+#[derive(Debug, Clone, Serialize)]
+pub struct ImperviousOut {
+    /// `"separate"` (the connected share at CN 98 on its own in design
+    /// storms and event-mode records) or `"composite"` (one CN).
+    pub treatment: &'static str,
+    /// Share of the area that is directly connected impervious cover, 0-1.
+    pub connected_fraction: f64,
+    /// CN of the rest of the area (what runs off beside the connected share
+    /// when it is computed on its own).
+    pub rest_cn: f64,
+    /// How the composite CN was formed: `"area-weighted"` or
+    /// `"TR-55 Figure 2-4"` (unconnected impervious cover at half weight).
+    pub composite: &'static str,
+}
+
+impl ImperviousOut {
+    /// The sentence the reports print under a catchment's covers.
+    pub fn sentence(&self) -> String {
+        let mut text = String::new();
+        if self.composite == "TR-55 Figure 2-4" {
+            text.push_str("The composite CN counts impervious cover marked unconnected at half weight (TR-55 Figure 2-4, under 30 % impervious; the equation is recalled from memory), so it is not the area-weighted mean of the rows. ");
+        }
+        if self.treatment == "separate" {
+            text.push_str(&format!(
+                "Impervious cover computed separately: the directly connected share, {:.1} % of the area, runs off at CN 98 on its own and the rest at CN {:.2}, added by area (design storms and event-mode records; continuous records always do so).",
+                100.0 * self.connected_fraction,
+                self.rest_cn
+            ));
+        } else {
+            text.push_str(&format!(
+                "Directly connected impervious cover is {:.1} % of the area, in the composite CN (`impervious = \"composite\"`; continuous records compute it on its own at CN 98).",
+                100.0 * self.connected_fraction
+            ));
+        }
+        text
+    }
 }
 
 /// A catchment's derived parameters.
@@ -138,6 +180,10 @@ pub struct CatchmentOut {
     pub prf: f64,
     /// Covers.
     pub covers: Vec<CoverOut>,
+    /// How impervious cover enters the runoff, when the catchment has
+    /// directly connected impervious cover or `impervious = "separate"`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub impervious: Option<ImperviousOut>,
     /// Flow path.
     pub flow_path: Vec<SegmentOut>,
     /// Where it drains.
@@ -699,8 +745,26 @@ fn catchments_out(study: &Study) -> Vec<CatchmentOut> {
                     cover: r.label.clone(),
                     cn: r.cn,
                     area: o.area(r.area_ac),
+                    unconnected: r.is_impervious() && !r.connected,
                 })
                 .collect(),
+            impervious: (c.separate_impervious
+                || c.connected_fraction > 0.0
+                || c.unconnected_reduced)
+                .then_some(ImperviousOut {
+                    treatment: if c.separate_impervious {
+                        "separate"
+                    } else {
+                        "composite"
+                    },
+                    connected_fraction: c.connected_fraction,
+                    rest_cn: c.rest_cn,
+                    composite: if c.unconnected_reduced {
+                        "TR-55 Figure 2-4"
+                    } else {
+                        "area-weighted"
+                    },
+                }),
             flow_path: c
                 .segments
                 .iter()

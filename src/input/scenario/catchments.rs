@@ -139,6 +139,7 @@ impl Builder<'_> {
             connected_fraction: split.connected_fraction,
             rest_cn: split.rest_cn,
             separate_impervious,
+            unconnected_reduced: split.unconnected_reduced,
         })
     }
 
@@ -710,6 +711,9 @@ struct ImperviousSplit {
     /// The impervious share (percent) when covers are marked unconnected
     /// but the share is 30 % or more, so the marks were not used.
     unconnected_ignored_pct: Option<f64>,
+    /// Whether the composite is TR-55 Figure 2-4's (unconnected impervious
+    /// cover at half weight).
+    unconnected_reduced: bool,
 }
 
 /// Splits the covers into connected impervious cover (CN 98) and the rest.
@@ -734,6 +738,7 @@ fn impervious_split(covers: &[CoverRow], area_weighted_cn: f64) -> ImperviousSpl
             connected_fraction: 0.0,
             rest_cn: area_weighted_cn,
             unconnected_ignored_pct: None,
+            unconnected_reduced: false,
         };
     }
     let other: Vec<(f64, f64)> = covers
@@ -756,6 +761,7 @@ fn impervious_split(covers: &[CoverRow], area_weighted_cn: f64) -> ImperviousSpl
                 connected_fraction: connected / total,
                 rest_cn,
                 unconnected_ignored_pct: None,
+                unconnected_reduced: true,
             }
         }
         _ => ImperviousSplit {
@@ -763,6 +769,7 @@ fn impervious_split(covers: &[CoverRow], area_weighted_cn: f64) -> ImperviousSpl
             connected_fraction: (connected + unconnected) / total,
             rest_cn: pervious_cn,
             unconnected_ignored_pct: (pu > 0.0).then_some(pc + pu),
+            unconnected_reduced: false,
         },
     }
 }

@@ -306,7 +306,10 @@ pub(super) fn catchments(doc: &mut Doc, input: &HtmlInput<'_>) {
                 .enumerate()
                 .map(|(j, r)| {
                     vec![
-                        Cell::Text(esc(&r.cover)),
+                        Cell::Text(esc(&crate::report::markdown::cover_label(
+                            &r.cover,
+                            r.unconnected,
+                        ))),
                         Doc::num(format!("catchments.{i}.covers.{j}.cn"), r.cn, 0),
                         Doc::num(format!("catchments.{i}.covers.{j}.area"), r.area, 3),
                         Doc::calc(fixed(r.cn * r.area, 2)),
@@ -316,12 +319,15 @@ pub(super) fn catchments(doc: &mut Doc, input: &HtmlInput<'_>) {
             doc.table(
                 &format!("tab-covers-{i}"),
                 &format!(
-                    "Catchment {}: covers (TR-55 Table 2-2) and the area-weighted curve number.",
+                    "Catchment {}: covers (TR-55 Table 2-2), for the composite curve number.",
                     esc(&c.name)
                 ),
                 &cols,
                 &rows,
             );
+            if let Some(imp) = &c.impervious {
+                doc.para(&esc(&imp.sentence().replace('`', "")));
+            }
         }
         if !c.flow_path.is_empty() {
             let lu = u.stage;
