@@ -131,20 +131,6 @@ fn run_lot(record: &str, csv: &str) -> serde_json::Value {
     s
 }
 
-/// `summary.md` of the same lot as [`design_storm_summary`].
-fn design_storm_markdown(catchment_keys: &str, cover_keys: &str, impervious_ac: f64) -> String {
-    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
-    let rest_ac = 10.0 - impervious_ac;
-    let sc = format!(
-        "title = \"Impervious options (invented)\"\nunits = \"us\"\n\n[[storm]]\nname = \"small\"\npattern = \"uniform\"\nduration = \"6 h\"\ndepth = \"1.0 in\"\n\n[[catchment]]\nname = \"lot\"\narea = \"10 ac\"\ntc = \"30 min\"\nto = \"outlet\"\n{catchment_keys}\n[[catchment.cover]]\ncn = 98\narea = \"{impervious_ac} ac\"\n{cover_keys}\n[[catchment.cover]]\ncn = 61\narea = \"{rest_ac} ac\"\n\n[[point]]\nname = \"outlet\"\nlimit = \"none\"\n"
-    );
-    let path = dir.path().join("s.toml");
-    std::fs::write(&path, sc).unwrap_or_else(|e| panic!("{e}"));
-    let (code, s, out) = run_scenario(&path);
-    assert_eq!(code, 0, "{s}");
-    std::fs::read_to_string(out.path().join("out/summary.md")).unwrap_or_default()
-}
-
 #[test]
 fn the_reports_say_how_impervious_cover_enters_the_runoff() {
     // TR-55 (1986) Figure 2-4 (from memory): 20 % impervious, all unconnected, CNp 61:
@@ -168,7 +154,7 @@ fn the_reports_say_how_impervious_cover_enters_the_runoff() {
     assert_eq!(c["impervious"]["composite"], "area-weighted");
     assert!((num(&c["impervious"]["connected_fraction"]) - 0.2).abs() < 1e-12);
     assert!((num(&c["impervious"]["rest_cn"]) - 61.0).abs() < 1e-9);
-    let md = design_storm_markdown("impervious = \"separate\"", "connected = false", 2.0);
+    let (_, md) = design_storm_run("impervious = \"separate\"", "connected = false", 2.0);
     assert!(md.contains("| CN given (unconnected) | 98 |"), "{md}");
     assert!(
         md.contains("not the area-weighted mean of the rows")
@@ -292,6 +278,15 @@ fn design_storm_summary(
     cover_keys: &str,
     impervious_ac: f64,
 ) -> serde_json::Value {
+    design_storm_run(catchment_keys, cover_keys, impervious_ac).0
+}
+
+/// `summary.json` and `summary.md` of the lot of [`design_storm_summary`].
+fn design_storm_run(
+    catchment_keys: &str,
+    cover_keys: &str,
+    impervious_ac: f64,
+) -> (serde_json::Value, String) {
     let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
     let rest_ac = 10.0 - impervious_ac;
     let sc = format!(
@@ -299,9 +294,10 @@ fn design_storm_summary(
     );
     let path = dir.path().join("s.toml");
     std::fs::write(&path, sc).unwrap_or_else(|e| panic!("{e}"));
-    let (code, s, _out) = run_scenario(&path);
+    let (code, s, out) = run_scenario(&path);
     assert_eq!(code, 0, "{s}");
-    s
+    let md = std::fs::read_to_string(out.path().join("out/summary.md")).unwrap_or_default();
+    (s, md)
 }
 
 #[test]

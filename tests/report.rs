@@ -104,14 +104,9 @@ fn a_scenario_with_one_condition_runs_and_reports_not_checked_no_baseline() {
     assert_eq!(rec["check"], "flow duration");
     assert_eq!(rec["status"], "not checked: no baseline");
     // One warning names the point and what is not checked.
-    let w: Vec<&serde_json::Value> = s["warning_details"]
-        .as_array()
-        .into_iter()
-        .flatten()
-        .filter(|w| w["code"] == "no-baseline")
-        .collect();
+    let w = warnings_coded(&s, "no-baseline");
     assert_eq!(w.len(), 1, "{}", s["warning_details"]);
-    let msg = w[0]["message"].as_str().unwrap_or_default();
+    let msg = &w[0];
     assert!(
         msg.contains("point \"outlet\"")
             && msg.contains("limit \"existing\"")
@@ -129,6 +124,17 @@ fn a_scenario_with_one_condition_runs_and_reports_not_checked_no_baseline() {
     let md = std::fs::read_to_string(dir.path().join("out/summary.md")).unwrap_or_default();
     assert!(md.contains("| not checked: no baseline |"), "{md}");
     assert!(md.contains("| baseline | existing (no element"), "{md}");
+}
+
+/// The messages of `summary.json`'s warnings with `code`.
+fn warnings_coded(s: &serde_json::Value, code: &str) -> Vec<String> {
+    s["warning_details"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .filter(|w| w["code"] == code)
+        .filter_map(|w| w["message"].as_str().map(str::to_string))
+        .collect()
 }
 
 /// `one-condition.toml` with every `condition` key left out (so every
@@ -184,21 +190,10 @@ fn a_scenario_of_one_condition_checks_its_flow_limits_and_says_what_it_cannot_co
     let rec = row("twenty years");
     assert_eq!(rec["check"], "flow duration");
     assert_eq!(rec["status"], "not checked: one condition only");
-    let codes: Vec<&str> = s["warning_details"]
-        .as_array()
-        .into_iter()
-        .flatten()
-        .filter_map(|w| w["code"].as_str())
-        .collect();
-    assert!(!codes.contains(&"no-baseline"), "{codes:?}");
-    let w: Vec<&serde_json::Value> = s["warning_details"]
-        .as_array()
-        .into_iter()
-        .flatten()
-        .filter(|w| w["code"] == "one-condition")
-        .collect();
+    assert!(warnings_coded(&s, "no-baseline").is_empty());
+    let w = warnings_coded(&s, "one-condition");
     assert_eq!(w.len(), 1, "{}", s["warning_details"]);
-    let msg = w[0]["message"].as_str().unwrap_or_default();
+    let msg = &w[0];
     assert!(
         msg.contains("point \"outlet\"")
             && msg.contains("limit \"existing\"")

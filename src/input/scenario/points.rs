@@ -202,29 +202,30 @@ impl Builder<'_> {
         })
     }
 
-    /// Warns when point `p` of a study of one condition has limits that
-    /// compare conditions (reported "not checked: one condition only").
-    fn warn_one_condition(&mut self, p: &Point, condition: &str, has_records: bool) {
-        let mut needs: Vec<String> = Vec::new();
+    /// What of point `p` cannot be checked, with its verb (`its limit
+    /// "existing" needs`): each distinct limit that `cannot` holds for, and the
+    /// flow-duration rule when `durations_too`; `None` when nothing. `verb` is
+    /// the verb for one thing and for several (`("needs", "need")`).
+    fn unchecked_what(
+        p: &Point,
+        cannot: impl Fn(&Limit) -> bool,
+        durations_too: bool,
+        verb: (&str, &str),
+    ) -> Option<String> {
+        let mut what: Vec<String> = Vec::new();
         for (l, t) in p.limits.iter().zip(&p.limit_text) {
             let said = format!("limit \"{t}\"");
-            if matches!(l, Limit::Relative { .. }) && !needs.contains(&said) {
-                needs.push(said);
+            if cannot(l) && !what.contains(&said) {
+                what.push(said);
             }
         }
-        if p.durations.is_some() && has_records {
-            needs.push("flow-duration rule".to_string());
+        if p.durations.is_some() && durations_too {
+            what.push("flow-duration rule".to_string());
         }
-        if !needs.is_empty() {
-            self.warnings.push(Warning::OneCondition {
-                point: p.name.clone(),
-                what: if needs.len() == 1 {
-                    format!("its {} compares", needs[0])
-                } else {
-                    format!("its {} compare", needs.join(" and its "))
-                },
-                condition: condition.to_string(),
-            });
+        match what.len() {
+            0 => None,
+            1 => Some(format!("its {} {}", what[0], verb.0)),
+            _ => Some(format!("its {} {}", what.join(" and its "), verb.1)),
         }
     }
 
@@ -244,29 +245,25 @@ impl Builder<'_> {
             points.push(self.point(p, conditions, storms)?);
         }
         for (pi, p) in points.iter().enumerate() {
+            let records = !raw.record.is_empty();
             if conditions.len() == 1 {
-                self.warn_one_condition(p, &conditions[0], !raw.record.is_empty());
+                let compares = |l: &Limit| matches!(l, Limit::Relative { .. });
+                if let Some(what) =
+                    Self::unchecked_what(p, compares, records, ("compares", "compare"))
+                {
+                    self.warnings.push(Warning::OneCondition {
+                        point: p.name.clone(),
+                        what,
+                        condition: conditions[0].clone(),
+                    });
+                }
             }
             if baseline_empty {
-                let mut needs: Vec<String> = Vec::new();
-                for (l, t) in p.limits.iter().zip(&p.limit_text) {
-                    let missing = matches!(l, Limit::Relative { condition: 0, .. });
-                    let said = format!("limit \"{t}\"");
-                    if missing && !needs.contains(&said) {
-                        needs.push(said);
-                    }
-                }
-                if p.durations.is_some() && !raw.record.is_empty() {
-                    needs.push("flow-duration rule".to_string());
-                }
-                if !needs.is_empty() {
+                let missing = |l: &Limit| matches!(l, Limit::Relative { condition: 0, .. });
+                if let Some(what) = Self::unchecked_what(p, missing, records, ("needs", "need")) {
                     self.warnings.push(Warning::NoBaseline {
                         point: p.name.clone(),
-                        what: if needs.len() == 1 {
-                            format!("its {} needs", needs[0])
-                        } else {
-                            format!("its {} need", needs.join(" and its "))
-                        },
+                        what,
                         baseline: conditions[0].clone(),
                         condition: conditions[1].clone(),
                     });
