@@ -82,13 +82,7 @@ fn a_scenario_with_one_condition_runs_and_reports_not_checked_no_baseline() {
     assert_eq!(s["baseline_present"], false);
     assert_eq!(s["conditions"], serde_json::json!(["proposed"]));
     assert_eq!(s["all_pass"], true);
-    let rows = s["comparisons"].as_array().cloned().unwrap_or_default();
-    let row = |when: &str| {
-        rows.iter()
-            .find(|c| c["storm"] == when || c["record"] == when)
-            .cloned()
-            .unwrap_or_else(|| panic!("no comparison for {when}: {rows:?}"))
-    };
+    let row = |when: &str| comparison_for(&s, when);
     // The default limit "existing" needs the missing baseline.
     let ten = row("10-yr");
     assert_eq!(ten["status"], "not checked: no baseline");
@@ -124,6 +118,17 @@ fn a_scenario_with_one_condition_runs_and_reports_not_checked_no_baseline() {
     let md = std::fs::read_to_string(dir.path().join("out/summary.md")).unwrap_or_default();
     assert!(md.contains("| not checked: no baseline |"), "{md}");
     assert!(md.contains("| baseline | existing (no element"), "{md}");
+}
+
+/// The comparison of `summary.json` for a storm or record named `when`.
+fn comparison_for(s: &serde_json::Value, when: &str) -> serde_json::Value {
+    s["comparisons"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .find(|c| c["storm"] == when || c["record"] == when)
+        .cloned()
+        .unwrap_or_else(|| panic!("no comparison for {when}: {}", s["comparisons"]))
 }
 
 /// The messages of `summary.json`'s warnings with `code`.
@@ -171,13 +176,7 @@ fn a_scenario_of_one_condition_checks_its_flow_limits_and_says_what_it_cannot_co
     let (code, s, dir) = run_without_conditions("60 cfs");
     assert_eq!(code, 0, "{s}");
     assert_eq!(s["conditions"], serde_json::json!(["existing"]));
-    let rows = s["comparisons"].as_array().cloned().unwrap_or_default();
-    let row = |when: &str| {
-        rows.iter()
-            .find(|c| c["storm"] == when || c["record"] == when)
-            .cloned()
-            .unwrap_or_else(|| panic!("no comparison for {when}: {rows:?}"))
-    };
+    let row = |when: &str| comparison_for(&s, when);
     let hundred = row("100-yr");
     assert_eq!(hundred["condition"], "existing");
     assert_eq!(hundred["status"], "meets");

@@ -178,6 +178,17 @@ fn chromium() -> Option<PathBuf> {
     None
 }
 
+/// Headless Chromium with nothing of its own running in the background.
+const QUIET_BROWSER: [&str; 7] = [
+    "--headless",
+    "--no-sandbox",
+    "--disable-gpu",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+    "--no-first-run",
+];
+
 /// Runs headless Chromium on `url` with a fresh profile, every host unresolvable (so a request
 /// for anything outside the file fails and is logged) and the net log written to `net_log`;
 /// returns stderr.
@@ -190,14 +201,8 @@ fn chromium_run(
 ) -> String {
     let profile = work.join(format!("profile-{}", extra.len()));
     let o = Command::new(browser)
+        .args(QUIET_BROWSER)
         .args([
-            "--headless",
-            "--no-sandbox",
-            "--disable-gpu",
-            "--disable-background-networking",
-            "--disable-component-update",
-            "--disable-sync",
-            "--no-first-run",
             "--enable-logging=stderr",
             "--v=0",
             "--host-resolver-rules=MAP * ~NOTFOUND",
@@ -320,14 +325,8 @@ fn tables_wider_than_the_page(browser: &Path, dir: &Path, work: &Path) -> String
     std::fs::write(&page, html.replace("</body>", &format!("{script}</body>")))
         .unwrap_or_else(|e| panic!("{e}"));
     let o = Command::new(browser)
+        .args(QUIET_BROWSER)
         .args([
-            "--headless",
-            "--no-sandbox",
-            "--disable-gpu",
-            "--disable-background-networking",
-            "--disable-component-update",
-            "--disable-sync",
-            "--no-first-run",
             "--host-resolver-rules=MAP * ~NOTFOUND",
             "--window-size=1280,1800",
             "--virtual-time-budget=5000",
