@@ -350,32 +350,53 @@ pub(super) fn place_notes(notes: &[(Px, Px)], crowding: &mut Crowding, bounds: R
     crowding.finish();
     let mut placed: Vec<Rect> = Vec::new();
     for &((ax, ay), (w, h)) in notes {
-        let lefts = [ax + 14, ax - 14 - w, ax - w / 2, ax + 40, ax - 40 - w];
+        let near = [ax + 14, ax - 14 - w, ax - w / 2, ax + 40, ax - 40 - w];
         let mut tops = vec![ay - h - 8, ay - h / 2, ay + 10];
         for k in 1..=6 {
             tops.push(ay - h - 8 - k * (h + 8));
             tops.push(ay + 10 + k * (h + 8));
         }
-        let mut best: Option<(i64, Rect)> = None;
-        for &l in &lefts {
-            for &t in &tops {
-                let bx = (l, t, l + w, t + h);
-                if bx.0 < bx0 + 2 || bx.2 > bx1 - 2 || bx.1 < by0 + 2 || bx.3 > by1 - 2 {
-                    continue;
-                }
-                let clash = placed
-                    .iter()
-                    .any(|p| bx.0 < p.2 + 4 && bx.2 + 4 > p.0 && bx.1 < p.3 + 4 && bx.3 + 4 > p.1);
-                let near_x = ax.clamp(bx.0, bx.2);
-                let near_y = ay.clamp(bx.1, bx.3);
-                let dist = i64::from((near_x - ax).abs() + (near_y - ay).abs());
-                let score =
-                    i64::from(crowding.count(bx)) * 12 + dist + if clash { 1_000_000 } else { 0 };
-                if best.is_none_or(|(s, _)| score < s) {
-                    best = Some((score, bx));
+        let score_of = |bx: Rect| -> Option<(i64, bool)> {
+            if bx.0 < bx0 + 2 || bx.2 > bx1 - 2 || bx.1 < by0 + 2 || bx.3 > by1 - 2 {
+                return None;
+            }
+            let clash = placed
+                .iter()
+                .any(|p| bx.0 < p.2 + 4 && bx.2 + 4 > p.0 && bx.1 < p.3 + 4 && bx.3 + 4 > p.1);
+            let near_x = ax.clamp(bx.0, bx.2);
+            let near_y = ay.clamp(bx.1, bx.3);
+            let dist = i64::from((near_x - ax).abs() + (near_y - ay).abs());
+            let score =
+                i64::from(crowding.count(bx)) * 12 + dist + if clash { 1_000_000 } else { 0 };
+            Some((score, clash))
+        };
+        let best_of = |lefts: &[i32]| -> Option<(i64, bool, Rect)> {
+            let mut best: Option<(i64, bool, Rect)> = None;
+            for &l in lefts {
+                for &t in &tops {
+                    let bx = (l, t, l + w, t + h);
+                    if let Some((score, clash)) = score_of(bx)
+                        && best.is_none_or(|(s, _, _)| score < s)
+                    {
+                        best = Some((score, clash, bx));
+                    }
                 }
             }
+            best
+        };
+        // Beside the point first; only when every such spot would overlap a box already
+        // placed (notes anchored close together, as reference elevations at the plot's edge),
+        // further along to either side.
+        let mut best = best_of(&near);
+        if best.is_none_or(|b| b.1) {
+            let farther: Vec<i32> = (1..=8)
+                .flat_map(|k| [ax - 40 - w - k * (w / 3 + 8), ax + 40 + k * (w / 3 + 8)])
+                .collect();
+            if let Some(b) = best_of(&farther).filter(|b| !b.1) {
+                best = Some(b);
+            }
         }
+        let best = best.map(|b| (b.0, b.2));
         // Nothing fits inside the plot (a tiny plot or a huge note): use the top-left corner.
         placed.push(best.map_or((bx0 + 4, by0 + 4, bx0 + 4 + w, by0 + 4 + h), |b| b.1));
     }

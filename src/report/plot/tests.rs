@@ -565,6 +565,28 @@ fn notes_for_the_same_point_do_not_overlap_and_stay_inside_the_plot() {
 }
 
 #[test]
+fn notes_anchored_close_together_at_the_edge_stand_apart() {
+    // A pond's reference elevations: twelve notes anchored at the plot's right edge, a few
+    // pixels apart (openings, a barrel, a tailwater and the embankment near one stage), more
+    // than one column of boxes holds in the plot's height.
+    let bounds = (100, 100, 900, 350);
+    let mut crowd = Crowding::new(bounds);
+    let notes: Vec<((i32, i32), (i32, i32))> =
+        (0..12).map(|k| ((896, 180 + 8 * k), (230, 22))).collect();
+    for &((_, y), _) in &notes {
+        crowd.trace([(100, y), (900, y)]);
+    }
+    let boxes = place_notes(&notes, &mut crowd, bounds);
+    for (i, a) in boxes.iter().enumerate() {
+        assert!(a.0 >= bounds.0 && a.2 <= bounds.2, "{a:?}");
+        for b in boxes.iter().skip(i + 1) {
+            let overlap = a.0 < b.2 && b.0 < a.2 && a.1 < b.3 && b.1 < a.3;
+            assert!(!overlap, "{a:?} overlaps {b:?}");
+        }
+    }
+}
+
+#[test]
 fn crowding_counts_the_marks_inside_a_rectangle() {
     let mut crowd = Crowding::new((0, 0, 400, 400));
     crowd.trace([(0, 200), (400, 200)]);
