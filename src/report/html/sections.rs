@@ -220,6 +220,52 @@ fn sig_opt(path: String, v: Option<f64>) -> Cell {
     }
 }
 
+/// A catchment's covers with the sentence on its impervious cover (none
+/// when the CN was given).
+fn covers_table(
+    doc: &mut Doc,
+    i: usize,
+    c: &crate::report::summary::CatchmentOut,
+    u: &crate::report::summary::Units,
+) {
+    if !c.covers.is_empty() {
+        let cols = [
+            text_col("cover"),
+            num_col("CN", ""),
+            num_col("area", u.area),
+            num_col("CN × area", ""),
+        ];
+        let rows: Vec<Vec<Cell>> = c
+            .covers
+            .iter()
+            .enumerate()
+            .map(|(j, r)| {
+                vec![
+                    Cell::Text(esc(&crate::report::markdown::cover_label(
+                        &r.cover,
+                        r.unconnected,
+                    ))),
+                    Doc::num(format!("catchments.{i}.covers.{j}.cn"), r.cn, 0),
+                    Doc::num(format!("catchments.{i}.covers.{j}.area"), r.area, 3),
+                    Doc::calc(fixed(r.cn * r.area, 2)),
+                ]
+            })
+            .collect();
+        doc.table(
+            &format!("tab-covers-{i}"),
+            &format!(
+                "Catchment {}: covers (TR-55 Table 2-2), for the composite curve number.",
+                esc(&c.name)
+            ),
+            &cols,
+            &rows,
+        );
+        if let Some(imp) = &c.impervious {
+            doc.para(&esc(&imp.sentence().replace('`', "")));
+        }
+    }
+}
+
 /// One worksheet per catchment: covers and composite CN, the flow path, the timing.
 pub(super) fn catchments(doc: &mut Doc, input: &HtmlInput<'_>) {
     let s = input.summary;
@@ -293,42 +339,7 @@ pub(super) fn catchments(doc: &mut Doc, input: &HtmlInput<'_>) {
             &cols,
             &rows,
         );
-        if !c.covers.is_empty() {
-            let cols = [
-                text_col("cover"),
-                num_col("CN", ""),
-                num_col("area", u.area),
-                num_col("CN × area", ""),
-            ];
-            let rows: Vec<Vec<Cell>> = c
-                .covers
-                .iter()
-                .enumerate()
-                .map(|(j, r)| {
-                    vec![
-                        Cell::Text(esc(&crate::report::markdown::cover_label(
-                            &r.cover,
-                            r.unconnected,
-                        ))),
-                        Doc::num(format!("catchments.{i}.covers.{j}.cn"), r.cn, 0),
-                        Doc::num(format!("catchments.{i}.covers.{j}.area"), r.area, 3),
-                        Doc::calc(fixed(r.cn * r.area, 2)),
-                    ]
-                })
-                .collect();
-            doc.table(
-                &format!("tab-covers-{i}"),
-                &format!(
-                    "Catchment {}: covers (TR-55 Table 2-2), for the composite curve number.",
-                    esc(&c.name)
-                ),
-                &cols,
-                &rows,
-            );
-            if let Some(imp) = &c.impervious {
-                doc.para(&esc(&imp.sentence().replace('`', "")));
-            }
-        }
+        covers_table(doc, i, c, u);
         if !c.flow_path.is_empty() {
             let lu = u.stage;
             let cols = [
