@@ -25,7 +25,8 @@ pub struct Topology {
     /// The point each element finally drains to (None on a loop, which
     /// validation refuses).
     point_of: Vec<Option<usize>>,
-    /// Sum of the `lag`s (h) from each element down to its point, its own included.
+    /// Sum of the `lag`s (h) from each element down to its point, its own
+    /// included, with channels' recession allowances ([`path_lag_h`]).
     path_lag_h: Vec<f64>,
     /// One entry per condition of the study.
     conditions: Vec<ConditionTopology>,
@@ -88,7 +89,7 @@ pub(crate) fn upstream_first(elements: &[Element], condition: usize) -> Vec<usiz
 fn own_area_ac(e: &Element) -> Option<f64> {
     match &e.kind {
         ElementKind::Catchment(c) => Some(c.area_ac),
-        ElementKind::Pond(_) | ElementKind::Inflow(_) => None,
+        ElementKind::Pond(_) | ElementKind::Inflow(_) | ElementKind::Channel(_) => None,
     }
 }
 
@@ -103,10 +104,13 @@ fn area_ac(elements: &[Element], c: usize, drains: impl Fn(usize) -> bool) -> f6
         .sum()
 }
 
-/// Sum of the `lag`s (h) from element `i` down to its point, its own included.
+/// Sum of the `lag`s (h) from element `i` down to its point, its own
+/// included, with the recession allowance of every channel passed
+/// ([`Element::run_allowance_h`]): the time a run must allow after the rain
+/// for that element's water to reach its point.
 pub(crate) fn path_lag_h(elements: &[Element], i: usize) -> f64 {
     let mut lag = 0.0;
-    walk(elements, i, |at| lag += elements[at].lag_h.max(0.0));
+    walk(elements, i, |at| lag += elements[at].run_allowance_h());
     lag
 }
 
@@ -203,7 +207,8 @@ impl Topology {
         self.conditions[c].area_to_element_ac[j]
     }
 
-    /// Sum of the `lag`s (h) from element `i` down to its point, its own included.
+    /// Sum of the `lag`s (h) from element `i` down to its point, its own
+    /// included, with channels' recession allowances.
     pub fn path_lag_h(&self, i: usize) -> f64 {
         self.path_lag_h[i]
     }

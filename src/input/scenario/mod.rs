@@ -7,6 +7,7 @@
 #![allow(clippy::result_large_err)]
 
 mod catchments;
+mod channels;
 pub mod context;
 mod elements;
 mod inflows;
@@ -386,6 +387,7 @@ impl<'a> Builder<'a> {
         let (step_h, step_given) = self.step(&raw, &elements, &storms)?;
         self.step_warnings(&elements, &storms, step_h);
         self.check_routing(&raw_elements, &elements, step_h)?;
+        self.check_channels(&raw_elements, &elements, step_h)?;
         let records = raw
             .record
             .iter()
