@@ -174,6 +174,28 @@ pub struct ChannelSummary {
     pub stored_end_ft3: f64,
 }
 
+impl ChannelSummary {
+    /// `(volume in - volume out - water left in the reach) / volume in`
+    /// (0 without inflow): the Muskingum recursion balances exactly, so
+    /// this is rounding only.
+    pub fn mass_balance_error(&self) -> f64 {
+        if self.volume_in_ft3 > 0.0 {
+            (self.volume_in_ft3 - self.volume_out_ft3 - self.stored_end_ft3) / self.volume_in_ft3
+        } else {
+            0.0
+        }
+    }
+
+    /// Peak outflow over peak inflow (1 without inflow).
+    pub fn attenuation(&self) -> f64 {
+        if self.peak_in_cfs > 0.0 {
+            self.peak_out_cfs / self.peak_in_cfs
+        } else {
+            1.0
+        }
+    }
+}
+
 impl ChannelResult {
     /// Peaks, times and volumes of the channel, with its `outflow_cfs`.
     pub fn summary(&self, outflow_cfs: &[f64], step_h: f64) -> ChannelSummary {
