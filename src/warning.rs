@@ -75,6 +75,13 @@ pub enum Warning {
         /// Condition.
         condition: String,
     },
+    /// A channel that nothing drains to in a condition it belongs to.
+    ChannelNoInflow {
+        /// Channel.
+        channel: String,
+        /// Condition.
+        condition: String,
+    },
     /// An outlet lies above the top of embankment.
     OutletAboveTop {
         /// Pond.
@@ -380,6 +387,7 @@ impl Warning {
             Warning::UnconnectedIgnored { .. } => "unconnected-ignored",
             Warning::StormShorterThanTc { .. } => "storm-shorter-than-tc",
             Warning::PointNotReached { .. } => "point-not-reached",
+            Warning::ChannelNoInflow { .. } => "channel-no-inflow",
             Warning::OutletAboveTop { .. } => "outlet-above-top",
             Warning::PondNeverFills { .. } => "pond-never-fills",
             Warning::OrificeNeverSubmerged { .. } => "orifice-never-submerged",
@@ -435,6 +443,7 @@ impl fmt::Display for Warning {
             | Warning::RecordStepCoarse { .. }
             | Warning::RecordStepCoarserThanGauge { .. } => self.fmt_record(f),
             Warning::PointNotReached { .. }
+            | Warning::ChannelNoInflow { .. }
             | Warning::NoBaseline { .. }
             | Warning::OneCondition { .. }
             | Warning::AreaMismatch { .. }
@@ -685,6 +694,10 @@ impl Warning {
             Warning::PointNotReached { point, condition } => write!(
                 f,
                 "point \"{point}\": nothing in condition \"{condition}\" drains to it; its flow there is zero"
+            ),
+            Warning::ChannelNoInflow { channel, condition } => write!(
+                f,
+                "channel \"{channel}\": nothing in condition \"{condition}\" drains to it, so it carries no flow there; point an element's `to` at it, or limit the channel's `condition`"
             ),
             Warning::NoBaseline {
                 point,

@@ -63,13 +63,38 @@ impl Builder<'_> {
         Ok(Channel { k_h, x: xv })
     }
 
+    /// Warns of a channel that nothing drains to in a condition it belongs to.
+    pub(super) fn channel_warnings(&mut self, elements: &[Element], conditions: &[String]) {
+        for (i, e) in elements.iter().enumerate() {
+            if !matches!(e.kind, ElementKind::Channel(_)) {
+                continue;
+            }
+            for (c, cname) in conditions.iter().enumerate() {
+                if !e.conditions[c] {
+                    continue;
+                }
+                let fed = elements
+                    .iter()
+                    .any(|u| u.conditions[c] && u.to == Target::Element(i));
+                if !fed {
+                    self.warnings.push(Warning::ChannelNoInflow {
+                        channel: e.name.clone(),
+                        condition: cname.clone(),
+                    });
+                }
+            }
+        }
+    }
+
     /// Every channel must have a routing split with non-negative
-    /// coefficients at the run's step ([`Channel::plan`]).
+    /// coefficients at a run's step ([`Channel::plan`]); `run` names the
+    /// run in the message (empty for the design storms' step).
     pub(super) fn check_channels(
         &self,
         raw_elements: &[RawElement],
         elements: &[Element],
         step_h: f64,
+        run: &str,
     ) -> R<()> {
         for (i, e) in elements.iter().enumerate() {
             let ElementKind::Channel(ch) = &e.kind else {
@@ -84,8 +109,8 @@ impl Builder<'_> {
                     &span,
                     &format!("channel \"{}\"", e.name),
                     format!(
-                        "K = {} min and X = {} cannot be routed at the step of {} min with non-negative Muskingum coefficients in at most {} sub-reaches times sub-steps",
-                        units::short(ch.k_h * 60.0, 4),
+                        "K = {} min and X = {} cannot be routed at the step of {} min{run} with non-negative Muskingum coefficients in at most {} sub-reaches times sub-steps",
+                        units::short(ch.k_h * 60.0, 6),
                         ch.x,
                         units::short(step_h * 60.0, 4),
                         crate::methods::channel::MAX_PLAN_WORK
