@@ -163,6 +163,9 @@ pub fn route_reach(inflow: &[f64], k: f64, x: f64, dt: f64, plan: Plan) -> Reach
 /// [`route_reach`] writing the outflow into `outflow` (as long as
 /// `inflow`), and, when given, the storage in the reach at each run step
 /// into `storage` (as long as `inflow`); returns the storage at the end.
+/// `plan` comes from [`plan`]: a coefficient below zero by rounding is
+/// taken as zero (with `C1 = 1 - C0 - C2`), which a plan that is not one
+/// would turn into an error in the volume.
 pub fn route_reach_into(
     inflow: &[f64],
     k: f64,
@@ -331,6 +334,34 @@ mod tests {
         for (x, y) in a.outflow.iter().zip(&b) {
             assert!((x - y).abs() < 1e-12);
         }
+    }
+
+    #[test]
+    fn sub_stepped_reach_keeps_the_volume_of_a_smooth_hydrograph() {
+        // derived: at sub-steps the balance is exact on the sub-step grid;
+        // the outflow sampled at the run step misses only the curvature
+        // between samples. A triangular hydrograph (peak 100 at 3 h, base
+        // 9 h) at 30-min steps through a reach of K = 3 min (10 sub-steps).
+        let dt = 0.5;
+        let inflow: Vec<f64> = (0..60)
+            .map(|i| {
+                let t = i as f64 * dt;
+                if t <= 3.0 {
+                    100.0 * t / 3.0
+                } else {
+                    (100.0 * (9.0 - t) / 6.0).max(0.0)
+                }
+            })
+            .collect();
+        let (k, x) = (0.05, 0.1);
+        let p = plan(k, x, dt).unwrap_or_else(|| panic!("no plan"));
+        assert!(p.sub_steps > 1, "{p:?}");
+        let r = route_reach(&inflow, k, x, dt, p);
+        let trap = |s: &[f64]| (s.iter().sum::<f64>() - 0.5 * (s[0] + s[s.len() - 1])) * dt;
+        let (vin, vout) = (trap(&inflow), trap(&r.outflow));
+        assert!(r.stored_end.abs() < 1e-9 * vin);
+        // the sampling error: less than 0.1 % of the volume here
+        assert!((vin - vout).abs() < 1e-3 * vin, "{vin} {vout}");
     }
 
     #[test]
