@@ -417,4 +417,75 @@ limit = "none"
             assert_eq!(path_lag_h(&s.elements, i), t.path_lag_h(i));
         }
     }
+
+    /// An invented site with a channel between a catchment and a pond.
+    const CHANNEL_SITE: &str = r#"
+title = "Topology test site with a gully"
+units = "us"
+step = "2 min"
+
+[[storm]]
+name = "10-yr"
+pattern = "nrcs-type-ii"
+depth = "4.0 in"
+
+[[catchment]]
+name = "uphill"
+area = "5 ac"
+cn = 75
+tc = "20 min"
+to = "gully"
+
+[[catchment]]
+name = "near"
+area = "2 ac"
+cn = 80
+tc = "10 min"
+to = "creek"
+
+[[channel]]
+name = "gully"
+to = "basin"
+k = "30 min"
+x = 0.2
+
+[[pond]]
+name = "basin"
+to = "creek"
+stage_area = [[40.0, 5000.0], [43.0, 9000.0]]
+[[pond.outlet]]
+kind = "orifice"
+invert = 40.0
+diameter = "12 in"
+
+[[point]]
+name = "creek"
+limit = "none"
+"#;
+
+    #[test]
+    fn a_channel_passes_on_its_area_and_lengthens_the_run() {
+        // runnel's network rule (a channel drains what reaches it along its
+        // path), no published source; the 7 K allowance is ln 1000 rounded
+        // up (derived: an emptying reach falls as exp(-t / (K (1 - X))))
+        let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+        let path = dir.path().join("site.toml");
+        std::fs::write(&path, CHANNEL_SITE).unwrap_or_else(|e| panic!("{e}"));
+        let s = crate::input::scenario::load(&path).unwrap_or_else(|e| panic!("{e}"));
+        let t = Topology::new(&s);
+        let (up, gully, basin) = (index(&s, "uphill"), index(&s, "gully"), index(&s, "basin"));
+        let creek = point(&s, "creek");
+        let order = t.order(0);
+        let at = |i: usize| order.iter().position(|&x| x == i);
+        assert!(at(up) < at(gully) && at(gully) < at(basin));
+        assert_eq!(t.area_to_element_ac(gully, 0), 5.0);
+        assert_eq!(t.area_to_element_ac(basin, 0), 5.0);
+        assert_eq!(t.area_to_point_ac(creek, 0), 7.0);
+        assert!(t.reaches_through(up, gully) && t.reaches_through(up, basin));
+        assert!(t.reaches(gully, creek));
+        assert!((t.path_lag_h(up) - 7.0 * 0.5).abs() < 1e-12);
+        assert!((t.path_lag_h(gully) - 7.0 * 0.5).abs() < 1e-12);
+        assert_eq!(t.path_lag_h(basin), 0.0);
+        assert_eq!(t.max_path_lag_h(), t.path_lag_h(up));
+    }
 }
