@@ -136,6 +136,18 @@ pub enum Warning {
         /// (inflow - outflow - change in storage) / inflow.
         error: f64,
     },
+    /// A channel routed at sub-steps whose outflow, sampled at the step,
+    /// does not balance its inflow within 0.1 %.
+    ChannelMassBalance {
+        /// Channel.
+        channel: String,
+        /// `storm "NAME"`.
+        run: String,
+        /// Condition.
+        condition: String,
+        /// (inflow - outflow - water left in the reach) / inflow.
+        error: f64,
+    },
     /// A pond rose over its top during a long record.
     RecordOvertopped {
         /// Pond.
@@ -394,6 +406,7 @@ impl Warning {
             Warning::Overtopped { .. } => "overtopped",
             Warning::GraphicalPeakDiffers { .. } => "graphical-peak-differs",
             Warning::MassBalance { .. } => "mass-balance",
+            Warning::ChannelMassBalance { .. } => "channel-mass-balance",
             Warning::RecordOvertopped { .. } => "record-overtopped",
             Warning::RecordWaterLeft { .. } => "record-water-left",
             Warning::RecordLagPastEnd { .. } => "record-lag-past-end",
@@ -444,6 +457,7 @@ impl fmt::Display for Warning {
             | Warning::RecordStepCoarserThanGauge { .. } => self.fmt_record(f),
             Warning::PointNotReached { .. }
             | Warning::ChannelNoInflow { .. }
+            | Warning::ChannelMassBalance { .. }
             | Warning::NoBaseline { .. }
             | Warning::OneCondition { .. }
             | Warning::AreaMismatch { .. }
@@ -694,6 +708,16 @@ impl Warning {
             Warning::PointNotReached { point, condition } => write!(
                 f,
                 "point \"{point}\": nothing in condition \"{condition}\" drains to it; its flow there is zero"
+            ),
+            Warning::ChannelMassBalance {
+                channel,
+                run,
+                condition,
+                error,
+            } => write!(
+                f,
+                "channel \"{channel}\" ({condition}, {run}): routed at sub-steps, its outflow sampled at the step is off the inflow volume by {:.2} % (more than 0.1 %); the reach is short for the step - use a smaller `step`",
+                error * 100.0
             ),
             Warning::ChannelNoInflow { channel, condition } => write!(
                 f,
