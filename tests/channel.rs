@@ -118,8 +118,19 @@ fn a_channel_nothing_drains_to_is_warned_of() {
 
 #[test]
 fn a_long_record_passes_through_the_channel() {
-    let (code, s, _dir) = run_scenario(&data("channel-record.toml"));
+    let (code, s, dir) = run_scenario(&data("channel-record.toml"));
     assert_eq!(code, 0);
+    // the split at the record's step (K 2 h, X 0.2, 10 min: 2KX = 48 min ->
+    // 5 sub-reaches of 24 min; common practice, no published source), and
+    // no storm table in a study without storms
+    let md = std::fs::read_to_string(dir.path().join("out/summary.md"))
+        .unwrap_or_else(|e| panic!("{e}"));
+    assert!(
+        md.contains("Record \"twenty years\": Muskingum routing"),
+        "{md}"
+    );
+    assert!(md.contains("in 5 sub-reaches of K/5 = 24.00 min"), "{md}");
+    assert!(!md.contains("| storm | condition | peak in"), "{md}");
     let entry = |condition: &str, element: &str| {
         s["records"]
             .as_array()

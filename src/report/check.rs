@@ -153,11 +153,9 @@ pub fn check_text(
             summary::kind_and_name("Channel", &e.name),
             summary::target_name(study, e.to)
         );
-        let _ = writeln!(
-            t,
-            "  {}",
-            crate::report::markdown::channel_sentence(ch, study.step_h)
-        );
+        for line in crate::report::markdown::channel_sentences(study, ch) {
+            let _ = writeln!(t, "  {line}");
+        }
         for ev in s
             .events
             .iter()

@@ -688,10 +688,30 @@ pub fn channel_sentence(ch: &crate::model::Channel, step_h: f64) -> String {
         None => "(no split with non-negative coefficients at this step)".to_string(),
     };
     format!(
-        "Muskingum routing (O2 = C0 I2 + C1 I1 + C2 O1) with K = {} min and X = {}, {split}, so that every coefficient is non-negative (2 (K/n) X <= step <= 2 (K/n)(1 - X)); the reach starts empty.",
+        "Muskingum routing (O2 = C0 I2 + C1 I1 + C2 O1) with K = {} min and X = {}, {split}, so that every coefficient is non-negative (the routing step lies between 2 (K/n) X and 2 (K/n)(1 - X)); the reach starts empty.",
         sig(ch.k_h * 60.0, 4),
         ch.x
     )
+}
+
+/// The routing sentences of a channel: at the design storms' step (when
+/// the study has storms) and at the step of every record.
+pub fn channel_sentences(study: &Study, ch: &crate::model::Channel) -> Vec<String> {
+    let mut out = Vec::new();
+    if !study.storms.is_empty() {
+        out.push(format!(
+            "Design storms: {}",
+            channel_sentence(ch, study.step_h)
+        ));
+    }
+    for r in &study.records {
+        out.push(format!(
+            "Record \"{}\": {}",
+            r.name,
+            channel_sentence(ch, r.step_h)
+        ));
+    }
+    out
 }
 
 /// One channel: its K, X and split, and per storm and condition the
@@ -709,7 +729,16 @@ fn channel(
         "## {}\n",
         crate::report::summary::kind_and_name("Channel", &cell(name))
     );
-    let _ = writeln!(m, "{}\n", channel_sentence(ch, study.step_h));
+    for line in channel_sentences(study, ch) {
+        let _ = writeln!(m, "{}\n", cell(&line));
+    }
+    if !s
+        .events
+        .iter()
+        .any(|e| e.kind == Kind::Channel && e.element == cell(name))
+    {
+        return;
+    }
     let mut t = Table::new(vec![
         Column::text("storm"),
         Column::text("condition"),

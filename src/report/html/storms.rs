@@ -218,10 +218,12 @@ pub(super) fn channels(doc: &mut Doc, input: &HtmlInput<'_>) {
         };
         doc.section(&format!("channel-{i}"), &kind_and_name("Channel", &e.name));
         doc.para(&esc(&format!(
-            "Drains to {}. {}",
-            crate::report::summary::target_name(study, e.to),
-            crate::report::markdown::channel_sentence(ch, study.step_h)
+            "Drains to {}.",
+            crate::report::summary::target_name(study, e.to)
         )));
+        for line in crate::report::markdown::channel_sentences(study, ch) {
+            doc.para(&esc(&line));
+        }
         let events: Vec<(usize, &_)> = s
             .events
             .iter()
