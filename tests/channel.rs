@@ -200,3 +200,52 @@ fn a_reach_short_for_the_step_is_routed_at_sub_steps() {
     // never above the peak inflow, even when the reach barely attenuates
     assert!(num(&swale["peak_flow"]) <= num(&swale["peak_inflow"]));
 }
+
+#[test]
+fn the_channel_numbers_in_report_html_are_those_of_summary_json() {
+    // runnel's own rule: a number the report shows from summary.json is
+    // tagged with its path and rounds from the JSON value
+    let (code, s, dir) = run_scenario(&data("channel.toml"));
+    assert_eq!(code, 0);
+    let html = std::fs::read_to_string(dir.path().join("out/report.html"))
+        .unwrap_or_else(|e| panic!("{e}"));
+    let mut checked = 0;
+    let mut rest = html.as_str();
+    while let Some(a) = rest.find("data-json=\"") {
+        let after = &rest[a + 11..];
+        let Some(q) = after.find('"') else { break };
+        let path = &after[..q];
+        let Some(gt) = after[q..].find('>') else {
+            break;
+        };
+        let text_start = &after[q + gt + 1..];
+        let Some(end) = text_start.find('<') else {
+            break;
+        };
+        let text = text_start[..end].trim();
+        rest = &text_start[end..];
+        if !(path.contains("inflow") || path.contains("events.")) {
+            continue;
+        }
+        let want = path
+            .split('.')
+            .try_fold(&s, |v, k| match k.parse::<usize>() {
+                Ok(i) => v.get(i),
+                Err(_) => v.get(k),
+            })
+            .and_then(serde_json::Value::as_f64)
+            .unwrap_or_else(|| panic!("{path} is not a number in summary.json"));
+        let shown: f64 = text
+            .parse()
+            .unwrap_or_else(|e| panic!("{path}: {text}: {e}"));
+        let decimals = text.split('.').nth(1).map_or(0, str::len) as i32;
+        assert!(
+            (shown - want).abs() <= 0.5 * 10f64.powi(-decimals) * (1.0 + 1e-9),
+            "{path}: {text} against {want}"
+        );
+        checked += 1;
+    }
+    // the channel's rows: peak in and its time, volume in, per storm
+    assert!(html.contains("inflow_volume"));
+    assert!(checked >= 10, "{checked}");
+}
