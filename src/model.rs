@@ -269,12 +269,48 @@ pub enum ElementKind {
     Pond(Pond),
     /// A hydrograph computed elsewhere.
     Inflow(Inflow),
+    /// A reach (swale, ditch, stream) routed by the Muskingum method.
+    Channel(Channel),
+}
+
+/// A channel reach routed by the Muskingum method
+/// ([`crate::methods::channel`]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Channel {
+    /// Muskingum K, the reach's travel time, h.
+    pub k_h: f64,
+    /// Muskingum X, the weighting of inflow against outflow (0 to 0.5).
+    pub x: f64,
+}
+
+/// How many K a run allows after the last rain for a channel's recession:
+/// the outflow of an emptying reach falls as `exp(-t / (K (1 - X)))`, below
+/// 0.1 % of its peak (the run-length rule) after `ln 1000 = 6.9` K at most.
+pub const CHANNEL_RECESSION_K: f64 = 7.0;
+
+impl Channel {
+    /// The routing split at step `step_h` ([`crate::methods::channel::plan`]).
+    pub fn plan(&self, step_h: f64) -> Option<crate::methods::channel::Plan> {
+        crate::methods::channel::plan(self.k_h, self.x, step_h)
+    }
 }
 
 impl Element {
-    /// Kind word for results: catchment, pond, inflow.
+    /// Kind word for results: catchment, pond, inflow, channel.
     pub fn kind_word(&self) -> &'static str {
         Kind::of(&self.kind).word()
+    }
+
+    /// Time (h) a run allows for this element on the way to its target
+    /// beyond the storm's tail: its `lag`, and for a channel
+    /// [`CHANNEL_RECESSION_K`] times its K, so that the reach's recession
+    /// finishes within the run.
+    pub fn run_allowance_h(&self) -> f64 {
+        let own = match &self.kind {
+            ElementKind::Channel(ch) => CHANNEL_RECESSION_K * ch.k_h,
+            _ => 0.0,
+        };
+        self.lag_h.max(0.0) + own
     }
 }
 
@@ -288,6 +324,8 @@ pub enum Kind {
     Pond,
     /// An inflow hydrograph.
     Inflow,
+    /// A channel reach.
+    Channel,
     /// A point of comparison.
     Point,
 }
@@ -299,6 +337,7 @@ impl Kind {
             ElementKind::Catchment(_) => Kind::Catchment,
             ElementKind::Pond(_) => Kind::Pond,
             ElementKind::Inflow(_) => Kind::Inflow,
+            ElementKind::Channel(_) => Kind::Channel,
         }
     }
 
@@ -308,6 +347,7 @@ impl Kind {
             Kind::Catchment => "catchment",
             Kind::Pond => "pond",
             Kind::Inflow => "inflow",
+            Kind::Channel => "channel",
             Kind::Point => "point",
         }
     }

@@ -75,6 +75,13 @@ pub enum Warning {
         /// Condition.
         condition: String,
     },
+    /// A channel that nothing drains to in a condition it belongs to.
+    ChannelNoInflow {
+        /// Channel.
+        channel: String,
+        /// Condition.
+        condition: String,
+    },
     /// An outlet lies above the top of embankment.
     OutletAboveTop {
         /// Pond.
@@ -127,6 +134,18 @@ pub enum Warning {
         /// Condition.
         condition: String,
         /// (inflow - outflow - change in storage) / inflow.
+        error: f64,
+    },
+    /// A channel routed at sub-steps whose outflow, sampled at the step,
+    /// does not balance its inflow within 0.1 %.
+    ChannelMassBalance {
+        /// Channel.
+        channel: String,
+        /// `storm "NAME"`.
+        run: String,
+        /// Condition.
+        condition: String,
+        /// (inflow - outflow - water left in the reach) / inflow.
         error: f64,
     },
     /// A pond rose over its top during a long record.
@@ -380,12 +399,14 @@ impl Warning {
             Warning::UnconnectedIgnored { .. } => "unconnected-ignored",
             Warning::StormShorterThanTc { .. } => "storm-shorter-than-tc",
             Warning::PointNotReached { .. } => "point-not-reached",
+            Warning::ChannelNoInflow { .. } => "channel-no-inflow",
             Warning::OutletAboveTop { .. } => "outlet-above-top",
             Warning::PondNeverFills { .. } => "pond-never-fills",
             Warning::OrificeNeverSubmerged { .. } => "orifice-never-submerged",
             Warning::Overtopped { .. } => "overtopped",
             Warning::GraphicalPeakDiffers { .. } => "graphical-peak-differs",
             Warning::MassBalance { .. } => "mass-balance",
+            Warning::ChannelMassBalance { .. } => "channel-mass-balance",
             Warning::RecordOvertopped { .. } => "record-overtopped",
             Warning::RecordWaterLeft { .. } => "record-water-left",
             Warning::RecordLagPastEnd { .. } => "record-lag-past-end",
@@ -435,6 +456,8 @@ impl fmt::Display for Warning {
             | Warning::RecordStepCoarse { .. }
             | Warning::RecordStepCoarserThanGauge { .. } => self.fmt_record(f),
             Warning::PointNotReached { .. }
+            | Warning::ChannelNoInflow { .. }
+            | Warning::ChannelMassBalance { .. }
             | Warning::NoBaseline { .. }
             | Warning::OneCondition { .. }
             | Warning::AreaMismatch { .. }
@@ -685,6 +708,20 @@ impl Warning {
             Warning::PointNotReached { point, condition } => write!(
                 f,
                 "point \"{point}\": nothing in condition \"{condition}\" drains to it; its flow there is zero"
+            ),
+            Warning::ChannelMassBalance {
+                channel,
+                run,
+                condition,
+                error,
+            } => write!(
+                f,
+                "channel \"{channel}\" ({condition}, {run}): routed at sub-steps, its outflow sampled at the step is off the inflow volume by {:.2} % (more than 0.1 %); the reach is short for the step - use a smaller `step`",
+                error * 100.0
+            ),
+            Warning::ChannelNoInflow { channel, condition } => write!(
+                f,
+                "channel \"{channel}\": nothing in condition \"{condition}\" drains to it, so it carries no flow there; point an element's `to` at it, or limit the channel's `condition`"
             ),
             Warning::NoBaseline {
                 point,

@@ -205,6 +205,16 @@ const CASES: &[Case] = &[
     case("storm-depth-huge", LineCol(9, 9), &["storm \"10-yr\", depth", "\"1e308 in\" is far beyond", "250 in"]),
     case("lag-huge", LineCol(25, 7), &["catchment \"EX-1\", lag", "\"1e18 h\" is far beyond"]),
     case("lag-over-a-month", LineCol(25, 7), &["catchment \"EX-1\", lag", "960 h is longer than runnel's limit of 31 days"]),
+    // Channels: Muskingum K and X, the split at the step, unknown keys, what may drain to what.
+    case("channel-k-zero", LineCol(38, 5), &["channel \"east swale\", k", "Muskingum K must be a positive duration", "hint:"]),
+    case("channel-k-bare-number", LineCol(38, 5), &["channel \"east swale\", k", "a time needs a unit", "hint:"]),
+    case("channel-k-over-a-month", LineCol(38, 5), &["channel \"east swale\", k", "1000 h is longer than runnel's limit of 31 days"]),
+    case("channel-x-above-half", LineCol(39, 5), &["channel \"east swale\", x", "between 0 and 0.5, got 0.6", "hint:"]),
+    case("channel-x-negative", LineCol(39, 5), &["channel \"east swale\", x", "between 0 and 0.5, got -0.1"]),
+    case("channel-unknown-key", LineCol(37, 1), &["channel \"east swale\"", "unknown key `too`", "did you mean `to`"]),
+    case("channel-missing-k", Line(34), &["channel \"east swale\"", "missing required key `k`"]),
+    case("channel-no-split", Line(34), &["channel \"east swale\"", "non-negative Muskingum coefficients", "hint:"]),
+    case("channel-to-catchment", LineCol(31, 6), &["catchment \"commons graded\", to", "\"commons\" is a catchment", "a pond, channel or point"]),
     case("inflow-time-huge", LineCol(76, 9), &["inflow \"offsite\"", "row 3", "time", "far beyond", "744 h"]),
     case("stage-huge", LineCol(59, 14), &["pond \"Pond A\", stage_area", "row 3", "stage", "far beyond"]),
     // Ponds (issue 10, item 5).

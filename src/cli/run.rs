@@ -321,7 +321,8 @@ impl MemoryEstimate {
 
 /// Bytes of one design storm's results for every condition (see
 /// `network::simulate_storm`): the rain, per condition each member
-/// element's outflow (a pond's inflow, stage and storage too) and each
+/// element's outflow (a pond's inflow, stage and storage too, a channel's
+/// inflow and storage) and each
 /// point's flow.
 fn storm_result_bytes(study: &Study, storm: usize) -> u64 {
     let len = network::horizon_steps(study, storm).unwrap_or(usize::MAX - 1) as u64 + 1;
@@ -333,6 +334,8 @@ fn storm_result_bytes(study: &Study, storm: usize) -> u64 {
                 .filter(|e| e.conditions[c])
                 .map(|e| match e.kind {
                     ElementKind::Pond(_) => 4,
+                    // outflow, inflow and storage
+                    ElementKind::Channel(_) => 3,
                     _ => 1,
                 })
                 .sum::<u64>()

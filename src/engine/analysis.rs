@@ -447,7 +447,19 @@ pub fn finish_on(study: &Study, topology: &Topology, storms: Vec<StormResult>) -
     for s in &storms {
         for c in &s.conditions {
             for (i, e) in c.elements.iter().enumerate() {
-                let Some(pr) = e.as_ref().and_then(|e| e.pond.as_ref()) else {
+                let Some(e) = e else { continue };
+                if let Some(ch) = &e.channel {
+                    let mb = ch.summary(&e.outflow_cfs, s.step_h).mass_balance_error();
+                    if mb.abs() > MASS_BALANCE_WARN {
+                        warnings.push(Warning::ChannelMassBalance {
+                            channel: study.elements[i].name.clone(),
+                            run: format!("storm \"{}\"", study.storms[s.storm].name),
+                            condition: study.conditions[c.condition].clone(),
+                            error: mb,
+                        });
+                    }
+                }
+                let Some(pr) = e.pond.as_ref() else {
                     continue;
                 };
                 let pond = &study.elements[i].name;

@@ -25,7 +25,8 @@ pub struct Topology {
     /// The point each element finally drains to (None on a loop, which
     /// validation refuses).
     point_of: Vec<Option<usize>>,
-    /// Sum of the `lag`s (h) from each element down to its point, its own included.
+    /// Sum of the `lag`s (h) from each element down to its point, its own
+    /// included, with channels' recession allowances ([`path_lag_h`]).
     path_lag_h: Vec<f64>,
     /// One entry per condition of the study.
     conditions: Vec<ConditionTopology>,
@@ -88,7 +89,7 @@ pub(crate) fn upstream_first(elements: &[Element], condition: usize) -> Vec<usiz
 fn own_area_ac(e: &Element) -> Option<f64> {
     match &e.kind {
         ElementKind::Catchment(c) => Some(c.area_ac),
-        ElementKind::Pond(_) | ElementKind::Inflow(_) => None,
+        ElementKind::Pond(_) | ElementKind::Inflow(_) | ElementKind::Channel(_) => None,
     }
 }
 
@@ -103,10 +104,13 @@ fn area_ac(elements: &[Element], c: usize, drains: impl Fn(usize) -> bool) -> f6
         .sum()
 }
 
-/// Sum of the `lag`s (h) from element `i` down to its point, its own included.
+/// Sum of the `lag`s (h) from element `i` down to its point, its own
+/// included, with the recession allowance of every channel passed
+/// ([`Element::run_allowance_h`]): the time a run must allow after the rain
+/// for that element's water to reach its point.
 pub(crate) fn path_lag_h(elements: &[Element], i: usize) -> f64 {
     let mut lag = 0.0;
-    walk(elements, i, |at| lag += elements[at].lag_h.max(0.0));
+    walk(elements, i, |at| lag += elements[at].run_allowance_h());
     lag
 }
 
@@ -203,7 +207,8 @@ impl Topology {
         self.conditions[c].area_to_element_ac[j]
     }
 
-    /// Sum of the `lag`s (h) from element `i` down to its point, its own included.
+    /// Sum of the `lag`s (h) from element `i` down to its point, its own
+    /// included, with channels' recession allowances.
     pub fn path_lag_h(&self, i: usize) -> f64 {
         self.path_lag_h[i]
     }
@@ -411,5 +416,76 @@ limit = "none"
         for i in 0..s.elements.len() {
             assert_eq!(path_lag_h(&s.elements, i), t.path_lag_h(i));
         }
+    }
+
+    /// An invented site with a channel between a catchment and a pond.
+    const CHANNEL_SITE: &str = r#"
+title = "Topology test site with a gully"
+units = "us"
+step = "2 min"
+
+[[storm]]
+name = "10-yr"
+pattern = "nrcs-type-ii"
+depth = "4.0 in"
+
+[[catchment]]
+name = "uphill"
+area = "5 ac"
+cn = 75
+tc = "20 min"
+to = "gully"
+
+[[catchment]]
+name = "near"
+area = "2 ac"
+cn = 80
+tc = "10 min"
+to = "creek"
+
+[[channel]]
+name = "gully"
+to = "basin"
+k = "30 min"
+x = 0.2
+
+[[pond]]
+name = "basin"
+to = "creek"
+stage_area = [[40.0, 5000.0], [43.0, 9000.0]]
+[[pond.outlet]]
+kind = "orifice"
+invert = 40.0
+diameter = "12 in"
+
+[[point]]
+name = "creek"
+limit = "none"
+"#;
+
+    #[test]
+    fn a_channel_passes_on_its_area_and_lengthens_the_run() {
+        // runnel's network rule (a channel drains what reaches it along its
+        // path), no published source; the 7 K allowance is ln 1000 rounded
+        // up (derived: an emptying reach falls as exp(-t / (K (1 - X))))
+        let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+        let path = dir.path().join("site.toml");
+        std::fs::write(&path, CHANNEL_SITE).unwrap_or_else(|e| panic!("{e}"));
+        let s = crate::input::scenario::load(&path).unwrap_or_else(|e| panic!("{e}"));
+        let t = Topology::new(&s);
+        let (up, gully, basin) = (index(&s, "uphill"), index(&s, "gully"), index(&s, "basin"));
+        let creek = point(&s, "creek");
+        let order = t.order(0);
+        let at = |i: usize| order.iter().position(|&x| x == i);
+        assert!(at(up) < at(gully) && at(gully) < at(basin));
+        assert_eq!(t.area_to_element_ac(gully, 0), 5.0);
+        assert_eq!(t.area_to_element_ac(basin, 0), 5.0);
+        assert_eq!(t.area_to_point_ac(creek, 0), 7.0);
+        assert!(t.reaches_through(up, gully) && t.reaches_through(up, basin));
+        assert!(t.reaches(gully, creek));
+        assert!((t.path_lag_h(up) - 7.0 * 0.5).abs() < 1e-12);
+        assert!((t.path_lag_h(gully) - 7.0 * 0.5).abs() < 1e-12);
+        assert_eq!(t.path_lag_h(basin), 0.0);
+        assert_eq!(t.max_path_lag_h(), t.path_lag_h(up));
     }
 }

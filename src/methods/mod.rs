@@ -3,6 +3,7 @@
 //! each module). They take numbers and slices and return values; they never
 //! print, read files or see the scenario.
 
+pub mod channel;
 pub mod cover;
 pub mod graphical_peak;
 pub mod hydraulics;

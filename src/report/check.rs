@@ -143,6 +143,39 @@ pub fn check_text(
         }
         t.push_str(&table.text("  ", &[10, 14, 12]));
     }
+    for e in &study.elements {
+        let ElementKind::Channel(ch) = &e.kind else {
+            continue;
+        };
+        let _ = writeln!(
+            t,
+            "\n{} -> {}",
+            summary::kind_and_name("Channel", &e.name),
+            summary::target_name(study, e.to)
+        );
+        for line in crate::report::markdown::channel_sentences(study, ch) {
+            let _ = writeln!(t, "  {line}");
+        }
+        for ev in s
+            .events
+            .iter()
+            .filter(|ev| ev.kind == crate::model::Kind::Channel && ev.element == e.name)
+        {
+            let (Some(pin), Some(tin)) = (ev.peak_inflow, ev.peak_inflow_time_h) else {
+                continue;
+            };
+            let _ = writeln!(
+                t,
+                "  {} ({}): peak in {} {fu} at {:.2} h, out {} {fu} at {:.2} h",
+                ev.storm,
+                ev.condition,
+                sig(pin, 4),
+                tin,
+                sig(ev.peak_flow, 4),
+                ev.peak_time_h
+            );
+        }
+    }
     let est = estimate_text(study, a);
     if !est.is_empty() {
         t.push('\n');

@@ -199,6 +199,11 @@ pub fn render(study: &Study, s: &Summary, plots: &[(String, String)]) -> String 
             pond(&mut m, s, &e.name, p, o, &u);
         }
     }
+    for e in &study.elements {
+        if let ElementKind::Channel(ch) = &e.kind {
+            channel(&mut m, s, study, &e.name, ch, &u);
+        }
+    }
     sizing(&mut m, s);
     if !record_md.is_empty() {
         m.push_str(&record_md);
@@ -653,6 +658,133 @@ fn events(m: &mut String, s: &Summary, u: &Units) {
     }
     m.push_str(&t.markdown());
     let _ = writeln!(m);
+}
+
+/// The sentence that says how runnel routes a channel at the step.
+pub fn channel_sentence(ch: &crate::model::Channel, step_h: f64) -> String {
+    let split = match ch.plan(step_h) {
+        Some(p) => {
+            let reaches = if p.sub_reaches > 1 {
+                format!(
+                    "in {} sub-reaches of K/{} = {} min in series",
+                    p.sub_reaches,
+                    p.sub_reaches,
+                    sig(ch.k_h * 60.0 / p.sub_reaches as f64, 4)
+                )
+            } else {
+                "as one reach".to_string()
+            };
+            let steps = if p.sub_steps > 1 {
+                format!(
+                    ", at {} sub-steps of {} min per step",
+                    p.sub_steps,
+                    sig(step_h * 60.0 / p.sub_steps as f64, 4)
+                )
+            } else {
+                format!(", at the step of {} min", sig(step_h * 60.0, 4))
+            };
+            format!("{reaches}{steps}")
+        }
+        None => "(no split with non-negative coefficients at this step)".to_string(),
+    };
+    format!(
+        "Muskingum routing (O2 = C0 I2 + C1 I1 + C2 O1) with K = {} min and X = {}, {split}, so that every coefficient is non-negative (the routing step lies between 2 (K/n) X and 2 (K/n)(1 - X)); the reach starts empty.",
+        sig(ch.k_h * 60.0, 4),
+        ch.x
+    )
+}
+
+/// The routing sentences of a channel: at the design storms' step (when
+/// the study has storms) and at the step of every record.
+pub fn channel_sentences(study: &Study, ch: &crate::model::Channel) -> Vec<String> {
+    let mut out = Vec::new();
+    if !study.storms.is_empty() {
+        out.push(format!(
+            "Design storms: {}",
+            channel_sentence(ch, study.step_h)
+        ));
+    }
+    for r in &study.records {
+        out.push(format!(
+            "Record \"{}\": {}",
+            r.name,
+            channel_sentence(ch, r.step_h)
+        ));
+    }
+    out
+}
+
+/// One channel: its K, X and split, and per storm and condition the
+/// attenuation and delay of the peak and the volumes.
+fn channel(
+    m: &mut String,
+    s: &Summary,
+    study: &Study,
+    name: &str,
+    ch: &crate::model::Channel,
+    u: &Units,
+) {
+    let _ = writeln!(
+        m,
+        "## {}\n",
+        crate::report::summary::kind_and_name("Channel", &cell(name))
+    );
+    for line in channel_sentences(study, ch) {
+        let _ = writeln!(m, "{}\n", cell(&line));
+    }
+    if !s
+        .events
+        .iter()
+        .any(|e| e.kind == Kind::Channel && e.element == cell(name))
+    {
+        return;
+    }
+    let mut t = Table::new(vec![
+        Column::text("storm"),
+        Column::text("condition"),
+        Column::quantity("peak in", u.flow),
+        Column::quantity("at", "h"),
+        Column::quantity("peak out", u.flow),
+        Column::quantity("at", "h"),
+        Column::text("peak lowered by"),
+        Column::quantity("delay", "min"),
+        Column::quantity("volume in", u.volume),
+        Column::quantity("volume out", u.volume),
+        Column::quantity("left in reach", u.volume),
+    ]);
+    for e in s
+        .events
+        .iter()
+        .filter(|e| e.kind == Kind::Channel && e.element == cell(name))
+    {
+        let (Some(pin), Some(tin)) = (e.peak_inflow, e.peak_inflow_time_h) else {
+            continue;
+        };
+        let lowered = if pin > 0.0 {
+            format!("{} %", f(100.0 * (1.0 - e.peak_flow / pin), 1))
+        } else {
+            "-".to_string()
+        };
+        t.row([
+            e.storm.clone(),
+            e.condition.clone(),
+            sig(pin, 4),
+            f(tin, 2),
+            sig(e.peak_flow, 4),
+            f(e.peak_time_h, 2),
+            lowered,
+            f((e.peak_time_h - tin) * 60.0, 0),
+            opt_sig(e.inflow_volume, 5),
+            sig(e.volume, 5),
+            opt_sig(e.stored_at_end, 3),
+        ]);
+    }
+    m.push_str(&t.markdown());
+    let _ = writeln!(m);
+}
+
+fn opt_sig(v: Option<f64>, d: usize) -> String {
+    v.map_or_else(|| "-".to_string(), |x| sig(x, d))
 }
 
 /// One pond: how it is modelled, its outlets, its stage-storage-discharge

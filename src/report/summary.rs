@@ -199,7 +199,7 @@ pub struct EventOut {
     pub condition: String,
     /// Element or point.
     pub element: String,
-    /// catchment | pond | inflow | point.
+    /// catchment | pond | inflow | channel | point.
     pub kind: Kind,
     /// Rain depth (catchments).
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -207,9 +207,21 @@ pub struct EventOut {
     /// Runoff depth (catchments).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub runoff_depth: Option<f64>,
-    /// Peak inflow (ponds).
+    /// Peak inflow (ponds and channels).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub peak_inflow: Option<f64>,
+    /// Time of the peak inflow, h (channels).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub peak_inflow_time_h: Option<f64>,
+    /// Inflow volume (channels).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub inflow_volume: Option<f64>,
+    /// Water still in the reach at the run's end (channels).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub stored_at_end: Option<f64>,
+    /// The channel's Muskingum parameters and routing split (channels).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub channel: Option<ChannelOut>,
     /// Peak flow (outflow for ponds).
     pub peak_flow: f64,
     /// Time of the peak, h.
@@ -237,6 +249,38 @@ pub struct EventOut {
     /// Volume infiltrated (ponds that infiltrate).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub infiltrated_volume: Option<f64>,
+}
+
+/// A channel's Muskingum parameters and how it was routed at the step.
+#[derive(Debug, Clone, Serialize)]
+pub struct ChannelOut {
+    /// Muskingum K, h.
+    pub k_h: f64,
+    /// Muskingum X.
+    pub x: f64,
+    /// Sub-reaches of K / n in series.
+    pub sub_reaches: usize,
+    /// Routing steps per run step.
+    pub sub_steps: usize,
+    /// The routing step, h (the run step over `sub_steps`).
+    pub sub_step_h: f64,
+}
+
+impl ChannelOut {
+    /// The channel's parameters with its split at `step_h`.
+    pub fn of(
+        ch: &crate::model::Channel,
+        plan: crate::methods::channel::Plan,
+        step_h: f64,
+    ) -> Self {
+        ChannelOut {
+            k_h: ch.k_h,
+            x: ch.x,
+            sub_reaches: plan.sub_reaches,
+            sub_steps: plan.sub_steps,
+            sub_step_h: step_h / plan.sub_steps as f64,
+        }
+    }
 }
 
 fn is_not_pond(v: &Option<Option<f64>>) -> bool {
@@ -813,6 +857,10 @@ fn events_out(study: &Study, a: &Analysis) -> Vec<EventOut> {
                     rain_depth: None,
                     runoff_depth: None,
                     peak_inflow: None,
+                    peak_inflow_time_h: None,
+                    inflow_volume: None,
+                    stored_at_end: None,
+                    channel: None,
                     peak_flow: o.flow(pk),
                     peak_time_h: pi as f64 * step_h,
                     peak_stage: None,
@@ -840,6 +888,15 @@ fn events_out(study: &Study, a: &Analysis) -> Vec<EventOut> {
                     ev.drain_time_h = Some(sm.drain_time_h);
                     ev.infiltrated_volume = infiltrated_volume_out(&e.kind, sm, o);
                 }
+                if let (Some(chr), ElementKind::Channel(ch)) = (&er.channel, &e.kind) {
+                    let sm = chr.summary(&er.outflow_cfs, step_h);
+                    ev.peak_inflow = Some(o.flow(sm.peak_in_cfs));
+                    ev.peak_inflow_time_h = Some(sm.peak_in_h);
+                    ev.inflow_volume = Some(o.volume(sm.volume_in_ft3));
+                    ev.stored_at_end = Some(o.volume(sm.stored_end_ft3));
+                    ev.mass_balance_error = Some(sm.mass_balance_error());
+                    ev.channel = Some(ChannelOut::of(ch, chr.plan, step_h));
+                }
                 events.push(ev);
             }
             for (pi, q) in c.points.iter().enumerate() {
@@ -852,6 +909,10 @@ fn events_out(study: &Study, a: &Analysis) -> Vec<EventOut> {
                     rain_depth: None,
                     runoff_depth: None,
                     peak_inflow: None,
+                    peak_inflow_time_h: None,
+                    inflow_volume: None,
+                    stored_at_end: None,
+                    channel: None,
                     peak_flow: o.flow(pk),
                     peak_time_h: k as f64 * step_h,
                     peak_stage: None,
@@ -959,13 +1020,25 @@ mod tests {
     // always carried (the results contract), unchanged by the enums
     #[test]
     fn kinds_serialize_to_their_words() {
-        let words: Vec<String> = [Kind::Catchment, Kind::Pond, Kind::Inflow, Kind::Point]
-            .iter()
-            .map(|k| serde_json::to_string(k).unwrap_or_default())
-            .collect();
+        let words: Vec<String> = [
+            Kind::Catchment,
+            Kind::Pond,
+            Kind::Inflow,
+            Kind::Channel,
+            Kind::Point,
+        ]
+        .iter()
+        .map(|k| serde_json::to_string(k).unwrap_or_default())
+        .collect();
         assert_eq!(
             words,
-            ["\"catchment\"", "\"pond\"", "\"inflow\"", "\"point\""]
+            [
+                "\"catchment\"",
+                "\"pond\"",
+                "\"inflow\"",
+                "\"channel\"",
+                "\"point\""
+            ]
         );
     }
 

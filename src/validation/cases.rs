@@ -201,6 +201,7 @@ pub fn all() -> Vec<Case> {
     frequency_cases(&mut out);
     super::timing_cases::push_all(&mut out);
     super::hydraulics_cases::push_all(&mut out);
+    super::routing_cases::push_all(&mut out);
     out
 }
 

@@ -602,6 +602,9 @@ impl ElementSim for RecordSim<'_, '_> {
                 };
                 element_record(run, who, &out, &st, None)
             }
+            ElementKind::Channel(ch) => {
+                route_channel(run, c, i, ch, inflow_cfs, &mut out, self.pool, self.res)?
+            }
             ElementKind::Pond(p) => {
                 let entry = route_pond(run, c, i, p, inflow_cfs, &mut out, self.pool, self.res)?;
                 // what the pond lost to the ground and the air never reaches a point
@@ -687,6 +690,57 @@ fn simulate_catchment(
         event_cn: excess.event_cn,
     });
     Ok((entry, generated_ft3))
+}
+
+/// Routes a channel's inflow over the record into `out` (zeroed, of the
+/// run's length) by the Muskingum method and returns its entry, with the
+/// statistics of every element.
+#[allow(clippy::too_many_arguments)]
+fn route_channel(
+    run: &RecordRun<'_>,
+    c: usize,
+    index: usize,
+    ch: &crate::model::Channel,
+    inflow: Vec<f64>,
+    out: &mut [f64],
+    pool: &mut Pool,
+    res: &mut RecordsResult,
+) -> Result<ElementRecord, Error> {
+    let name = &run.study.elements[index].name;
+    let inflow = if inflow.is_empty() {
+        pool.take(run.len)
+    } else {
+        inflow
+    };
+    let total = stats::sum(&inflow);
+    if !total.is_finite() {
+        return Err(run.not_finite(c, "channel", name, "inflow volume", total));
+    }
+    let plan = ch.plan(run.step_h).ok_or_else(|| {
+        Error::Simulation(SimulationError::ChannelSplit {
+            channel: name.clone(),
+            k_h: ch.k_h,
+            x: ch.x,
+            step_min: run.step_h * 60.0,
+        })
+    })?;
+    let clock = std::time::Instant::now();
+    crate::methods::channel::route_reach_into(&inflow, ch.k_h, ch.x, run.step_h, plan, out, None);
+    res.timings.routing_s += clock.elapsed().as_secs_f64();
+    pool.give(inflow);
+    let st = run.stats(out);
+    for (what, v) in [("volume", st.volume_ft3), ("peak flow", st.peak)] {
+        if !v.is_finite() {
+            return Err(run.not_finite(c, "channel", name, what, v));
+        }
+    }
+    let who = Subject {
+        condition: c,
+        element: name,
+        kind: SubjectKind::Channel,
+        area_ac: run.topology.area_to_element_ac(index, c),
+    };
+    Ok(element_record(run, who, out, &st, None))
 }
 
 /// Routes a pond's inflow over the record into `out` and returns its entry,

@@ -14,6 +14,8 @@ pub enum SubjectKind {
     Inflow,
     /// A pond (its outflow).
     Pond,
+    /// A channel (its routed outflow).
+    Channel,
     /// A design point.
     Point,
 }
@@ -25,6 +27,7 @@ impl SubjectKind {
             SubjectKind::Catchment => "catchment",
             SubjectKind::Inflow => "inflow",
             SubjectKind::Pond => "pond",
+            SubjectKind::Channel => "channel",
             SubjectKind::Point => "point",
         }
     }

@@ -1,7 +1,8 @@
 //! The elements of a scenario as read: one enum over the `[[catchment]]`,
-//! `[[pond]]` and `[[inflow]]` tables, so that an element's kind, name and
-//! spans travel together (in the order the study numbers them: catchments,
-//! then ponds, then inflows), and the building of each element's kind.
+//! `[[pond]]`, `[[inflow]]` and `[[channel]]` tables, so that an element's
+//! kind, name and spans travel together (in the order the study numbers
+//! them: catchments, then ponds, then inflows, then channels), and the
+//! building of each element's kind.
 
 use super::*;
 
@@ -11,6 +12,7 @@ pub(super) enum RawElement<'r> {
     Catchment(&'r Spanned<RawCatchment>),
     Pond(&'r Spanned<RawPond>),
     Inflow(&'r Spanned<RawInflow>),
+    Channel(&'r Spanned<RawChannel>),
 }
 
 impl<'r> RawElement<'r> {
@@ -21,6 +23,7 @@ impl<'r> RawElement<'r> {
             .map(RawElement::Catchment)
             .chain(raw.pond.iter().map(RawElement::Pond))
             .chain(raw.inflow.iter().map(RawElement::Inflow))
+            .chain(raw.channel.iter().map(RawElement::Channel))
             .collect()
     }
 
@@ -30,6 +33,7 @@ impl<'r> RawElement<'r> {
             RawElement::Catchment(_) => "catchment",
             RawElement::Pond(_) => "pond",
             RawElement::Inflow(_) => "inflow",
+            RawElement::Channel(_) => "channel",
         }
     }
 
@@ -39,6 +43,7 @@ impl<'r> RawElement<'r> {
             RawElement::Catchment(c) => &c.get_ref().name,
             RawElement::Pond(p) => &p.get_ref().name,
             RawElement::Inflow(i) => &i.get_ref().name,
+            RawElement::Channel(c) => &c.get_ref().name,
         }
     }
 
@@ -53,6 +58,7 @@ impl<'r> RawElement<'r> {
             RawElement::Catchment(c) => &c.get_ref().condition,
             RawElement::Pond(p) => &p.get_ref().condition,
             RawElement::Inflow(i) => &i.get_ref().condition,
+            RawElement::Channel(c) => &c.get_ref().condition,
         }
     }
 
@@ -62,15 +68,17 @@ impl<'r> RawElement<'r> {
             RawElement::Catchment(c) => &c.get_ref().to,
             RawElement::Pond(p) => &p.get_ref().to,
             RawElement::Inflow(i) => &i.get_ref().to,
+            RawElement::Channel(c) => &c.get_ref().to,
         }
     }
 
-    /// The `lag` key (a pond has none).
+    /// The `lag` key (a pond and a channel have none).
     pub(super) fn lag(self) -> Option<&'r Spanned<RawValue>> {
         match self {
             RawElement::Catchment(c) => c.get_ref().lag.as_ref(),
             RawElement::Pond(_) => None,
             RawElement::Inflow(i) => i.get_ref().lag.as_ref(),
+            RawElement::Channel(_) => None,
         }
     }
 
@@ -80,6 +88,7 @@ impl<'r> RawElement<'r> {
             RawElement::Catchment(c) => c.span(),
             RawElement::Pond(p) => p.span(),
             RawElement::Inflow(i) => i.span(),
+            RawElement::Channel(c) => c.span(),
         }
     }
 
@@ -121,6 +130,9 @@ impl Builder<'_> {
                 RawElement::Inflow(i) => {
                     let storm = self.inflow_storm(i.get_ref(), &ctx, storms)?;
                     ElementKind::Inflow(self.inflow(i.get_ref(), &i.span(), &ctx, storm)?)
+                }
+                RawElement::Channel(c) => {
+                    ElementKind::Channel(self.channel(c.get_ref(), &c.span(), &ctx)?)
                 }
             });
         }

@@ -7,6 +7,7 @@
 #![allow(clippy::result_large_err)]
 
 mod catchments;
+mod channels;
 pub mod context;
 mod elements;
 mod inflows;
@@ -386,12 +387,24 @@ impl<'a> Builder<'a> {
         let (step_h, step_given) = self.step(&raw, &elements, &storms)?;
         self.step_warnings(&elements, &storms, step_h);
         self.check_routing(&raw_elements, &elements, step_h)?;
+        if !storms.is_empty() {
+            self.check_channels(&raw_elements, &elements, step_h, "")?;
+        }
+        self.channel_warnings(&elements, &conditions);
         let records = raw
             .record
             .iter()
             .map(|r| self.record(r))
             .collect::<R<Vec<_>>>()?;
         self.check_unit_hydrograph_sizes(&raw_elements, &elements, &records, step_h)?;
+        for r in &records {
+            self.check_channels(
+                &raw_elements,
+                &elements,
+                r.step_h,
+                &format!(" of record \"{}\"", r.name),
+            )?;
+        }
         if storms.is_empty() && records.is_empty() && !elements.is_empty() {
             return Err(self
                 .src

@@ -158,6 +158,9 @@ pub struct RawScenario {
     /// Inflow hydrographs.
     #[serde(default)]
     pub inflow: Vec<Spanned<RawInflow>>,
+    /// Channel reaches (runnel's own table).
+    #[serde(default)]
+    pub channel: Vec<Spanned<RawChannel>>,
     /// Points of comparison.
     #[serde(default)]
     pub point: Vec<Spanned<RawPoint>>,
@@ -544,6 +547,22 @@ pub struct RawInflow {
     pub file: Option<Spanned<String>>,
     /// Translation to `to`.
     pub lag: Option<Spanned<RawValue>>,
+}
+
+/// `[[channel]]`: a reach routed by the Muskingum method.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawChannel {
+    /// Name.
+    pub name: Spanned<String>,
+    /// Conditions.
+    pub condition: Option<Spanned<NameList>>,
+    /// Downstream element or point.
+    pub to: Option<Spanned<String>>,
+    /// Muskingum K, a duration.
+    pub k: Option<Spanned<RawValue>>,
+    /// Muskingum X, 0 to 0.5.
+    pub x: Option<Spanned<f64>>,
 }
 
 /// `[[point]]`.

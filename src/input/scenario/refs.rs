@@ -62,7 +62,7 @@ impl Builder<'_> {
         Ok(membership)
     }
 
-    /// Where an element drains: a point, or a pond other than itself.
+    /// Where an element drains: a point, or a pond or channel other than itself.
     fn target(
         &self,
         e: RawElement,
@@ -75,7 +75,7 @@ impl Builder<'_> {
             &e.span(),
             ctx,
             "to",
-            "\"the name of a pond or point\"",
+            "\"the name of a pond, channel or point\"",
         )?;
         let tname = to_raw.get_ref().trim();
         if let Some(i) = point_names.iter().position(|n| n == tname) {
@@ -83,17 +83,17 @@ impl Builder<'_> {
         }
         if let Some(i) = raw_elements.iter().position(|x| x.trimmed_name() == tname) {
             let found = raw_elements[i];
-            if !matches!(found, RawElement::Pond(_)) {
+            if !matches!(found, RawElement::Pond(_) | RawElement::Channel(_)) {
                 return Err(self
                     .err(
                         &to_raw.span(),
                         &format!("{ctx}, to"),
                         format!(
-                            "\"{tname}\" is a {}; flow can only go to a pond or a point",
+                            "\"{tname}\" is a {}; flow can only go to a pond, a channel or a point",
                             found.word()
                         ),
                     )
-                    .expected("the name of a pond or point"));
+                    .expected("the name of a pond, channel or point"));
             }
             if found.trimmed_name() == e.trimmed_name() {
                 return Err(self
@@ -102,7 +102,7 @@ impl Builder<'_> {
                         &format!("{ctx}, to"),
                         "an element cannot drain to itself",
                     )
-                    .expected("the name of a pond or point downstream"));
+                    .expected("the name of a pond, channel or point downstream"));
             }
             return Ok(Target::Element(i));
         }
@@ -112,7 +112,7 @@ impl Builder<'_> {
             .chain(
                 raw_elements
                     .iter()
-                    .filter(|x| matches!(x, RawElement::Pond(_)))
+                    .filter(|x| matches!(x, RawElement::Pond(_) | RawElement::Channel(_)))
                     .map(|x| x.trimmed_name()),
             )
             .collect();
@@ -122,7 +122,7 @@ impl Builder<'_> {
                 &format!("{ctx}, to"),
                 format!("nothing is named \"{tname}\""),
             )
-            .expected("the name of a pond or point");
+            .expected("the name of a pond, channel or point");
         Err(if point_names.is_empty() {
             err.hint(format!(
                 "the scenario has no [[point]]; add one with name = \"{tname}\""

@@ -37,13 +37,14 @@ impl Builder<'_> {
             }
             None => (default_step_h(min_tc), false),
         };
-        // Paths are free of cycles here (checked above).
+        // Paths are free of cycles here (checked above). A channel adds
+        // the time its recession needs (`Element::run_allowance_h`).
         let max_path_lag_h = (0..elements.len())
             .map(|i| {
                 let mut lag = 0.0;
                 let mut at = i;
                 for _ in 0..elements.len() {
-                    lag += elements[at].lag_h;
+                    lag += elements[at].run_allowance_h();
                     match elements[at].to {
                         Target::Element(j) => at = j,
                         Target::Point(_) => break,

@@ -58,6 +58,7 @@ pub fn render(input: &HtmlInput<'_>) -> Result<String, PlotError> {
     storms::rainfall(&mut doc, input);
     sections::catchments(&mut doc, input);
     storms::ponds(&mut doc, input)?;
+    storms::channels(&mut doc, input);
     storms::points(&mut doc, input)?;
     records::section(&mut doc, input)?;
     sections::sizing(&mut doc, input);

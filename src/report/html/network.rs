@@ -174,6 +174,7 @@ fn diagram(study: &Study, c: usize) -> String {
         let (fill, edge, rx) = match e.kind {
             ElementKind::Catchment(_) => ("#e4f1e1", "#4f7f45", 10.0),
             ElementKind::Pond(_) => ("#dde9f6", "#2f5f93", 2.0),
+            ElementKind::Channel(_) => ("#e3f3f4", "#2f7f86", 18.0),
             _ => ("#ececec", "#666666", 0.0),
         };
         let _ = write!(

@@ -206,6 +206,78 @@ pub(super) fn ponds(doc: &mut Doc, input: &HtmlInput<'_>) -> Result<(), PlotErro
     Ok(())
 }
 
+/// One section per channel: its K, X and routing split, and per storm and
+/// condition the peaks in and out, the attenuation and delay, the volumes.
+pub(super) fn channels(doc: &mut Doc, input: &HtmlInput<'_>) {
+    let study = input.study;
+    let s = input.summary;
+    let u = &s.units;
+    for (i, e) in study.elements.iter().enumerate() {
+        let ElementKind::Channel(ch) = &e.kind else {
+            continue;
+        };
+        doc.section(&format!("channel-{i}"), &kind_and_name("Channel", &e.name));
+        doc.para(&esc(&format!(
+            "Drains to {}.",
+            crate::report::summary::target_name(study, e.to)
+        )));
+        for line in crate::report::markdown::channel_sentences(study, ch) {
+            doc.para(&esc(&line));
+        }
+        let events: Vec<(usize, &_)> = s
+            .events
+            .iter()
+            .enumerate()
+            .filter(|(_, ev)| ev.kind == Kind::Channel && ev.element == e.name)
+            .collect();
+        if !events.is_empty() {
+            let cols = [
+                text_col("storm"),
+                text_col("condition"),
+                num_col("peak in", u.flow),
+                num_col("at", "h"),
+                num_col("peak out", u.flow),
+                num_col("at", "h"),
+                num_col("peak lowered", "%"),
+                num_col("delay", "min"),
+                num_col("volume in", u.volume),
+                num_col("volume out", u.volume),
+            ];
+            let rows: Vec<Vec<Cell>> = events
+                .iter()
+                .map(|(k, ev)| {
+                    let p = |f: &str| format!("events.{k}.{f}");
+                    let pin = ev.peak_inflow.unwrap_or(0.0);
+                    let tin = ev.peak_inflow_time_h.unwrap_or(0.0);
+                    vec![
+                        Cell::Text(esc(&ev.storm)),
+                        Cell::Text(esc(&ev.condition)),
+                        Doc::sig(p("peak_inflow"), pin, 4),
+                        Doc::num(p("peak_inflow_time_h"), tin, 2),
+                        Doc::sig(p("peak_flow"), ev.peak_flow, 4),
+                        Doc::num(p("peak_time_h"), ev.peak_time_h, 2),
+                        if pin > 0.0 {
+                            Doc::calc(fixed(100.0 * (1.0 - ev.peak_flow / pin), 1))
+                        } else {
+                            Doc::calc("-".into())
+                        },
+                        Doc::calc(fixed((ev.peak_time_h - tin) * 60.0, 0)),
+                        Doc::opt(p("inflow_volume"), ev.inflow_volume, 0),
+                        Doc::num(p("volume"), ev.volume, 0),
+                    ]
+                })
+                .collect();
+            doc.table(
+                &format!("tab-channel-{i}"),
+                "Channel routing per storm and condition: the peak lowered and delayed by the reach.",
+                &cols,
+                &rows,
+            );
+        }
+        doc.end();
+    }
+}
+
 /// Outlets, the stage-storage-discharge table with every device's flow, and the curves.
 fn pond_tables(doc: &mut Doc, study: &Study, i: usize, p: &Pond) -> Result<(), PlotError> {
     let o = Out(study.units);
