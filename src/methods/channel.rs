@@ -236,7 +236,7 @@ mod tests {
 
     #[test]
     fn worked_muskingum_solution() {
-        // V. M. Ponce, SDSU course homework solution (transcribed), reference file section 13d
+        // V. M. Ponce (SDSU), published worked solution (transcribed), reference file section 13d
         crate::validation::assert_group("ponce-muskingum");
         let c = coefficients(1.0, 0.2, 1.0);
         assert!((c.c0 - 0.231).abs() < 5e-4);
@@ -322,7 +322,7 @@ mod tests {
 
     #[test]
     fn reach_as_given_matches_the_published_recursion() {
-        // V. M. Ponce, SDSU course homework solution (transcribed), reference
+        // V. M. Ponce (SDSU), published worked solution (transcribed), reference
         // file section 13d, started from an empty reach: route_reach with
         // one sub-reach and one sub-step is the published recursion.
         let p = Plan {

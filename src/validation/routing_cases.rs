@@ -5,7 +5,7 @@ use super::cases::case;
 use crate::methods::channel::{coefficients, route};
 
 /// Inflow of the worked Muskingum solution of the reference file section 13d, m3/s at
-/// 1-h steps (V. M. Ponce, SDSU course homework solution, transcribed).
+/// 1-h steps (V. M. Ponce (SDSU), published worked solution, transcribed).
 pub const PONCE_MUSKINGUM_INFLOW: [f64; 14] = [
     12.0, 30.0, 50.0, 100.0, 145.0, 160.0, 140.0, 75.0, 55.0, 45.0, 35.0, 25.0, 15.0, 12.0,
 ];
@@ -34,8 +34,7 @@ pub fn push_all(out: &mut Vec<Case>) {
 }
 
 fn ponce_cases(out: &mut Vec<Case>) {
-    const SOURCE: &str =
-        "V. M. Ponce, SDSU course homework solution, Muskingum K 1 h, X 0.2, dt 1 h (transcribed)";
+    const SOURCE: &str = "V. M. Ponce (SDSU), published worked solution, Muskingum K 1 h, X 0.2, dt 1 h (transcribed)";
     let coefs: [(&str, f64, Coefficient); 3] = [
         ("C0", 0.231, |k, x, dt| coefficients(k, x, dt).c0),
         ("C1", 0.538, |k, x, dt| coefficients(k, x, dt).c1),

@@ -421,7 +421,7 @@ mod tests {
     #[test]
     fn monotone_cubic_predicts_the_half_hour_points_better_than_straight_lines() {
         // Evidence for the interpolation. The half-hour table (reference file
-        // section 1b, a course table, source not stated; transcribed) has 28 times
+        // section 1b, a university table, source not stated; transcribed) has 28 times
         // per type that Chow et al. (1988) Table 14.4.1 (transcribed) lacks. Errors
         // there, fraction of the 24-h depth, (largest, rms), straight lines
         // against the monotone cubic:

@@ -29,7 +29,7 @@ pub const TYPE_III: [f64; 23] = [
 ];
 
 /// The half-hour table of the four types: `[t (h), I, IA, II, III]`, from
-/// 0.5 h to 23.5 h (reference file section 1b: a university course table,
+/// 0.5 h to 23.5 h (reference file section 1b: a university table,
 /// source not stated, read in its spreadsheet; [V-tr]). Used only as
 /// evidence for the choice of interpolation, never as a pattern. Its Type
 /// III value at 12.0 h (0.600) is a known error (Chow et al. and the
