@@ -27,10 +27,9 @@ pub fn check_text(
         String::new(),
     );
     let o = Out(study.units);
-    let (fu, lu, vu, du, au) = (
+    let (fu, lu, du, au) = (
         o.unit(Quantity::Flow),
         o.unit(Quantity::Length),
-        o.unit(Quantity::Volume),
         o.unit(Quantity::Depth),
         o.unit(Quantity::Area),
     );
@@ -111,6 +110,24 @@ pub fn check_text(
             );
         }
     }
+    ponds_text(&mut t, study, o);
+    channels_text(&mut t, study, &s);
+    let est = estimate_text(study, a);
+    if !est.is_empty() {
+        t.push('\n');
+        t.push_str(&est);
+    }
+    let warnings = s.warnings.to_vec();
+    (t, warnings)
+}
+
+/// Each pond: where it drains, its storage, its outlets and a readable rating.
+fn ponds_text(t: &mut String, study: &Study, o: Out) {
+    let (lu, vu, fu) = (
+        o.unit(Quantity::Length),
+        o.unit(Quantity::Volume),
+        o.unit(Quantity::Flow),
+    );
     for e in &study.elements {
         let ElementKind::Pond(p) = &e.kind else {
             continue;
@@ -143,6 +160,12 @@ pub fn check_text(
         }
         t.push_str(&table.text("  ", &[10, 14, 12]));
     }
+}
+
+/// Each channel: where it drains, its Muskingum split, and per storm its
+/// peak in and out.
+fn channels_text(t: &mut String, study: &Study, s: &summary::Summary) {
+    let fu = Out(study.units).unit(Quantity::Flow);
     for e in &study.elements {
         let ElementKind::Channel(ch) = &e.kind else {
             continue;
@@ -176,13 +199,6 @@ pub fn check_text(
             );
         }
     }
-    let est = estimate_text(study, a);
-    if !est.is_empty() {
-        t.push('\n');
-        t.push_str(&est);
-    }
-    let warnings = s.warnings.to_vec();
-    (t, warnings)
 }
 
 /// A catchment's timing: where it came from, Tc, lag and Tp, and the
