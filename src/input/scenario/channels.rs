@@ -58,7 +58,7 @@ impl Builder<'_> {
                     format!("Muskingum X must lie between 0 and 0.5, got {xv}"),
                 )
                 .expected("a number from 0 to 0.5")
-                .hint("X weights inflow against outflow in the reach's storage: 0 for a reservoir-like reach, 0.1 to 0.3 for most channels, 0.5 for pure translation"));
+                .hint("X weights inflow against outflow in the reach's storage: 0 for a reservoir-like reach, 0.5 for pure translation; channels commonly 0.1 to 0.3 (common practice, no published source)"));
         }
         Ok(Channel { k_h, x: xv })
     }
