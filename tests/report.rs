@@ -280,6 +280,14 @@ fn a_failing_flow_duration_rule_reports_its_worst_level_not_a_peak() {
     assert!(row.contains("**EXCEEDS**") && !row.contains('+'), "{row}");
     assert_eq!(row.matches('|').count(), 12, "{row}");
     assert!(md.contains("| worst flow [cfs] |"));
+    // A study of long records only has no design-storm events: a sentence, not an empty table.
+    let events = md
+        .split("## Events")
+        .nth(1)
+        .and_then(|rest| rest.split("\n## ").next())
+        .unwrap_or_else(|| panic!("{md}"));
+    assert!(events.contains("No design storm is run"), "{events}");
+    assert!(!events.contains("| storm |"), "{events}");
 }
 
 #[test]

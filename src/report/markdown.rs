@@ -632,6 +632,10 @@ fn graphical(m: &mut String, s: &Summary, catchment: &str, u: &Units) {
 /// Every element and point in every storm and condition.
 fn events(m: &mut String, s: &Summary, u: &Units) {
     let _ = writeln!(m, "## Events\n");
+    if s.events.is_empty() {
+        let _ = writeln!(m, "No design storm is run (long records only).\n");
+        return;
+    }
     let mut t = Table::new(vec![
         Column::text("storm"),
         Column::text("condition"),
