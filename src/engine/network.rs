@@ -185,15 +185,6 @@ impl ChannelSummary {
             0.0
         }
     }
-
-    /// Peak outflow over peak inflow (1 without inflow).
-    pub fn attenuation(&self) -> f64 {
-        if self.peak_in_cfs > 0.0 {
-            self.peak_out_cfs / self.peak_in_cfs
-        } else {
-            1.0
-        }
-    }
 }
 
 impl ChannelResult {
@@ -741,6 +732,25 @@ impl StormRun<'_> {
     }
 }
 
+/// How channel `name` is split at `step_h` ([`crate::model::Channel::plan`]).
+///
+/// # Errors
+/// [`SimulationError::ChannelSplit`] when no split keeps the coefficients
+/// non-negative (which loading refuses).
+pub fn channel_plan(
+    name: &str,
+    ch: &crate::model::Channel,
+    step_h: f64,
+) -> Result<crate::methods::channel::Plan, SimulationError> {
+    ch.plan(step_h)
+        .ok_or_else(|| SimulationError::ChannelSplit {
+            channel: name.to_string(),
+            k_h: ch.k_h,
+            x: ch.x,
+            step_min: step_h * 60.0,
+        })
+}
+
 /// Routes a channel's inflow (cfs at `step_h`) by the Muskingum method
 /// ([`crate::methods::channel::route_reach_into`]), from an empty reach.
 ///
@@ -753,14 +763,7 @@ pub fn route_channel(
     inflow: Vec<f64>,
     step_h: f64,
 ) -> Result<ElementResult, SimulationError> {
-    let plan = ch
-        .plan(step_h)
-        .ok_or_else(|| SimulationError::ChannelSplit {
-            channel: name.to_string(),
-            k_h: ch.k_h,
-            x: ch.x,
-            step_min: step_h * 60.0,
-        })?;
+    let plan = channel_plan(name, ch, step_h)?;
     let mut outflow = vec![0.0; inflow.len()];
     let mut storage = vec![0.0; inflow.len()];
     crate::methods::channel::route_reach_into(

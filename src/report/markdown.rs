@@ -761,14 +761,14 @@ fn channel(
         .iter()
         .filter(|e| e.kind == Kind::Channel && e.element == cell(name))
     {
-        let (Some(pin), Some(tin)) = (e.peak_inflow, e.peak_inflow_time_h) else {
+        let (Some(pin), Some(tin), Some((lowered, delay_min))) = (
+            e.peak_inflow,
+            e.peak_inflow_time_h,
+            e.peak_lowered_and_delay(),
+        ) else {
             continue;
         };
-        let lowered = if pin > 0.0 {
-            format!("{} %", f(100.0 * (1.0 - e.peak_flow / pin), 1))
-        } else {
-            "-".to_string()
-        };
+        let lowered = lowered.map_or_else(|| "-".to_string(), |l| format!("{} %", f(l, 1)));
         t.row([
             e.storm.clone(),
             e.condition.clone(),
@@ -777,7 +777,7 @@ fn channel(
             sig(e.peak_flow, 4),
             f(e.peak_time_h, 2),
             lowered,
-            f((e.peak_time_h - tin) * 60.0, 0),
+            f(delay_min, 0),
             opt_sig(e.inflow_volume, 5),
             sig(e.volume, 5),
             opt_sig(e.stored_at_end, 3),

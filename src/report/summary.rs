@@ -251,6 +251,17 @@ pub struct EventOut {
     pub infiltrated_volume: Option<f64>,
 }
 
+impl EventOut {
+    /// What a channel did to the peak in this event: how much lower the
+    /// outflow peak is than the inflow peak (%, None without inflow) and
+    /// how much later it comes (min); None for other elements.
+    pub fn peak_lowered_and_delay(&self) -> Option<(Option<f64>, f64)> {
+        let (pin, tin) = (self.peak_inflow?, self.peak_inflow_time_h?);
+        let lowered = (pin > 0.0).then(|| 100.0 * (1.0 - self.peak_flow / pin));
+        Some((lowered, (self.peak_time_h - tin) * 60.0))
+    }
+}
+
 /// A channel's Muskingum parameters and how it was routed at the step.
 #[derive(Debug, Clone, Serialize)]
 pub struct ChannelOut {

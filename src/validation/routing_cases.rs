@@ -33,24 +33,43 @@ pub fn push_all(out: &mut Vec<Case>) {
     bhv_cases(out);
 }
 
-fn ponce_cases(out: &mut Vec<Case>) {
-    const SOURCE: &str = "V. M. Ponce (SDSU), published worked solution, Muskingum K 1 h, X 0.2, dt 1 h (transcribed)";
-    let coefs: [(&str, f64, Coefficient); 3] = [
-        ("C0", 0.231, |k, x, dt| coefficients(k, x, dt).c0),
-        ("C1", 0.538, |k, x, dt| coefficients(k, x, dt).c1),
-        ("C2", 0.231, |k, x, dt| coefficients(k, x, dt).c2),
+/// The three Muskingum coefficients of a published example: `(group,
+/// source)`, the published C0, C1, C2, the tolerance, and `(K, X, dt, how
+/// they read)`.
+fn coefficient_cases(
+    out: &mut Vec<Case>,
+    (group, source): (&'static str, &'static str),
+    published: [f64; 3],
+    tolerance: f64,
+    (k, x, dt, given): (f64, f64, f64, &str),
+) {
+    let coefs: [(&str, Coefficient); 3] = [
+        ("C0", |k, x, dt| coefficients(k, x, dt).c0),
+        ("C1", |k, x, dt| coefficients(k, x, dt).c1),
+        ("C2", |k, x, dt| coefficients(k, x, dt).c2),
     ];
-    for (name, published, f) in coefs {
+    for ((name, f), published) in coefs.into_iter().zip(published) {
         out.push(case(
-            "ponce-muskingum",
-            SOURCE,
-            format!("Muskingum {name}, K 1 h, X 0.2, dt 1 h"),
+            group,
+            source,
+            format!("Muskingum {name}, {given}"),
             "",
             published,
-            5e-4,
-            move || f(1.0, 0.2, 1.0),
+            tolerance,
+            move || f(k, x, dt),
         ));
     }
+}
+
+fn ponce_cases(out: &mut Vec<Case>) {
+    const SOURCE: &str = "V. M. Ponce (SDSU), published worked solution, Muskingum K 1 h, X 0.2, dt 1 h (transcribed)";
+    coefficient_cases(
+        out,
+        ("ponce-muskingum", SOURCE),
+        [0.231, 0.538, 0.231],
+        5e-4,
+        (1.0, 0.2, 1.0, "K 1 h, X 0.2, dt 1 h"),
+    );
     let routed = || {
         route(
             &PONCE_MUSKINGUM_INFLOW,
@@ -83,22 +102,13 @@ fn ponce_cases(out: &mut Vec<Case>) {
 fn bhv_cases(out: &mut Vec<Case>) {
     const SOURCE: &str =
         "Bedient, Huber & Vieux, Hydrology and Floodplain Analysis (5th ed.), Example 4-3";
-    let coefs: [(&str, f64, Coefficient); 3] = [
-        ("C0", 0.0476, |k, x, dt| coefficients(k, x, dt).c0),
-        ("C1", 0.4286, |k, x, dt| coefficients(k, x, dt).c1),
-        ("C2", 0.5238, |k, x, dt| coefficients(k, x, dt).c2),
-    ];
-    for (name, published, f) in coefs {
-        out.push(case(
-            "bhv-example-4-3",
-            SOURCE,
-            format!("Muskingum {name}, K 2 d, X 0.2, dt 1 d"),
-            "",
-            published,
-            5e-5,
-            move || f(2.0, 0.2, 1.0),
-        ));
-    }
+    coefficient_cases(
+        out,
+        ("bhv-example-4-3", SOURCE),
+        [0.0476, 0.4286, 0.5238],
+        5e-5,
+        (2.0, 0.2, 1.0, "K 2 d, X 0.2, dt 1 d"),
+    );
     for (day, &published) in BHV_4_3_OUTFLOW.iter().enumerate().skip(1) {
         // The book prints whole cfs and carries rounded values from step to
         // step; its days 17 and 20 differ from the unrounded recursion by

@@ -578,11 +578,12 @@ impl ElementSim for RecordSim<'_, '_> {
     fn simulate(&mut self, i: usize, inflow_cfs: Vec<f64>) -> Result<Vec<f64>, Error> {
         let (run, c) = (self.run, self.c);
         let e = &run.study.elements[i];
-        // Routing writes a pond's outflow from empty; the others add into zeros.
-        let mut out = if matches!(e.kind, ElementKind::Pond(_)) {
-            self.pool.take_overwritten(0)
-        } else {
-            self.pool.take(run.len)
+        // Routing writes a pond's outflow from empty and every value of a
+        // channel's; the others add into zeros.
+        let mut out = match e.kind {
+            ElementKind::Pond(_) => self.pool.take_overwritten(0),
+            ElementKind::Channel(_) => self.pool.take_overwritten(run.len),
+            _ => self.pool.take(run.len),
         };
         let entry = match &e.kind {
             ElementKind::Catchment(cat) => {
@@ -692,8 +693,8 @@ fn simulate_catchment(
     Ok((entry, generated_ft3))
 }
 
-/// Routes a channel's inflow over the record into `out` (zeroed, of the
-/// run's length) by the Muskingum method and returns its entry, with the
+/// Routes a channel's inflow over the record into `out` (of the run's
+/// length; every value is written) by the Muskingum method and returns its entry, with the
 /// statistics of every element.
 #[allow(clippy::too_many_arguments)]
 fn route_channel(
@@ -716,14 +717,7 @@ fn route_channel(
     if !total.is_finite() {
         return Err(run.not_finite(c, "channel", name, "inflow volume", total));
     }
-    let plan = ch.plan(run.step_h).ok_or_else(|| {
-        Error::Simulation(SimulationError::ChannelSplit {
-            channel: name.clone(),
-            k_h: ch.k_h,
-            x: ch.x,
-            step_min: run.step_h * 60.0,
-        })
-    })?;
+    let plan = network::channel_plan(name, ch, run.step_h).map_err(Error::Simulation)?;
     let clock = std::time::Instant::now();
     crate::methods::channel::route_reach_into(&inflow, ch.k_h, ch.x, run.step_h, plan, out, None);
     res.timings.routing_s += clock.elapsed().as_secs_f64();

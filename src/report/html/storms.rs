@@ -249,6 +249,7 @@ pub(super) fn channels(doc: &mut Doc, input: &HtmlInput<'_>) {
                     let p = |f: &str| format!("events.{k}.{f}");
                     let pin = ev.peak_inflow.unwrap_or(0.0);
                     let tin = ev.peak_inflow_time_h.unwrap_or(0.0);
+                    let (lowered, delay_min) = ev.peak_lowered_and_delay().unwrap_or((None, 0.0));
                     vec![
                         Cell::Text(esc(&ev.storm)),
                         Cell::Text(esc(&ev.condition)),
@@ -256,12 +257,8 @@ pub(super) fn channels(doc: &mut Doc, input: &HtmlInput<'_>) {
                         Doc::num(p("peak_inflow_time_h"), tin, 2),
                         Doc::sig(p("peak_flow"), ev.peak_flow, 4),
                         Doc::num(p("peak_time_h"), ev.peak_time_h, 2),
-                        if pin > 0.0 {
-                            Doc::calc(fixed(100.0 * (1.0 - ev.peak_flow / pin), 1))
-                        } else {
-                            Doc::calc("-".into())
-                        },
-                        Doc::calc(fixed((ev.peak_time_h - tin) * 60.0, 0)),
+                        Doc::calc(lowered.map_or_else(|| "-".into(), |l| fixed(l, 1))),
+                        Doc::calc(fixed(delay_min, 0)),
                         Doc::opt(p("inflow_volume"), ev.inflow_volume, 0),
                         Doc::num(p("volume"), ev.volume, 0),
                     ]
