@@ -113,6 +113,7 @@ impl Builder<'_> {
                 raw_elements
                     .iter()
                     .filter(|x| matches!(x, RawElement::Pond(_) | RawElement::Channel(_)))
+                    .filter(|x| x.trimmed_name() != e.trimmed_name())
                     .map(|x| x.trimmed_name()),
             )
             .collect();
@@ -130,7 +131,10 @@ impl Builder<'_> {
         } else {
             match suggest::nearest(tname, targets.iter().copied()) {
                 Some(h) => err.hint(suggest::did_you_mean(h)),
-                None => err.hint(format!("the ponds and points are {}", quoted_str(&targets))),
+                None => err.hint(format!(
+                    "the points, ponds and channels are {}",
+                    quoted_str(&targets)
+                )),
             }
         })
     }
